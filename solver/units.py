@@ -3,11 +3,18 @@
 A case-file quantity is either a number (taken in the default unit for that kind of quantity)
 or a string pint understands ("100 kmol/h", "65 degC", "1.5 bar"). Everything inside the
 engine is SI: K, Pa, mol/s, W, J/mol, kg/mol, m3/mol.
+
+A quantity string is read as a leading number followed by a unit expression ("40.7 cm**3/mol").
+The unit part is read with ``parse_units``, so a temperature unit inside a compound unit is a
+temperature *difference* ("75 J/mol/degC" is 75 J/mol/K, not 75 J/mol per 274.15 K as a plain
+pint expression would give). Powers are allowed on unit names only ("m**3"), which keeps a
+hostile expression such as "9**9**9" from tying up the reader.
 """
 
 from __future__ import annotations
 
 import math
+import re
 from functools import lru_cache
 
 import pint
@@ -25,52 +32,115 @@ SI_UNITS: dict[str, str] = {
     "molar_energy": "J/mol",
     "molar_mass": "kg/mol",
     "molar_volume": "m**3/mol",
+    "molar_density": "mol/m**3",
     "molar_heat_capacity": "J/mol/K",
+    "inverse_temperature": "1/K",
     "dimensionless": "dimensionless",
 }
+
+#: Longest quantity or unit text accepted; nothing a case file needs comes close.
+MAX_TEXT_LENGTH = 200
+
+_LEADING_NUMBER = re.compile(r"\s*([+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)(.*)", re.DOTALL)
+_POWER = re.compile(r"\*\*|\^")
 
 
 class UnitParseError(ValueError):
     """A value that is not a quantity of the expected kind; the message says what was expected."""
 
 
-@lru_cache(maxsize=512)
-def _parse_text(text: str) -> pint.Quantity:
-    return ureg.Quantity(text)
+def _describe(kind: str) -> str:
+    return kind.replace("_", " ")
+
+
+def _check_unit_text(text: str) -> None:
+    """Refuse unit text that is too long or raises a number to a power (see module docstring)."""
+    if len(text) > MAX_TEXT_LENGTH:
+        raise UnitParseError(f"the text is too long to be a quantity ({len(text)} characters)")
+    for match in _POWER.finditer(text):
+        before = text[: match.start()].rstrip()
+        if not before or not (before[-1].isalpha() or before[-1] == "_"):
+            raise UnitParseError(f"in {text!r} powers are allowed on unit names only (like 'm**3')")
+
+
+def _parse_unit_expression(text: str) -> pint.Unit:
+    _check_unit_text(text)
+    try:
+        return ureg.parse_units(text)
+    except Exception as exc:  # pint raises many kinds of errors for unreadable text
+        raise UnitParseError(f"{text!r} is not a unit pint knows ({type(exc).__name__})") from None
+
+
+def _single_offset_unit(unit: pint.Unit) -> str | None:
+    """The name of the offset unit (degC, degF) if ``unit`` is exactly one of them, else None."""
+    items = list(unit._units.items())
+    if len(items) == 1 and items[0][1] == 1 and not ureg._units[items[0][0]].is_multiplicative:
+        return items[0][0]
+    return None
+
+
+def _is_delta_unit(unit: pint.Unit) -> bool:
+    return any(name.startswith("delta_") for name in unit._units)
+
+
+@lru_cache(maxsize=1024)
+def _parse_text(text: str) -> tuple[float, pint.Unit | None]:
+    """(magnitude, unit) of a quantity text; unit None for a bare number."""
+    if len(text) > MAX_TEXT_LENGTH:
+        raise UnitParseError(f"the text is too long to be a quantity ({len(text)} characters)")
+    match = _LEADING_NUMBER.fullmatch(text)
+    if match is None:
+        raise UnitParseError(f"cannot read {text!r} as a quantity: it must start with a number, like '100 kmol/h'")
+    number_text, unit_text = match.group(1), match.group(2).strip()
+    magnitude = float(number_text)
+    if not unit_text:
+        return magnitude, None
+    try:
+        unit = _parse_unit_expression(unit_text)
+    except UnitParseError as exc:
+        raise UnitParseError(f"cannot read {text!r} as a quantity: {exc}") from None
+    if unit.dimensionless and not unit._units:
+        return magnitude, None
+    return magnitude, unit
 
 
 def to_si(value: object, kind: str) -> float:
     """Convert ``value`` (a number in SI, or a string with units) to a float in the SI unit of
-    ``kind`` (one of :data:`SI_UNITS`). Raises :class:`UnitParseError` with a plain message."""
+    ``kind`` (one of :data:`SI_UNITS`). Raises :class:`UnitParseError` with a plain message.
+
+    A bare number (or a string holding only a number) is taken in the SI unit. For
+    ``temperature_difference`` an offset unit is read as its difference ("5 degC" = 5 K); for
+    ``temperature`` a difference unit ("5 delta_degC") is refused."""
     si_unit = SI_UNITS[kind]
     if isinstance(value, bool):
-        raise UnitParseError(f"a {kind.replace('_', ' ')} is needed, not a true/false value")
+        raise UnitParseError(f"a {_describe(kind)} is needed, not a true/false value")
     if isinstance(value, (int, float)):
-        number = float(value)
-    elif isinstance(value, str):
         try:
-            quantity = _parse_text(value.strip())
-        except Exception as exc:  # pint raises many kinds of errors for unreadable text
-            raise UnitParseError(f"cannot read {value!r} as a quantity ({type(exc).__name__})") from None
-        if not isinstance(quantity, pint.Quantity):
-            number = float(quantity)
-            if kind not in ("dimensionless",):
-                # a bare number written as a string is taken in the SI unit, like a number
-                pass
+            number = float(value)
+        except OverflowError:
+            raise UnitParseError("the value is too large to be a number") from None
+    elif isinstance(value, str):
+        magnitude, unit = _parse_text(value.strip())
+        if unit is None:
+            number = magnitude
         else:
+            if kind == "temperature" and _is_delta_unit(unit):
+                raise UnitParseError(
+                    f"{value!r} is a temperature difference; a temperature is needed (like '65 degC' or '338.15 K')"
+                )
+            offset_name = _single_offset_unit(unit)
+            if kind == "temperature_difference" and offset_name is not None:
+                unit = ureg.parse_units("delta_" + offset_name)
             try:
-                if kind == "temperature_difference":
-                    number = float(quantity.to("delta_degC").magnitude)
-                else:
-                    number = float(quantity.to(si_unit).magnitude)
+                number = float(Quantity(magnitude, unit).to(si_unit).magnitude)
             except pint.DimensionalityError:
                 raise UnitParseError(
-                    f"{value!r} is not a {kind.replace('_', ' ')} (wanted units like {example_unit(kind)})"
+                    f"{value!r} is not a {_describe(kind)} (wanted units like {example_unit(kind)})"
                 ) from None
             except Exception as exc:
                 raise UnitParseError(f"cannot convert {value!r} to {si_unit} ({type(exc).__name__})") from None
     else:
-        raise UnitParseError(f"a {kind.replace('_', ' ')} is needed (a number or a string with units)")
+        raise UnitParseError(f"a {_describe(kind)} is needed (a number or a string with units)")
     if not math.isfinite(number):
         raise UnitParseError("the value is not a finite number")
     return number
@@ -87,26 +157,50 @@ def example_unit(kind: str) -> str:
         "molar_energy": "'kJ/mol' or 'J/mol'",
         "molar_mass": "'kg/mol' or 'g/mol'",
         "molar_volume": "'m**3/mol' or 'cm**3/mol'",
+        "molar_density": "'mol/m**3' or 'kmol/m**3'",
         "molar_heat_capacity": "'J/mol/K'",
+        "inverse_temperature": "'1/K'",
         "dimensionless": "no units",
     }[kind]
 
 
 def unit_factor(unit: str, kind: str) -> float:
     """SI value of one ``unit`` of a (non-offset) quantity of ``kind``: ``unit_factor('kPa',
-    'pressure') == 1000``. Raises :class:`UnitParseError`."""
-    return to_si(f"1 {unit}", kind)
+    'pressure') == 1000``. ``unit`` must be a unit alone (no number); an offset unit such as
+    'degC' standing alone is refused (use :func:`temperature_scale`). Raises
+    :class:`UnitParseError`."""
+    if not isinstance(unit, str):
+        raise UnitParseError(f"a unit is needed as text, like {example_unit(kind)}")
+    parsed = _parse_unit_expression(unit.strip())
+    if _single_offset_unit(parsed) is not None:
+        raise UnitParseError(f"{unit!r} has an offset (zero not at absolute zero); it cannot scale a value")
+    try:
+        factor = float(Quantity(1.0, parsed).to(SI_UNITS[kind]).magnitude)
+    except pint.DimensionalityError:
+        raise UnitParseError(f"{unit!r} is not a unit of {_describe(kind)} (wanted {example_unit(kind)})") from None
+    except Exception as exc:
+        raise UnitParseError(f"cannot convert {unit!r} to {SI_UNITS[kind]} ({type(exc).__name__})") from None
+    if not (math.isfinite(factor) and factor > 0.0):
+        raise UnitParseError(f"{unit!r} does not give a usable scale factor")
+    return factor
 
 
 def temperature_scale(unit: str) -> tuple[float, float]:
     """(slope, intercept) with ``T_in_unit = slope * T_kelvin + intercept`` for a temperature
-    unit such as 'K', 'degC', 'degF', 'degR'. Raises :class:`UnitParseError`."""
+    unit such as 'K', 'degC', 'degF', 'degR'. Difference units ('delta_degC') and units with a
+    number ('2 K') are refused. Raises :class:`UnitParseError`."""
+    wanted = "wanted 'K', 'degC', 'degF' or 'degR'"
+    if not isinstance(unit, str):
+        raise UnitParseError(f"a temperature unit is needed as text ({wanted})")
+    parsed = _parse_unit_expression(unit.strip())
+    if parsed.dimensionality != ureg.kelvin.dimensionality or len(parsed._units) != 1 or _is_delta_unit(parsed):
+        raise UnitParseError(f"{unit!r} is not a temperature unit ({wanted})")
     try:
-        zero = Quantity(0.0, "K").to(unit).magnitude
-        one = Quantity(1.0, "K").to(unit).magnitude
+        zero = float(Quantity(0.0, "K").to(parsed).magnitude)
+        thousand = float(Quantity(1000.0, "K").to(parsed).magnitude)
     except Exception:
-        raise UnitParseError(f"{unit!r} is not a temperature unit (wanted 'K', 'degC', 'degF' or 'degR')") from None
-    return float(one - zero), float(zero)
+        raise UnitParseError(f"{unit!r} is not a temperature unit ({wanted})") from None
+    return (thousand - zero) / 1000.0, zero
 
 
 def convert(value_si: float, kind: str, unit: str) -> float:

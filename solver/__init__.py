@@ -1,0 +1,8 @@
+"""traystack: rigorous tray-by-tray distillation column simulation.
+
+The engine solves the MESH equations (material balances, equilibrium relations, summations,
+enthalpy balances) of every stage at once by Newton's method on a sparse Jacobian built from
+the column's stage graph, and sets the result beside the shortcut (operating-line) design.
+"""
+
+__version__ = "0.1.0"

@@ -1,0 +1,270 @@
+"""Identity and constants of pure components: CoolProp fluids and user-defined components.
+
+A component named in a case is looked up first among the components the user defined under
+``[components.data.NAME]`` and then among CoolProp's pure fluids, by name or alias, ignoring
+case (``"n-heptane"``, ``"N-HEPTANE"``, ``"heptane"`` and ``"nC7H16"`` all give CoolProp's
+``n-Heptane``). Constants of CoolProp fluids come from the fluid's reference equation of state
+through ``AbstractState("HEOS", name)`` (Bell et al. 2014, Ind. Eng. Chem. Res. 53, 2498-2508,
+for CoolProp itself).
+
+Pseudo-pure mixtures (R404A, Air, ...) and fluids whose saturation curve CoolProp cannot compute
+are not offered: a distillation column needs each component's vapor pressure.
+"""
+
+from __future__ import annotations
+
+import difflib
+import fnmatch
+import math
+import re
+from dataclasses import dataclass
+from functools import lru_cache
+from typing import Mapping
+
+import CoolProp
+import CoolProp.CoolProp as CP
+
+from solver.case import ComponentData
+from solver.errors import CaseError
+
+ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
+
+
+@dataclass(frozen=True)
+class ComponentInfo:
+    """Constants of one pure component (SI)."""
+
+    name: str  # the name as used in the case, lower case
+    molar_mass: float  # kg/mol
+    critical_temperature: float  # K
+    critical_pressure: float  # Pa
+    normal_boiling_point: float | None  # K, at 101325 Pa
+    triple_temperature: float | None  # K
+    backend: str  # "coolprop" | "user"
+    coolprop_name: str | None
+    source: str
+
+
+def coolprop_name(name: str) -> str | None:
+    """CoolProp's name of the fluid called ``name`` (a CoolProp name or alias, any case,
+    spaces, hyphens and underscores optional), or None if CoolProp has no such fluid."""
+    key = name.strip().lower()
+    exact, loose = _coolprop_index()
+    if key in exact:
+        return exact[key]
+    return loose.get(_loose_key(key))
+
+
+def component_info(name: str, user_data: Mapping[str, ComponentData] | None = None) -> ComponentInfo:
+    """Constants of the component ``name``: a user-defined component from ``user_data``
+    (matched ignoring case) or a CoolProp pure fluid. Raises
+    :class:`~solver.errors.CaseError` with a "did you mean" suggestion for an unknown name and
+    for CoolProp fluids that cannot be used in a column (pseudo-pure mixtures)."""
+    if not isinstance(name, str) or not name.strip():
+        raise CaseError("a component name must be a non-empty string", key="components.names", value=name)
+    data = _find_user_data(name, user_data)
+    if data is not None:
+        return _user_info(name, data)
+    fluid = coolprop_name(name)
+    if fluid is None:
+        raise CaseError(
+            f"unknown component {name.strip()!r}" + _suggestion(name, user_data),
+            key="components.names",
+            expected="a CoolProp fluid (list them with `traystack components`) or a name defined under [components.data]",
+        )
+    reason = _unusable_reason(fluid)
+    if reason is not None:
+        raise CaseError(
+            f"component {name.strip()!r} (CoolProp {fluid}) cannot be used in a column: {reason}",
+            key="components.names",
+        )
+    return _coolprop_info(fluid, name.strip().lower())
+
+
+def list_components(pattern: str | None = None) -> list[ComponentInfo]:
+    """Every usable CoolProp pure fluid, sorted by name; ``pattern`` keeps those whose name or
+    an alias contains it (case-insensitive) or, if it has ``*``, ``?`` or ``[``, matches it as
+    a shell-style glob."""
+    infos = _all_coolprop_infos()
+    if not pattern:
+        return list(infos)
+    text = pattern.strip().lower()
+    glob = any(ch in text for ch in "*?[")
+    chosen = []
+    for info in infos:
+        names = [info.name, *(_aliases(info.coolprop_name))]
+        names = [n.lower() for n in names]
+        if glob:
+            hit = any(fnmatch.fnmatchcase(n, text) for n in names)
+        else:
+            hit = any(text in n for n in names)
+        if hit:
+            chosen.append(info)
+    return chosen
+
+
+def coolprop_source(fluid: str) -> str:
+    """The source line for a CoolProp fluid: version and the BibTeX keys CoolProp gives for the
+    fluid's reference equation of state and ideal-gas heat capacity."""
+    eos = _fluid_param(fluid, "BibTeX-EOS") or "reference not stated by CoolProp"
+    text = f"CoolProp {CoolProp.__version__} (reference EOS of {fluid}: {eos}"
+    cp0 = _fluid_param(fluid, "BibTeX-CP0")
+    if cp0 and cp0 != eos:
+        text += f"; ideal-gas heat capacity: {cp0}"
+    return text + ")"
+
+
+# --- helpers -----------------------------------------------------------------------------------
+
+
+def _loose_key(text: str) -> str:
+    return re.sub(r"[\s_\-]", "", text.lower())
+
+
+@lru_cache(maxsize=1)
+def _fluid_names() -> tuple[str, ...]:
+    return tuple(CP.get_global_param_string("FluidsList").split(","))
+
+
+@lru_cache(maxsize=None)
+def _aliases(fluid: str) -> tuple[str, ...]:
+    text = _fluid_param(fluid, "aliases")
+    return tuple(a.strip() for a in text.split(",") if a.strip()) if text else ()
+
+
+def _fluid_param(fluid: str, key: str) -> str:
+    try:
+        return CP.get_fluid_param_string(fluid, key).strip()
+    except Exception:  # CoolProp raises ValueError for keys a fluid lacks
+        return ""
+
+
+@lru_cache(maxsize=1)
+def _coolprop_index() -> tuple[dict[str, str], dict[str, str]]:
+    """(exact lower-case name or alias -> CoolProp name, loose key -> CoolProp name). A loose
+    key (spaces, hyphens and underscores removed) that two fluids share is dropped."""
+    exact: dict[str, str] = {}
+    for fluid in _fluid_names():
+        exact.setdefault(fluid.lower(), fluid)
+    for fluid in _fluid_names():
+        for alias in _aliases(fluid):
+            exact.setdefault(alias.lower(), fluid)
+    loose: dict[str, str] = {}
+    clashes: set[str] = set()
+    for key, fluid in exact.items():
+        lk = _loose_key(key)
+        if lk in loose and loose[lk] != fluid:
+            clashes.add(lk)
+        loose.setdefault(lk, fluid)
+    for lk in clashes:
+        del loose[lk]
+    return exact, loose
+
+
+@lru_cache(maxsize=None)
+def _unusable_reason(fluid: str) -> str | None:
+    if _fluid_param(fluid, "pure") != "true":
+        return "CoolProp models it as a pseudo-pure mixture, without a vapor-liquid saturation curve of its own"
+    try:
+        state = CP.AbstractState("HEOS", fluid)
+        Tc = state.T_critical()
+        T_low = max(state.Ttriple(), state.Tmin())
+        for T in (T_low, 0.5 * (T_low + Tc), Tc * (1.0 - 1e-3)):
+            state.update(CP.QT_INPUTS, 0.0, T)
+            if not (math.isfinite(state.p()) and state.p() > 0.0):
+                return f"CoolProp gives no saturation pressure at {T:.2f} K"
+    except Exception as exc:  # CoolProp raises ValueError with its own message
+        return f"CoolProp cannot compute its saturation curve ({exc})"
+    return None
+
+
+@lru_cache(maxsize=None)
+def _coolprop_constants(fluid: str) -> tuple[float, float, float, float | None, float]:
+    state = CP.AbstractState("HEOS", fluid)
+    normal_boiling_point: float | None
+    try:
+        if state.p_triple() < ATMOSPHERIC_PRESSURE < state.p_critical():
+            state.update(CP.PQ_INPUTS, ATMOSPHERIC_PRESSURE, 0.0)
+            normal_boiling_point = float(state.T())
+        else:
+            normal_boiling_point = None
+    except Exception:
+        normal_boiling_point = None
+    return (
+        float(state.molar_mass()),
+        float(state.T_critical()),
+        float(state.p_critical()),
+        normal_boiling_point,
+        float(state.Ttriple()),
+    )
+
+
+def _coolprop_info(fluid: str, name: str) -> ComponentInfo:
+    molar_mass, Tc, Pc, Tb, Tt = _coolprop_constants(fluid)
+    return ComponentInfo(
+        name=name,
+        molar_mass=molar_mass,
+        critical_temperature=Tc,
+        critical_pressure=Pc,
+        normal_boiling_point=Tb,
+        triple_temperature=Tt,
+        backend="coolprop",
+        coolprop_name=fluid,
+        source=coolprop_source(fluid),
+    )
+
+
+@lru_cache(maxsize=1)
+def _all_coolprop_infos() -> tuple[ComponentInfo, ...]:
+    infos = [
+        _coolprop_info(fluid, fluid.lower())
+        for fluid in _fluid_names()
+        if _unusable_reason(fluid) is None
+    ]
+    return tuple(sorted(infos, key=lambda i: i.name))
+
+
+def _find_user_data(name: str, user_data: Mapping[str, ComponentData] | None) -> ComponentData | None:
+    if not user_data:
+        return None
+    key = name.strip().lower()
+    for data_key, data in user_data.items():
+        if data_key.strip().lower() == key or data.name.strip().lower() == key:
+            return data
+    return None
+
+
+def _user_info(name: str, data: ComponentData) -> ComponentInfo:
+    return ComponentInfo(
+        name=name.strip().lower(),
+        molar_mass=data.molar_mass,
+        critical_temperature=data.critical_temperature,
+        critical_pressure=data.critical_pressure,
+        normal_boiling_point=data.normal_boiling_point,
+        triple_temperature=None,
+        backend="user",
+        coolprop_name=None,
+        source=data.source or "user data (no source given)",
+    )
+
+
+def _suggestion(name: str, user_data: Mapping[str, ComponentData] | None) -> str:
+    exact, _ = _coolprop_index()
+    candidates: dict[str, str] = {}
+    for key, fluid in exact.items():
+        if _unusable_reason(fluid) is None:
+            candidates[key] = fluid.lower()
+    for data_key in user_data or {}:
+        candidates[data_key.lower()] = data_key.lower()
+    key = name.strip().lower()
+    matches = difflib.get_close_matches(key, candidates, n=6, cutoff=0.6)
+    if not matches:
+        matches = difflib.get_close_matches(_loose_key(key), candidates, n=6, cutoff=0.6)
+    names: list[str] = []
+    for match in matches:
+        canonical = candidates[match]
+        if canonical not in names:
+            names.append(canonical)
+    if not names:
+        return ""
+    return "; did you mean " + " or ".join(repr(n) for n in names[:3]) + "?"

@@ -1,0 +1,200 @@
+"""Default starting profiles: nothing is asked of the user.
+
+1. Product split: the non-key distribution of Fenske's equation (Fenske 1932, Ind. Eng. Chem.
+   24:482), ``d_k / b_k = theta * alpha_k^m``, with relative volatilities at the feed's bubble
+   point; the overhead rate ``D`` is chosen to meet the composition specifications, or taken
+   from the flow specifications.
+2. Flows by constant molar overflow from the specs (reflux, boilup, duties through a mean
+   latent heat) and each feed's thermal condition ``q``.
+3. Compositions and temperatures by sweeps of the bubble-point method (Wang & Henke 1966,
+   Hydrocarbon Processing 45(8):155): for fixed flows, each component's balances over all
+   stages form one sparse linear system in its liquid flows; temperatures then move to the
+   bubble points of the new liquid compositions.
+
+The sweeps use the stage graph's inflow matrices; the CMO flow estimate walks the stages top
+to bottom and so assumes one vertical chain (a plain column).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+from scipy.special import expit
+
+from .case import Spec
+from .errors import ThermoError
+from .mesh import MeshSystem
+from .thermo.flash import bubble_temperature
+
+_COMPOSITION_SPECS = ("mole_fraction", "recovery")
+_WANG_HENKE_SWEEPS = 12
+
+
+def fenske_split(feed_flows: np.ndarray, ln_alpha: np.ndarray, distillate: float, exponent: float) -> np.ndarray:
+    """Component flows in the overhead for an overhead rate ``distillate``:
+    ``d_k = F_k expit(m ln alpha_k - ln theta)`` with ``theta`` found so that sum d = D."""
+    low, high = -800.0, 800.0
+    for _ in range(200):
+        middle = 0.5 * (low + high)
+        total = float(np.sum(feed_flows * expit(exponent * ln_alpha - middle)))
+        if total > distillate:
+            low = middle
+        else:
+            high = middle
+        if high - low < 1e-12:
+            break
+    return feed_flows * expit(exponent * ln_alpha - 0.5 * (low + high))
+
+
+def _spec_error(spec: Spec, top: np.ndarray, bottom: np.ndarray, feed: np.ndarray, names) -> float:
+    i = list(names).index(spec.component)
+    if spec.kind == "mole_fraction":
+        product = top if spec.product == "distillate" else bottom
+        return float(product[i] / max(product.sum(), 1e-300) - spec.value)
+    product = top if spec.product == "distillate" else bottom
+    return float(product[i] / max(feed[i], 1e-300) - spec.value)
+
+
+def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.ndarray, feed_totals: np.ndarray, ln_alpha: np.ndarray):
+    """Overhead rate D (scaled), top vapor rate V_top (scaled) and product component flows."""
+    feed = system.total_feed_by_component
+    F_net = float(feed.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
+    vapor_in_feeds = float(np.sum((1.0 - np.clip(q_values, -1.0, 2.0)) * feed_totals))
+    latent = system.energy_scale  # the energy scale is a mean molar latent heat
+    exponent = float(np.clip(0.45 * system.N, 2.0, 60.0))
+
+    D = None
+    energy_relations = []  # (a, b) meaning V_top = a + b * D
+    for spec in specs:
+        value = spec.value
+        if spec.kind == "distillate_rate":
+            D = value / system.flow_scale
+        elif spec.kind == "bottoms_rate":
+            D = F_net - value / system.flow_scale
+        elif spec.kind == "reflux_ratio":
+            energy_relations.append((0.0, value + 1.0))
+        elif spec.kind == "boilup_ratio":
+            energy_relations.append((value * F_net + vapor_in_feeds, -value))
+        elif spec.kind == "condenser_duty":
+            energy_relations.append((abs(value) / (latent * system.flow_scale), 0.0))
+        elif spec.kind == "reboiler_duty":
+            energy_relations.append((value / (latent * system.flow_scale) + vapor_in_feeds, 0.0))
+    composition_specs = [s for s in specs if s.kind in _COMPOSITION_SPECS]
+    if D is None and composition_specs:
+        grid = np.linspace(0.002, 0.998, 499) * F_net
+        errors = np.zeros_like(grid)
+        for n, trial in enumerate(grid):
+            top = fenske_split(feed, ln_alpha, trial, exponent)
+            errors[n] = sum(_spec_error(s, top, feed - top, feed, system.component_names) ** 2 for s in composition_specs)
+        D = float(grid[int(np.argmin(errors))])
+    if D is None and len(energy_relations) >= 2:
+        (a1, b1), (a2, b2) = energy_relations[:2]
+        if abs(b1 - b2) > 1e-12:
+            D = (a2 - a1) / (b1 - b2)
+    if D is None:
+        # one energy spec and nothing that fixes D, or an absorber: split the feed by volatility
+        D = max(vapor_in_feeds, 0.5 * F_net) if system.graph.condenser != "none" else max(vapor_in_feeds, 0.3 * F_net)
+    D = float(np.clip(D, 0.01 * F_net, 0.99 * F_net))
+    if energy_relations:
+        a, b = energy_relations[0]
+        V_top = a + b * D
+    else:
+        V_top = 3.0 * D  # common practice: a reflux ratio of about 2 as a first guess
+    if system.graph.condenser == "none":
+        V_top = D
+    V_top = float(max(V_top, 1.05 * D))
+    top = fenske_split(feed, ln_alpha, D, exponent)
+    return D, V_top, top
+
+
+def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.ndarray, stage_q: np.ndarray):
+    """Total liquid and vapor flows (scaled) leaving each stage under constant molar overflow,
+    walking a single chain of stages from the top."""
+    N = system.N
+    U, W = system.liquid_draws, system.vapor_draws
+    F_net = float(system.total_feed_by_component.sum() - U.sum() - W.sum())
+    L = np.zeros(N)
+    V = np.zeros(N)
+    reflux = V_top - D if system.graph.condenser != "none" else 0.0
+    liquid_above = reflux
+    for j in range(N):
+        L[j] = liquid_above + stage_q[j] * stage_feed_totals[j] - U[j] if j > 0 else reflux + stage_q[0] * stage_feed_totals[0] - U[0]
+        liquid_above = L[j]
+    V[0] = D
+    cumulative = np.cumsum(stage_feed_totals - U - W)
+    for j in range(1, N):
+        V[j] = L[j - 1] + D - cumulative[j - 1]
+    L[N - 1] = F_net - D
+    floor = 1e-3 * F_net
+    return np.maximum(L, floor), np.maximum(V, floor)
+
+
+def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, feed_stage_index: np.ndarray) -> np.ndarray:
+    """Starting vector X for :class:`~solver.mesh.MeshSystem` from the specs alone."""
+    thermo = system.thermo
+    N, c = system.N, system.c
+    fs = system.flow_scale
+    feed_totals = np.array([state_flow for state_flow in (s["flow"] for s in feed_states)]) / fs
+    q_values = np.array([s["q"] for s in feed_states])
+    z_total = system.total_feed_by_component / system.total_feed_by_component.sum()
+    mean_pressure = float(np.mean(system.pressures))
+    t_feed, _ = bubble_temperature(thermo, np.array([mean_pressure]), z_total[None, :])
+    K_feed = thermo.k_values(t_feed, np.array([mean_pressure]), z_total[None, :], derivatives=False).K[0]
+    ln_alpha = np.log(K_feed) - np.log(np.exp(np.sum(z_total * np.log(K_feed))))
+
+    D, V_top, top = estimate_split(system, specs, q_values, feed_totals, ln_alpha)
+    bottom = system.total_feed_by_component - top
+    stage_feed_totals = np.zeros(N)
+    stage_vapor = np.zeros(N)
+    np.add.at(stage_feed_totals, feed_stage_index, feed_totals)
+    np.add.at(stage_vapor, feed_stage_index, feed_totals * (1.0 - np.clip(q_values, -1.0, 2.0)))
+    stage_q = np.where(stage_feed_totals > 0, 1.0 - stage_vapor / np.maximum(stage_feed_totals, 1e-300), 1.0)
+    L, V = cmo_flows(system, D, V_top, stage_feed_totals, stage_q)
+
+    # temperatures between the bubble points of the estimated products
+    x_top = top / top.sum()
+    x_bottom = bottom / bottom.sum()
+    ends = np.array([x_top, x_bottom])
+    t_ends, _ = bubble_temperature(thermo, system.pressures[[0, -1]], ends)
+    weights = np.linspace(0.0, 1.0, N)[:, None]
+    x = (1 - weights) * x_top + weights * x_bottom
+    T = (1 - weights[:, 0]) * t_ends[0] + weights[:, 0] * t_ends[1]
+    try:
+        T, _ = bubble_temperature(thermo, system.pressures, x, guess=T)
+    except ThermoError:
+        pass
+
+    A_L = system.graph.liquid_inflow
+    A_V = system.graph.vapor_inflow
+    U, W = system.liquid_draws, system.vapor_draws
+    t = system.top
+    for _ in range(_WANG_HENKE_SWEEPS):
+        K = thermo.k_values(T, system.pressures, x, derivatives=False).K
+        stripping = K * (V / L)[:, None]
+        if system.total_condenser:
+            stripping[t] = V[t] / L[t]
+        l = np.empty((N, c))
+        for i in range(c):
+            diagonal = sp.diags(1.0 + U / L + stripping[:, i] * (1.0 + W / V))
+            matrix = (diagonal - A_L - A_V @ sp.diags(stripping[:, i])).tocsc()
+            l[:, i] = spla.spsolve(matrix, system.feed_flows[:, i])
+        l = np.maximum(l, 1e-16 * fs / fs)
+        x = l / l.sum(axis=1, keepdims=True)
+        try:
+            T, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
+        except ThermoError:
+            pass
+    K = thermo.k_values(T, system.pressures, x, derivatives=False).K
+    y = K * x
+    y = y / y.sum(axis=1, keepdims=True)
+    if system.total_condenser:
+        y[t] = x[t]
+        setting = system.condenser_setting
+        if setting.reflux_temperature is not None:
+            T[t] = setting.reflux_temperature
+        elif setting.reflux_subcooling:
+            T[t] = T[t] - setting.reflux_subcooling
+    l_flows = L[:, None] * x
+    v_flows = V[:, None] * y
+    return system.pack(T, l_flows, v_flows)

@@ -1,0 +1,427 @@
+"""Residuals and sparse analytic Jacobian of the MESH and specification equations.
+
+Unknowns per stage j (2c+1, stage-major): temperature ``T_j`` (K) and the component flows of
+liquid ``l_ij`` and vapor ``v_ij`` leaving the stage for its neighbours, divided by
+``flow_scale`` (the total feed). Side draws take the stage's own composition:
+``u_ij = U_j x_ij``, ``w_ij = W_j y_ij``.
+
+Equations per stage (the formulation of Naphtali & Sandholm, AIChE J. 17 (1971) 148):
+
+* component balances  ``l_ij (1 + U_j/L_j) + v_ij (1 + W_j/V_j) - sum_in l - sum_in v - f_ij = 0``
+* Murphree vapor-efficiency relations
+  ``y_ij - E_j K_ij x_ij - (1 - E_j) y_in,ij = 0`` with ``y_in`` the mixed vapor entering the
+  stage (their sum over i is the bubble-point condition, so no separate summation equation);
+* enthalpy balance  ``(L+U) h_L + (V+W) h_V - sum_in L h_L - sum_in V h_V - H_F - Q = 0``,
+  divided by ``flow_scale * energy_scale``.
+
+A total condenser's equilibrium rows become ``y_i - x_i = 0`` (i < c) and the bubble-point
+condition of the reflux at ``T + subcooling`` (or ``T - T_reflux = 0``). The enthalpy balances
+of the condenser and the reboiler are replaced by the specifications; their duties follow
+from those balances afterwards.
+
+The Jacobian is built from dense per-stage and per-edge blocks scattered into one
+``scipy.sparse`` CSC matrix; the sparsity comes from the stage graph only.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+import scipy.sparse as sp
+
+from .case import Spec
+from .errors import SpecError
+from .network import StageGraph
+
+TEMPERATURE_SCALE = 10.0  # K, divides temperature specification residuals
+
+_RATIO_SPECS = ("reflux_ratio", "boilup_ratio")
+
+
+@dataclass(frozen=True)
+class FeedData:
+    """Feeds as fixed streams: ``component_flows (N, c)`` mol/s and ``enthalpy_flows (N,)`` W
+    summed per stage, plus the per-feed detail for reports."""
+
+    component_flows: np.ndarray
+    enthalpy_flows: np.ndarray
+    states: tuple = ()
+
+
+@dataclass(frozen=True)
+class CondenserSetting:
+    """How the total condenser's temperature is fixed: saturated (both None), a reflux
+    temperature in K, or a subcooling below the bubble point in K."""
+
+    reflux_temperature: float | None = None
+    reflux_subcooling: float | None = None
+
+
+@dataclass(frozen=True)
+class SpecRow:
+    spec: Spec
+    stage: int  # the stage whose enthalpy-balance row it takes
+
+
+@dataclass(frozen=True)
+class Evaluation:
+    residuals: np.ndarray
+    jacobian: sp.csc_matrix | None
+
+
+def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[SpecRow, ...]:
+    """Check the degrees of freedom and give each spec the enthalpy-balance row it replaces.
+
+    A column has one degree of freedom for a condenser and one for a reboiler (feeds, stage
+    count, pressures, draws and side duties being fixed). Raises :class:`SpecError` naming the
+    specs when there are too many or too few, or a spec does not fit the column."""
+    free_rows = []
+    if graph.condenser != "none":
+        free_rows.append(graph.top_stage)
+    if graph.has_reboiler:
+        free_rows.append(graph.bottom_stage)
+    given = ", ".join(s.key or s.kind for s in specs) or "none"
+    if len(specs) != len(free_rows):
+        needs = []
+        if graph.condenser != "none":
+            needs.append("one for the condenser")
+        if graph.has_reboiler:
+            needs.append("one for the reboiler")
+        need_text = " and ".join(needs) if needs else "none (no condenser, no reboiler)"
+        raise SpecError(
+            f"the column has {len(free_rows)} degree(s) of freedom ({need_text}) but {len(specs)} "
+            f"spec(s) were given: {given}. Give exactly {len(free_rows)} of: reflux_ratio, boilup_ratio, "
+            "distillate_rate, bottoms_rate, condenser_duty, reboiler_duty, distillate/bottoms mole fraction, "
+            "recovery, stage_temperature"
+        )
+    names = list(component_names)
+    for spec in specs:
+        if spec.kind in ("reflux_ratio", "condenser_duty") and graph.condenser == "none":
+            raise SpecError(f"{spec.key or spec.kind}: the column has no condenser")
+        if spec.kind in ("boilup_ratio", "reboiler_duty") and not graph.has_reboiler:
+            raise SpecError(f"{spec.key or spec.kind}: the column has no reboiler")
+        if spec.component is not None and spec.component not in names:
+            raise SpecError(f"{spec.key}: {spec.component!r} is not a component of the case ({', '.join(names)})")
+        if spec.kind == "stage_temperature" and not (1 <= (spec.stage or 0) <= graph.stage_count):
+            raise SpecError(f"{spec.key}: stage {spec.stage} is not in 1..{graph.stage_count}")
+    rows: list[SpecRow] = []
+    remaining = list(free_rows)
+    pending = []
+    for spec in specs:
+        wanted = {"condenser_duty": graph.top_stage, "reboiler_duty": graph.bottom_stage}.get(spec.kind)
+        if wanted is not None:
+            if wanted not in remaining:
+                raise SpecError(f"{spec.key or spec.kind}: given twice")
+            remaining.remove(wanted)
+            rows.append(SpecRow(spec, wanted))
+        else:
+            pending.append(spec)
+    for spec, stage in zip(pending, remaining):
+        rows.append(SpecRow(spec, stage))
+    return tuple(rows)
+
+
+class MeshSystem:
+    """The MESH + specification equations of one column, ready for Newton's method."""
+
+    def __init__(
+        self,
+        graph: StageGraph,
+        thermo,
+        feeds: FeedData,
+        specs: Sequence[Spec],
+        component_names: Sequence[str],
+        *,
+        condenser_setting: CondenserSetting = CondenserSetting(),
+        flow_scale: float | None = None,
+        energy_scale: float | None = None,
+    ) -> None:
+        self.graph = graph
+        self.thermo = thermo
+        self.feeds = feeds
+        self.component_names = tuple(component_names)
+        self.c = len(self.component_names)
+        self.N = graph.stage_count
+        self.width = 2 * self.c + 1
+        self.size = self.N * self.width
+        self.spec_rows = assign_specs(graph, specs, self.component_names)
+        self.condenser_setting = condenser_setting
+        total_feed = float(feeds.component_flows.sum())
+        self.flow_scale = float(flow_scale or total_feed or 1.0)
+        self.energy_scale = float(energy_scale or thermo.cmo_latent_heat)
+        self.pressures = graph.pressures
+        self.efficiencies = graph.efficiencies
+        self.feed_flows = feeds.component_flows / self.flow_scale
+        self.feed_enthalpy = feeds.enthalpy_flows / (self.flow_scale * self.energy_scale)
+        self.liquid_draws = graph.liquid_draws / self.flow_scale
+        self.vapor_draws = graph.vapor_draws / self.flow_scale
+        self.fixed_duties = graph.fixed_duties / (self.flow_scale * self.energy_scale)
+        self.total_feed_by_component = self.feed_flows.sum(axis=0)
+        self.top = graph.top_stage
+        self.bottom = graph.bottom_stage
+        self.total_condenser = graph.condenser == "total"
+        self._build_patterns()
+
+    # ------------------------------------------------------------------ layout
+    def temperature_index(self) -> np.ndarray:
+        return np.arange(self.N) * self.width
+
+    def flow_mask(self) -> np.ndarray:
+        mask = np.ones(self.size, dtype=bool)
+        mask[self.temperature_index()] = False
+        return mask
+
+    def unpack(self, X: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """(T (N,) K, l (N,c), v (N,c)) in scaled flow units."""
+        block = X.reshape(self.N, self.width)
+        return block[:, 0], block[:, 1 : 1 + self.c], block[:, 1 + self.c :]
+
+    def pack(self, T: np.ndarray, l: np.ndarray, v: np.ndarray) -> np.ndarray:
+        return np.concatenate([np.asarray(T)[:, None], l, v], axis=1).ravel()
+
+    def variable_name(self, index: int) -> str:
+        stage, offset = divmod(int(index), self.width)
+        if offset == 0:
+            return f"temperature of stage {stage + 1}"
+        if offset <= self.c:
+            return f"liquid flow of {self.component_names[offset - 1]} leaving stage {stage + 1}"
+        return f"vapor flow of {self.component_names[offset - 1 - self.c]} leaving stage {stage + 1}"
+
+    def equation_name(self, index: int) -> str:
+        stage, offset = divmod(int(index), self.width)
+        if offset < self.c:
+            return f"balance of {self.component_names[offset]} on stage {stage + 1}"
+        if offset < 2 * self.c:
+            return f"equilibrium of {self.component_names[offset - self.c]} on stage {stage + 1}"
+        for row in self.spec_rows:
+            if row.stage == stage:
+                return f"specification {row.spec.key or row.spec.kind}"
+        return f"enthalpy balance of stage {stage + 1}"
+
+    def _build_patterns(self) -> None:
+        """Row and column indices of the dense blocks, computed once."""
+        w = self.width
+        local_rows, local_cols = np.meshgrid(np.arange(w), np.arange(w), indexing="ij")
+        stages = np.arange(self.N)
+        self._diag_rows = (stages[:, None, None] * w + local_rows[None]).ravel()
+        self._diag_cols = (stages[:, None, None] * w + local_cols[None]).ravel()
+        le = self.graph.liquid_edges
+        ve = self.graph.vapor_edges
+        self._liq_rows = (le[:, 1][:, None, None] * w + local_rows[None]).ravel()
+        self._liq_cols = (le[:, 0][:, None, None] * w + local_cols[None]).ravel()
+        self._vap_rows = (ve[:, 1][:, None, None] * w + local_rows[None]).ravel()
+        self._vap_cols = (ve[:, 0][:, None, None] * w + local_cols[None]).ravel()
+        replaced = [row.stage * w + 2 * self.c for row in self.spec_rows if row.spec.kind not in ("condenser_duty", "reboiler_duty")]
+        self._replaced_rows = np.array(replaced, dtype=int)
+
+    # ------------------------------------------------------------------ evaluation
+    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
+        c, N, w = self.c, self.N, self.width
+        T, l, v = self.unpack(X)
+        tiny = 1e-300
+        L = l.sum(axis=1)
+        V = v.sum(axis=1)
+        L_safe = np.maximum(L, tiny)
+        V_safe = np.maximum(V, tiny)
+        x = l / L_safe[:, None]
+        y = v / V_safe[:, None]
+        props = self.thermo.stage_properties(T, self.pressures, x, y)
+        K = props.k_values.K
+        dlnK_dT = props.k_values.d_ln_K_dT
+        dlnK_dx = props.k_values.d_ln_K_dx
+        hL, hV = props.liquid.molar.copy(), props.vapor.molar.copy()
+        dhL_dT, dhV_dT = props.liquid.d_dT.copy(), props.vapor.d_dT.copy()
+        gL, gV = props.liquid.d_dx.copy(), props.vapor.d_dx.copy()
+        t, b = self.top, self.bottom
+        if self.total_condenser:
+            distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1])
+            hV[t], dhV_dT[t], gV[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]
+
+        U, W = self.liquid_draws, self.vapor_draws
+        rU, rW = U / L_safe, W / V_safe
+        A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
+        liquid_in = A_L @ l
+        vapor_in = A_V @ v
+        V_in = vapor_in.sum(axis=1)
+        V_in_safe = np.maximum(V_in, tiny)
+        y_in = vapor_in / V_in_safe[:, None]
+        E = self.efficiencies
+
+        balance = l * (1 + rU)[:, None] + v * (1 + rW)[:, None] - liquid_in - vapor_in - self.feed_flows
+        equilibrium = y - E[:, None] * K * x - (1 - E)[:, None] * y_in
+        enthalpy_out = (L + U) * hL + (V + W) * hV
+        inv_es = 1.0 / self.energy_scale
+        energy = (enthalpy_out - A_L @ (L * hL) - A_V @ (V * hV)) * inv_es - self.feed_enthalpy - self.fixed_duties
+
+        condenser_extra = None
+        if self.total_condenser:
+            equilibrium[t, : c - 1] = y[t, : c - 1] - x[t, : c - 1]
+            setting = self.condenser_setting
+            if setting.reflux_temperature is not None:
+                equilibrium[t, c - 1] = (T[t] - setting.reflux_temperature) / TEMPERATURE_SCALE
+            else:
+                shift = setting.reflux_subcooling or 0.0
+                if shift:
+                    kv = self.thermo.k_values(T[t : t + 1] + shift, self.pressures[t : t + 1], x[t : t + 1])
+                    Kc, dKc_dT, dKc_dx = kv.K[0], kv.d_ln_K_dT[0], kv.d_ln_K_dx[0]
+                else:
+                    Kc, dKc_dT, dKc_dx = K[t], dlnK_dT[t], dlnK_dx[t]
+                S = float(Kc @ x[t])
+                equilibrium[t, c - 1] = np.log(S)
+                condenser_extra = (Kc, dKc_dT, dKc_dx, S)
+
+        residual_blocks = np.concatenate([balance, equilibrium, energy[:, None]], axis=1)
+        spec_values, spec_entries = self._spec_residuals(T, l, v, L_safe, V_safe, x, y, energy, jacobian)
+        for row, value in zip(self.spec_rows, spec_values):
+            residual_blocks[row.stage, 2 * c] = value
+        residuals = residual_blocks.ravel()
+        if not jacobian:
+            return Evaluation(residuals, None)
+
+        eye = np.eye(c)
+        # ---- diagonal blocks
+        Dg = np.zeros((N, w, w))
+        Dg[:, :c, 1 : 1 + c] = (1 + rU)[:, None, None] * eye - (rU[:, None] * x)[:, :, None]
+        Dg[:, :c, 1 + c :] = (1 + rW)[:, None, None] * eye - (rW[:, None] * y)[:, :, None]
+        EK = E[:, None] * K
+        Dg[:, c : 2 * c, 0] = -EK * x * dlnK_dT
+        G_x = np.einsum("nim,nm->ni", dlnK_dx, x)
+        Dg[:, c : 2 * c, 1 : 1 + c] = -(EK / L_safe[:, None])[:, :, None] * (
+            eye[None] - x[:, :, None] + x[:, :, None] * (dlnK_dx - G_x[:, :, None])
+        )
+        Dg[:, c : 2 * c, 1 + c :] = (eye[None] - y[:, :, None]) / V_safe[:, None, None]
+        Dg[:, 2 * c, 0] = ((L + U) * dhL_dT + (V + W) * dhV_dT) * inv_es
+        gLx = np.einsum("nk,nk->n", x, gL)
+        gVy = np.einsum("nk,nk->n", y, gV)
+        Dg[:, 2 * c, 1 : 1 + c] = (hL[:, None] + (1 + rU)[:, None] * (gL - gLx[:, None])) * inv_es
+        Dg[:, 2 * c, 1 + c :] = (hV[:, None] + (1 + rW)[:, None] * (gV - gVy[:, None])) * inv_es
+        if self.total_condenser:
+            Dg[t, c : 2 * c, :] = 0.0
+            Dg[t, c : 2 * c - 1, 1 : 1 + c] = -(eye[: c - 1] - x[t, : c - 1, None]) / L_safe[t]
+            Dg[t, c : 2 * c - 1, 1 + c :] = (eye[: c - 1] - y[t, : c - 1, None]) / V_safe[t]
+            if condenser_extra is None:
+                Dg[t, 2 * c - 1, 0] = 1.0 / TEMPERATURE_SCALE
+            else:
+                Kc, dKc_dT, dKc_dx, S = condenser_extra
+                Dg[t, 2 * c - 1, 0] = float(Kc @ (x[t] * dKc_dT)) / S
+                Gc = dKc_dx @ x[t]
+                Dg[t, 2 * c - 1, 1 : 1 + c] = (Kc - S + (x[t] * Kc) @ (dKc_dx - Gc[:, None])) / (S * L_safe[t])
+
+        # ---- liquid edges: stage k's liquid enters stage j
+        le = self.graph.liquid_edges
+        Lb = np.zeros((len(le), w, w))
+        if len(le):
+            src = le[:, 0]
+            Lb[:, :c, 1 : 1 + c] = -eye
+            Lb[:, 2 * c, 0] = -(L[src] * dhL_dT[src]) * inv_es
+            Lb[:, 2 * c, 1 : 1 + c] = -(hL[src, None] + gL[src] - gLx[src, None]) * inv_es
+        # ---- vapor edges: stage p's vapor enters stage j
+        ve = self.graph.vapor_edges
+        Vb = np.zeros((len(ve), w, w))
+        if len(ve):
+            src, dst = ve[:, 0], ve[:, 1]
+            Vb[:, :c, 1 + c :] = -eye
+            Vb[:, c : 2 * c, 1 + c :] = -((1 - E[dst]) / V_in_safe[dst])[:, None, None] * (eye[None] - y_in[dst][:, :, None])
+            Vb[:, 2 * c, 0] = -(V[src] * dhV_dT[src]) * inv_es
+            Vb[:, 2 * c, 1 + c :] = -(hV[src, None] + gV[src] - gVy[src, None]) * inv_es
+
+        rows = np.concatenate([self._diag_rows, self._liq_rows, self._vap_rows])
+        cols = np.concatenate([self._diag_cols, self._liq_cols, self._vap_cols])
+        vals = np.concatenate([Dg.ravel(), Lb.ravel(), Vb.ravel()])
+        if len(self._replaced_rows):
+            vals[np.isin(rows, self._replaced_rows)] = 0.0
+        if spec_entries:
+            spec_rows, spec_cols, spec_vals = (np.concatenate(part) for part in zip(*spec_entries))
+            rows = np.concatenate([rows, spec_rows])
+            cols = np.concatenate([cols, spec_cols])
+            vals = np.concatenate([vals, spec_vals])
+        keep = vals != 0.0
+        matrix = sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
+        return Evaluation(residuals, matrix)
+
+    # ------------------------------------------------------------------ specifications
+    def _spec_residuals(self, T, l, v, L, V, x, y, energy, jacobian):
+        """Residual of each spec row and its Jacobian entries (row, col, value arrays)."""
+        c, w = self.c, self.width
+        t, b = self.top, self.bottom
+        values, entries = [], []
+        flows = np.arange(c)
+        for row in self.spec_rows:
+            spec = row.spec
+            r = row.stage * w + 2 * c
+            kind = spec.kind
+            cols: np.ndarray
+            if kind == "reflux_ratio":
+                value = L[t] - spec.value * V[t]
+                cols = np.concatenate([t * w + 1 + flows, t * w + 1 + c + flows])
+                vals = np.concatenate([np.ones(c), np.full(c, -spec.value)])
+            elif kind == "boilup_ratio":
+                value = V[b] - spec.value * L[b]
+                cols = np.concatenate([b * w + 1 + c + flows, b * w + 1 + flows])
+                vals = np.concatenate([np.ones(c), np.full(c, -spec.value)])
+            elif kind == "distillate_rate":
+                value = V[t] - spec.value / self.flow_scale
+                cols, vals = t * w + 1 + c + flows, np.ones(c)
+            elif kind == "bottoms_rate":
+                value = L[b] - spec.value / self.flow_scale
+                cols, vals = b * w + 1 + flows, np.ones(c)
+            elif kind == "mole_fraction":
+                i = self.component_names.index(spec.component)
+                if spec.product == "distillate":
+                    value = y[t, i] - spec.value
+                    cols, vals = t * w + 1 + c + flows, (np.eye(c)[i] - y[t, i]) / V[t]
+                else:
+                    value = x[b, i] - spec.value
+                    cols, vals = b * w + 1 + flows, (np.eye(c)[i] - x[b, i]) / L[b]
+            elif kind == "recovery":
+                i = self.component_names.index(spec.component)
+                total = self.total_feed_by_component[i]
+                if total <= 0:
+                    raise SpecError(f"{spec.key}: there is no {spec.component} in the feed to recover")
+                if spec.product == "distillate":
+                    value = (v[t, i] - spec.value * total) / total
+                    cols, vals = np.array([t * w + 1 + c + i]), np.array([1.0 / total])
+                else:
+                    value = (l[b, i] - spec.value * total) / total
+                    cols, vals = np.array([b * w + 1 + i]), np.array([1.0 / total])
+            elif kind == "stage_temperature":
+                s = spec.stage - 1
+                value = (T[s] - spec.value) / TEMPERATURE_SCALE
+                cols, vals = np.array([s * w]), np.array([1.0 / TEMPERATURE_SCALE])
+            elif kind in ("condenser_duty", "reboiler_duty"):
+                value = energy[row.stage] - spec.value / (self.flow_scale * self.energy_scale)
+                cols, vals = np.array([], dtype=int), np.array([])
+            else:
+                raise SpecError(f"{spec.key or kind}: unknown specification kind {kind!r}")
+            values.append(value)
+            if jacobian and len(cols):
+                entries.append((np.full(len(cols), r), cols, vals))
+        return values, entries
+
+    # ------------------------------------------------------------------ after convergence
+    def stage_enthalpies(self, X: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(h_L, h_V) in J/mol of the streams in each stage's slots (the vapor slot of a total
+        condenser holds liquid distillate)."""
+        T, l, v = self.unpack(X)
+        x = l / np.maximum(l.sum(axis=1), 1e-300)[:, None]
+        y = v / np.maximum(v.sum(axis=1), 1e-300)[:, None]
+        hL = self.thermo.liquid_enthalpy(T, x).molar
+        hV = self.thermo.vapor_enthalpy(T, y).molar
+        if self.total_condenser:
+            t = self.top
+            hV = hV.copy()
+            hV[t] = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1]).molar[0]
+        return hL, hV
+
+    def stage_duties(self, X: np.ndarray) -> np.ndarray:
+        """Heat added to each stage (W) from its enthalpy balance; on stages other than the
+        condenser and reboiler it equals the fixed side duty."""
+        T, l, v = self.unpack(X)
+        L, V = l.sum(axis=1), v.sum(axis=1)
+        hL, hV = self.stage_enthalpies(X)
+        A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
+        out = (L + self.liquid_draws) * hL + (V + self.vapor_draws) * hV
+        net = out - A_L @ (L * hL) - A_V @ (V * hV) - self.feed_enthalpy * self.energy_scale
+        return net * self.flow_scale

@@ -1,0 +1,215 @@
+"""``simulate(case) -> Result``: the rigorous column solution, start to finish.
+
+case -> thermo package -> stage graph -> feeds (flashed) -> MESH system -> default start ->
+Newton -> independent post-check -> Result. A result is marked converged only when Newton
+met its tolerance *and* the post-check, which recomputes every stage's component balance,
+equilibrium relation, summation and enthalpy balance from the reported streams with freshly
+evaluated properties, passes.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from typing import Any
+
+import numpy as np
+
+from .case import Case
+from .errors import ConvergenceError, ThermoError
+from .initial import initial_estimate
+from .mesh import CondenserSetting, FeedData, MeshSystem
+from .network import StageGraph, build_stage_graph
+from .newton import NewtonOptions, solve
+from .results import Result, StageFeed
+from .thermo.flash import feed_state
+from .thermo.package import ThermoPackage
+
+POST_CHECK_TOLERANCE = 1e-7
+
+
+def case_summary(case: Case) -> dict[str, Any]:
+    """The normalized case (SI) as plain data, for the result file."""
+
+    def plain(value: Any) -> Any:
+        if dataclasses.is_dataclass(value):
+            return {f.name: plain(getattr(value, f.name)) for f in dataclasses.fields(value) if f.name != "raw"}
+        if isinstance(value, dict) or hasattr(value, "items"):
+            return {str(k): plain(v) for k, v in value.items()}
+        if isinstance(value, (list, tuple)):
+            return [plain(v) for v in value]
+        return value
+
+    return plain(case)
+
+
+def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[FeedData, list[dict], tuple]:
+    """Flash each feed at its own temperature (or vapor fraction) and pressure; the energy
+    balance takes its rigorous enthalpy, or ``(1 - q) lambda`` under the ``cmo`` model."""
+    N, c = graph.stage_count, len(case.component_names)
+    component_flows = np.zeros((N, c))
+    enthalpy_flows = np.zeros(N)
+    details: list[dict] = []
+    per_stage: list[list[StageFeed]] = [[] for _ in range(N)]
+    for feed in case.feeds:
+        stage = feed.stage - 1
+        stage_pressure = float(graph.pressures[stage])
+        pressure = feed.pressure if feed.pressure is not None else stage_pressure
+        state = feed_state(
+            thermo,
+            np.asarray(feed.composition),
+            pressure,
+            temperature=feed.temperature,
+            vapor_fraction=feed.vapor_fraction,
+            reference_pressure=stage_pressure,
+        )
+        if thermo.enthalpy_model == "cmo":
+            enthalpy = (1.0 - state.q) * thermo.cmo_latent_heat
+        else:
+            enthalpy = state.enthalpy
+        z = np.asarray(feed.composition, dtype=float)
+        component_flows[stage] += feed.flow * z
+        enthalpy_flows[stage] += feed.flow * enthalpy
+        details.append({"flow": feed.flow, "q": state.q})
+        per_stage[stage].append(
+            StageFeed(
+                flow=feed.flow, z=tuple(z.tolist()), h=enthalpy, name=feed.name,
+                temperature=state.temperature, pressure=pressure, vapor_fraction=state.vapor_fraction, q=state.q,
+            )
+        )
+    return FeedData(component_flows, enthalpy_flows), details, tuple(tuple(s) for s in per_stage)
+
+
+def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict[str, float]:
+    """Largest violation of each MESH equation group, recomputed from the reported streams."""
+    T, P = result.temperature, result.pressure
+    x, y = result.x, result.y
+    L, V = result.liquid_flow, result.vapor_flow
+    U, W = result.liquid_draw, result.vapor_draw
+    feeds = np.zeros_like(x)
+    feed_h = np.zeros(len(T))
+    for j, stage_feeds in enumerate(result.stage_feeds):
+        for feed in stage_feeds:
+            feeds[j] += feed.flow * np.asarray(feed.z)
+            feed_h[j] += feed.flow * feed.h
+    scale = max(float(feeds.sum()), 1e-300)
+    l, v = L[:, None] * x, V[:, None] * y
+    A_L, A_V = graph.liquid_inflow, graph.vapor_inflow
+    balance = l + U[:, None] * x + v + W[:, None] * y - A_L @ l - A_V @ v - feeds
+    K = thermo.k_values(T, P, x, derivatives=False).K
+    vapor_in = A_V @ v
+    V_in = vapor_in.sum(axis=1)
+    y_in = vapor_in / np.maximum(V_in, 1e-300)[:, None]
+    E = result.efficiency[:, None]
+    equilibrium = y - E * K * x - (1 - E) * y_in
+    if result.condenser == "total":
+        equilibrium[0] = y[0] - x[0]
+    h_L = thermo.liquid_enthalpy(T, x).molar
+    h_V = thermo.vapor_enthalpy(T, y).molar
+    if result.condenser == "total":
+        h_V = h_V.copy()
+        h_V[0] = thermo.liquid_enthalpy(T[:1], y[:1]).molar[0]
+    energy = (L + U) * h_L + (V + W) * h_V - A_L @ (L * h_L) - A_V @ (V * h_V) - feed_h - result.duty
+    energy_scale = scale * thermo.cmo_latent_heat
+    balances = result.balances()
+    return {
+        "component_balance_max": float(np.max(np.abs(balance)) / scale),
+        "equilibrium_max": float(np.max(np.abs(equilibrium[1:] if result.condenser == "total" else equilibrium))),
+        "summation_max": float(max(np.max(np.abs(x.sum(axis=1) - 1)), np.max(np.abs(y.sum(axis=1) - 1)))),
+        "enthalpy_balance_max": float(np.max(np.abs(energy)) / energy_scale),
+        "enthalpy_recomputed_max": float(
+            max(np.max(np.abs(h_L - result.h_liquid)), np.max(np.abs(h_V - result.h_vapor))) / thermo.cmo_latent_heat
+        ),
+        **balances,
+    }
+
+
+def build_system(case: Case, thermo: ThermoPackage | None = None):
+    """Everything up to the equations: (thermo, graph, system, per-feed details, stage feeds)."""
+    thermo = thermo or ThermoPackage.from_case(case)
+    graph = build_stage_graph(case)
+    feeds, details, stage_feeds = feed_data(case, thermo, graph)
+    system = MeshSystem(
+        graph,
+        thermo,
+        feeds,
+        case.specs,
+        case.component_names,
+        condenser_setting=CondenserSetting(case.column.reflux_temperature, case.column.reflux_subcooling),
+    )
+    return thermo, graph, system, details, stage_feeds
+
+
+def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) -> Result:
+    T, l, v = system.unpack(X)
+    fs = system.flow_scale
+    L, V = l.sum(axis=1), v.sum(axis=1)
+    x = l / np.maximum(L, 1e-300)[:, None]
+    y = v / np.maximum(V, 1e-300)[:, None]
+    K = thermo.k_values(T, graph.pressures, x, derivatives=False).K
+    h_L, h_V = system.stage_enthalpies(X)
+    duties = system.stage_duties(X)
+    return Result(
+        title=case.title,
+        case=case_summary(case),
+        converged=bool(newton.converged),
+        iterations=newton.iterations,
+        residual_norm=newton.residual_norm,
+        message=newton.message,
+        components=tuple(case.component_names),
+        roles=graph.roles,
+        temperature=T.copy(),
+        pressure=graph.pressures.copy(),
+        liquid_flow=L * fs,
+        vapor_flow=V * fs,
+        x=x,
+        y=y,
+        K=K,
+        h_liquid=h_L,
+        h_vapor=h_V,
+        efficiency=graph.efficiencies.copy(),
+        liquid_draw=graph.liquid_draws.copy(),
+        vapor_draw=graph.vapor_draws.copy(),
+        duty=duties,
+        stage_feeds=stage_feeds,
+        condenser=graph.condenser,
+        reboiler="partial" if graph.has_reboiler else "none",
+        thermo=thermo.describe(),
+        iteration_log=tuple(r.as_dict() for r in newton.log),
+        enthalpy_model=thermo.enthalpy_model,
+    )
+
+
+def simulate(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None, start: np.ndarray | None = None) -> Result:
+    """Solve the column of ``case`` rigorously. Always returns a Result; ``converged`` tells
+    whether it may be used. Raises :class:`ConvergenceError` only for NaN/inf (naming the
+    stage and variable), and :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for
+    bad input."""
+    thermo, graph, system, details, stage_feeds = build_system(case, thermo)
+    X0 = start if start is not None else initial_estimate(system, case.specs, details, graph.feed_stages)
+    newton = solve(
+        system.evaluate,
+        X0,
+        system.temperature_index(),
+        system.flow_mask(),
+        options or NewtonOptions(),
+        describe_variable=system.variable_name,
+        describe_equation=system.equation_name,
+    )
+    result = result_from_solution(case, thermo, graph, system, stage_feeds, newton.X, newton)
+    check = post_check(result, thermo, graph)
+    message = result.message
+    converged = result.converged
+    if converged:
+        failed = {k: v for k, v in check.items() if k != "enthalpy_recomputed_max" and not (v <= POST_CHECK_TOLERANCE)}
+        if failed:
+            converged = False
+            message = "Newton met its tolerance but the independent post-check failed: " + ", ".join(
+                f"{k} = {v:.3g}" for k, v in failed.items()
+            )
+    if converged:
+        try:
+            thermo.pure.check_temperature(result.temperature)
+        except ThermoError as exc:
+            converged = False
+            message = f"solution outside the property models' range: {exc}"
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check)

@@ -1,0 +1,279 @@
+"""The thermo package: K-values and phase enthalpies of a mixture, with their derivatives.
+
+Models (DESIGN.md, "Engine shape"):
+
+* K-values by the modified Raoult's law with an ideal vapor,
+  ``K_i = gamma_i(T, x) Psat_i(T) / P`` (e.g. Smith, Van Ness & Abbott, *Introduction to
+  Chemical Engineering Thermodynamics*, 7th ed., 2005, sec. 10.5).
+* Enthalpy reference: ideal gas at 298.15 K is zero for every component. Vapor (ideal gas
+  mixture): ``h_V = sum_i y_i h_ig,i(T)``. Liquid: ``h_L = sum_i x_i (h_ig,i(T) - dH_vap,i(T)) +
+  h_E(T, x)`` with the excess enthalpy from the activity model by Gibbs-Helmholtz.
+* ``enthalpy = "cmo"``: every component has the same constant molar latent heat ``lambda`` and
+  there is no sensible heat and no heat of mixing: ``h_V = lambda``, ``h_L = 0``. The energy
+  balances then give constant molar overflow exactly, which reproduces the operating-line
+  method. Feeds keep their thermal condition: a feed of thermal condition ``q`` (computed with
+  the rigorous model) enters with ``h_F = (1 - q) lambda``.
+
+All arrays are stage-major: temperatures ``(n,)``, compositions ``(n, c)``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+
+from ..case import Case
+from ..components import ComponentInfo, component_info
+from ..errors import CaseError
+from . import activity as activity_models
+from .pure import PureComponents
+
+GAS_CONSTANT = 8.314462618  # J/mol/K, CODATA 2018
+
+
+@dataclass(frozen=True)
+class KValues:
+    """K-values and derivatives: ``K (n,c)``, ``d_ln_K_dT (n,c)`` in 1/K and
+    ``d_ln_K_dx (n,c,c)`` with ``[s, i, k] = d ln K_i / d x_k`` (other x held fixed)."""
+
+    K: np.ndarray
+    d_ln_K_dT: np.ndarray
+    d_ln_K_dx: np.ndarray | None
+
+
+@dataclass(frozen=True)
+class PhaseEnthalpy:
+    """Molar enthalpy of a phase and its derivatives.
+
+    ``molar (n,)`` J/mol of mixture; ``d_dT (n,)`` J/mol/K; ``d_dx (n,c)`` J/mol, partials with
+    the other mole fractions held fixed; ``pure (n,c)`` the pure-component molar enthalpies in
+    that phase (without mixing terms) and ``excess (n,)`` the excess enthalpy."""
+
+    molar: np.ndarray
+    d_dT: np.ndarray
+    d_dx: np.ndarray
+    pure: np.ndarray
+    excess: np.ndarray
+
+
+def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None):
+    """Build the case's activity model, with parameter matrices in the component order."""
+    options = case.thermo
+    count = len(names)
+    if options.liquid == "ideal":
+        return activity_models.IdealSolution(count)
+    index = {name: position for position, name in enumerate(names)}
+    a, b, e, f = (np.zeros((count, count)) for _ in range(4))
+    alpha_c = np.zeros((count, count))
+    alpha_d = np.zeros((count, count))
+    for pair in options.pairs:
+        if pair.model != options.liquid:
+            continue
+        i, j = index[pair.first], index[pair.second]
+        for matrix, values in ((a, pair.a), (b, pair.b), (e, pair.e), (f, pair.f)):
+            matrix[i, j], matrix[j, i] = values
+        alpha_c[i, j] = alpha_c[j, i] = pair.alpha_c
+        alpha_d[i, j] = alpha_d[j, i] = pair.alpha_d
+    if options.liquid == "nrtl":
+        # a pair without parameters is ideal (tau = 0); alpha then does not matter but must be finite
+        alpha_c = np.where(alpha_c == 0.0, 0.3, alpha_c)
+        np.fill_diagonal(alpha_c, 0.0)
+        return activity_models.NRTL(a, b, e, f, alpha_c=alpha_c, alpha_d=alpha_d)
+    if options.liquid == "wilson":
+        return activity_models.Wilson(a, b, e, f)
+    if options.liquid == "uniquac":
+        missing = [name for name in names if name not in options.uniquac_structure]
+        if missing:
+            raise CaseError(
+                "UNIQUAC needs the structure parameters r and q of every component",
+                file=case.source_file,
+                key="thermo.uniquac_structure",
+                value=", ".join(missing),
+                expected="NAME = { r = ..., q = ... } for each component",
+            )
+        r = np.array([options.uniquac_structure[name][0] for name in names])
+        q = np.array([options.uniquac_structure[name][1] for name in names])
+        return activity_models.UNIQUAC(a, b, e, f, r=r, q=q)
+    raise CaseError("unknown liquid model", file=case.source_file, key="thermo.liquid", value=options.liquid)
+
+
+class ThermoPackage:
+    """K-values and phase enthalpies of one mixture, vectorized over stages.
+
+    Holds the pure-component fits and the activity model built once per run.
+    """
+
+    def __init__(
+        self,
+        pure: PureComponents,
+        activity,
+        *,
+        enthalpy: str = "rigorous",
+        cmo_latent_heat: float | None = None,
+        description: dict | None = None,
+    ) -> None:
+        if enthalpy not in ("rigorous", "cmo"):
+            raise ValueError(f"enthalpy must be 'rigorous' or 'cmo', not {enthalpy!r}")
+        self.pure = pure
+        self.activity = activity
+        self.enthalpy_model = enthalpy
+        self.names = tuple(pure.names)
+        self.component_count = len(self.names)
+        if cmo_latent_heat is None:
+            cmo_latent_heat = self.reference_latent_heat()
+        self.cmo_latent_heat = float(cmo_latent_heat)
+        self._description = description or {}
+
+    # ------------------------------------------------------------------ construction
+    @classmethod
+    def from_case(cls, case: Case) -> "ThermoPackage":
+        infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
+        pure = PureComponents(infos, case.component_data)
+        activity = _activity_model(case, case.component_names, None)
+        description = {
+            "liquid": case.thermo.liquid,
+            "vapor": case.thermo.vapor,
+            "enthalpy": case.thermo.enthalpy,
+            "k_value_model": "modified Raoult's law, ideal vapor: K_i = gamma_i Psat_i / P",
+            "enthalpy_reference": "ideal gas at 298.15 K = 0 for every component",
+            "pairs": [
+                {
+                    "model": pair.model,
+                    "i": pair.first,
+                    "j": pair.second,
+                    "a": list(pair.a),
+                    "b_K": list(pair.b),
+                    "e": list(pair.e),
+                    "f_per_K": list(pair.f),
+                    "alpha_c": pair.alpha_c,
+                    "alpha_d_per_K": pair.alpha_d,
+                    "as_written": dict(pair.energy_form),
+                    "source": pair.source,
+                }
+                for pair in case.thermo.pairs
+            ],
+            "uniquac_structure": {name: list(rq) for name, rq in case.thermo.uniquac_structure.items()},
+        }
+        return cls(pure, activity, enthalpy=case.thermo.enthalpy, description=description)
+
+    def describe(self) -> dict:
+        """Every model and parameter used, with sources, for the result file."""
+        out = dict(self._description)
+        out["enthalpy"] = self.enthalpy_model
+        out["components"] = self.pure.describe()
+        out["activity_parameters"] = self.activity.describe()
+        if self.enthalpy_model == "cmo":
+            out["cmo_latent_heat_J_per_mol"] = self.cmo_latent_heat
+        return out
+
+    def reference_latent_heat(self) -> float:
+        """Mean of the pure-component heats of vaporization at their normal boiling points
+        (J/mol); the constant molar latent heat of the ``cmo`` enthalpy model."""
+        boiling = np.asarray(self.pure.normal_boiling_point, dtype=float)
+        values = np.array(
+            [self.pure.heat_of_vaporization(np.array([tb]))[0][0, i] for i, tb in enumerate(boiling)]
+        )
+        return float(np.mean(values))
+
+    # ------------------------------------------------------------------ equilibrium
+    def k_values(self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, derivatives: bool = True) -> KValues:
+        """Modified Raoult's law K-values at ``temperature (n,)`` K, ``pressure (n,)`` Pa and
+        liquid composition ``x (n,c)``."""
+        temperature = np.asarray(temperature, dtype=float)
+        pressure = np.asarray(pressure, dtype=float)
+        ln_psat, d_ln_psat_dT = self.pure.ln_vapor_pressure(temperature)
+        act = self.activity.evaluate(temperature, x, derivatives=derivatives)
+        ln_k = act.ln_gamma + ln_psat - np.log(pressure)[:, None]
+        K = np.exp(ln_k)
+        if not derivatives:
+            return KValues(K, d_ln_psat_dT, None)
+        return KValues(K, act.d_ln_gamma_dT + d_ln_psat_dT, act.d_ln_gamma_dx)
+
+    def ln_gamma(self, temperature: np.ndarray, x: np.ndarray) -> np.ndarray:
+        return self.activity.evaluate(np.asarray(temperature, dtype=float), x, derivatives=False).ln_gamma
+
+    # ------------------------------------------------------------------ enthalpies
+    def vapor_enthalpy(self, temperature: np.ndarray, y: np.ndarray, model: str | None = None) -> PhaseEnthalpy:
+        """Ideal-gas mixture enthalpy (J/mol) of vapor of composition ``y (n,c)``; ``model``
+        overrides the package's enthalpy model ("rigorous" | "cmo")."""
+        temperature = np.asarray(temperature, dtype=float)
+        y = np.asarray(y, dtype=float)
+        n = temperature.shape[0]
+        zero = np.zeros(n)
+        if (model or self.enthalpy_model) == "cmo":
+            pure = np.full((n, self.component_count), self.cmo_latent_heat)
+            return PhaseEnthalpy(np.einsum("nc,nc->n", y, pure), zero, pure, pure, zero)
+        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
+        return PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
+
+    def liquid_enthalpy(self, temperature: np.ndarray, x: np.ndarray, model: str | None = None) -> PhaseEnthalpy:
+        """Liquid mixture enthalpy (J/mol): ideal gas minus heat of vaporization, plus the
+        excess enthalpy of the activity model; ``model`` overrides the enthalpy model."""
+        temperature = np.asarray(temperature, dtype=float)
+        x = np.asarray(x, dtype=float)
+        n = temperature.shape[0]
+        zero = np.zeros(n)
+        if (model or self.enthalpy_model) == "cmo":
+            pure = np.zeros((n, self.component_count))
+            return PhaseEnthalpy(zero, zero, pure, pure, zero)
+        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
+        dh_vap, d_dh_vap_dT = self.pure.heat_of_vaporization(temperature)
+        pure = h_ig - dh_vap
+        d_pure_dT = cp - d_dh_vap_dT
+        act = self.activity.evaluate(temperature, x, derivatives=True)
+        molar = np.einsum("nc,nc->n", x, pure) + act.excess_enthalpy
+        d_dT = np.einsum("nc,nc->n", x, d_pure_dT) + act.d_excess_enthalpy_dT
+        d_dx = pure + act.d_excess_enthalpy_dx
+        return PhaseEnthalpy(molar, d_dT, d_dx, pure, act.excess_enthalpy)
+
+    def rigorous_enthalpies(self, temperature: np.ndarray, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(h_L, h_V) with the rigorous model whatever ``enthalpy`` is set to: the thermal
+        condition of a feed is always judged with real enthalpies."""
+        return (
+            self.liquid_enthalpy(temperature, x, model="rigorous").molar,
+            self.vapor_enthalpy(temperature, y, model="rigorous").molar,
+        )
+
+    # ------------------------------------------------------------------ everything a stage needs
+    def stage_properties(
+        self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, y: np.ndarray
+    ) -> "StageProperties":
+        """K-values, liquid and vapor enthalpies and all their derivatives at once (the activity
+        model is evaluated a single time). Shapes: ``temperature, pressure (n,)``, ``x, y (n,c)``."""
+        temperature = np.asarray(temperature, dtype=float)
+        pressure = np.asarray(pressure, dtype=float)
+        n = temperature.shape[0]
+        zero = np.zeros(n)
+        ln_psat, d_ln_psat_dT = self.pure.ln_vapor_pressure(temperature)
+        act = self.activity.evaluate(temperature, x, derivatives=True)
+        K = np.exp(act.ln_gamma + ln_psat - np.log(pressure)[:, None])
+        k_values = KValues(K, act.d_ln_gamma_dT + d_ln_psat_dT, act.d_ln_gamma_dx)
+        if self.enthalpy_model == "cmo":
+            vapor_pure = np.full((n, self.component_count), self.cmo_latent_heat)
+            liquid_pure = np.zeros((n, self.component_count))
+            vapor = PhaseEnthalpy(y @ vapor_pure[0], zero, vapor_pure, vapor_pure, zero)
+            liquid = PhaseEnthalpy(zero, zero, liquid_pure, liquid_pure, zero)
+            return StageProperties(k_values, liquid, vapor)
+        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
+        dh_vap, d_dh_vap_dT = self.pure.heat_of_vaporization(temperature)
+        vapor = PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
+        liquid_pure = h_ig - dh_vap
+        liquid = PhaseEnthalpy(
+            np.einsum("nc,nc->n", x, liquid_pure) + act.excess_enthalpy,
+            np.einsum("nc,nc->n", x, cp - d_dh_vap_dT) + act.d_excess_enthalpy_dT,
+            liquid_pure + act.d_excess_enthalpy_dx,
+            liquid_pure,
+            act.excess_enthalpy,
+        )
+        return StageProperties(k_values, liquid, vapor)
+
+
+@dataclass(frozen=True)
+class StageProperties:
+    """What the MESH equations need of the thermo package on every stage."""
+
+    k_values: KValues
+    liquid: PhaseEnthalpy
+    vapor: PhaseEnthalpy

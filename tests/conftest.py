@@ -1,0 +1,69 @@
+"""Shared helpers for the tests: small cases written inline as TOML."""
+
+from __future__ import annotations
+
+import textwrap
+
+import pytest
+
+from solver.case import loads_case
+
+
+def case_from_text(text: str, name: str = "<test case>"):
+    return loads_case(textwrap.dedent(text), source_file=name)
+
+
+BINARY_NRTL = """
+title = "methanol-water test column"
+[components]
+names = ["methanol", "water"]
+[thermo]
+liquid = "nrtl"
+enthalpy = "{enthalpy}"
+[thermo.nrtl.methanol.water]
+dg = ["-253.88 cal/mol", "845.21 cal/mol"]
+alpha = 0.2994
+source = "Smith, Van Ness & Abbott, 7th ed., Table 12.5"
+[column]
+stages = {stages}
+condenser = "{condenser}"
+reboiler = "partial"
+pressure.top = "101.325 kPa"
+pressure.drop_per_stage = "0.5 kPa"
+efficiency = {efficiency}
+[[feeds]]
+stage = {feed_stage}
+flow = "100 kmol/h"
+composition = {{ methanol = 0.35, water = 0.65 }}
+temperature = "{feed_temperature}"
+[specs]
+{specs}
+"""
+
+
+def methanol_water_case(
+    *,
+    enthalpy: str = "rigorous",
+    stages: int = 12,
+    condenser: str = "total",
+    efficiency: float = 1.0,
+    feed_stage: int = 7,
+    feed_temperature: str = "65 degC",
+    specs: str = 'reflux_ratio = 1.4\nbottoms = { water = 0.995 }',
+):
+    return case_from_text(
+        BINARY_NRTL.format(
+            enthalpy=enthalpy,
+            stages=stages,
+            condenser=condenser,
+            efficiency=efficiency,
+            feed_stage=feed_stage,
+            feed_temperature=feed_temperature,
+            specs=specs,
+        )
+    )
+
+
+@pytest.fixture
+def make_case():
+    return case_from_text

@@ -20,6 +20,7 @@ from __future__ import annotations
 import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
+from scipy.optimize import brentq
 from scipy.special import expit
 
 from .case import Spec
@@ -28,7 +29,7 @@ from .mesh import MeshSystem
 from .thermo.flash import bubble_temperature
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
-_WANG_HENKE_SWEEPS = 12
+_WANG_HENKE_SWEEPS = 60  # at most; the sweeps stop when no temperature moves by 1e-3 K
 
 
 def fenske_split(feed_flows: np.ndarray, ln_alpha: np.ndarray, distillate: float, exponent: float) -> np.ndarray:
@@ -57,7 +58,9 @@ def _spec_error(spec: Spec, top: np.ndarray, bottom: np.ndarray, feed: np.ndarra
 
 
 def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.ndarray, feed_totals: np.ndarray, ln_alpha: np.ndarray):
-    """Overhead rate D (scaled), top vapor rate V_top (scaled) and product component flows."""
+    """Overhead rate D (scaled), the function giving the top vapor rate V_top for a D (both
+    scaled), the estimated overhead component flows, and whether D may still be moved to meet
+    a composition spec."""
     feed = system.total_feed_by_component
     F_net = float(feed.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
     vapor_in_feeds = float(np.sum((1.0 - np.clip(q_values, -1.0, 2.0)) * feed_totals))
@@ -80,6 +83,7 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
             energy_relations.append((abs(value) / (latent * system.flow_scale), 0.0))
         elif spec.kind == "reboiler_duty":
             energy_relations.append((value / (latent * system.flow_scale) + vapor_in_feeds, 0.0))
+    D_fixed = D
     composition_specs = [s for s in specs if s.kind in _COMPOSITION_SPECS]
     if D is None and composition_specs:
         grid = np.linspace(0.002, 0.998, 499) * F_net
@@ -96,16 +100,20 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
         # one energy spec and nothing that fixes D, or an absorber: split the feed by volatility
         D = max(vapor_in_feeds, 0.5 * F_net) if system.graph.condenser != "none" else max(vapor_in_feeds, 0.3 * F_net)
     D = float(np.clip(D, 0.01 * F_net, 0.99 * F_net))
-    if energy_relations:
-        a, b = energy_relations[0]
-        V_top = a + b * D
-    else:
-        V_top = 3.0 * D  # common practice: a reflux ratio of about 2 as a first guess
-    if system.graph.condenser == "none":
-        V_top = D
-    V_top = float(max(V_top, 1.05 * D))
+
+    def top_vapor(D: float) -> float:
+        if system.graph.condenser == "none":
+            return D
+        if energy_relations:
+            a, b = energy_relations[0]
+            value = a + b * D
+        else:
+            value = 3.0 * D  # common practice: a reflux ratio of about 2 as a first guess
+        return float(max(value, 1.05 * D))
+
     top = fenske_split(feed, ln_alpha, D, exponent)
-    return D, V_top, top
+    adjustable = D_fixed is None and len(energy_relations) < 2
+    return D, top_vapor, top, adjustable
 
 
 def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.ndarray, stage_q: np.ndarray):
@@ -143,14 +151,13 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
     K_feed = thermo.k_values(t_feed, np.array([mean_pressure]), z_total[None, :], derivatives=False).K[0]
     ln_alpha = np.log(K_feed) - np.log(np.exp(np.sum(z_total * np.log(K_feed))))
 
-    D, V_top, top = estimate_split(system, specs, q_values, feed_totals, ln_alpha)
+    D, top_vapor, top, adjustable = estimate_split(system, specs, q_values, feed_totals, ln_alpha)
     bottom = system.total_feed_by_component - top
     stage_feed_totals = np.zeros(N)
     stage_vapor = np.zeros(N)
     np.add.at(stage_feed_totals, feed_stage_index, feed_totals)
     np.add.at(stage_vapor, feed_stage_index, feed_totals * (1.0 - np.clip(q_values, -1.0, 2.0)))
     stage_q = np.where(stage_feed_totals > 0, 1.0 - stage_vapor / np.maximum(stage_feed_totals, 1e-300), 1.0)
-    L, V = cmo_flows(system, D, V_top, stage_feed_totals, stage_q)
 
     # temperatures between the bubble points of the estimated products
     x_top = top / top.sum()
@@ -165,10 +172,51 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
     except ThermoError:
         pass
 
+    state = {"T": T, "x": x}
+
+    def profile(D: float):
+        L, V = cmo_flows(system, D, top_vapor(D), stage_feed_totals, stage_q)
+        T, x, l, stripping = wang_henke_sweeps(system, L, V, state["T"], state["x"])
+        state["T"], state["x"] = T, x
+        return L, V, T, x, l, stripping
+
+    L, V, T, x, l, stripping = profile(D)
+    composition_specs = [spec for spec in specs if spec.kind in _COMPOSITION_SPECS]
+    if adjustable and composition_specs:
+        D = _meet_composition_spec(system, composition_specs[0], D, profile)
+        L, V, T, x, l, stripping = profile(D)
+
+    t = system.top
+    if np.all(l.sum(axis=1) <= 2.0 * L):
+        # the component flows of the last sweep satisfy the component balances with v = S l
+        l_flows = l
+        v_flows = stripping * l
+    else:
+        # where an intermediate component accumulates between the sections the raw flows of a
+        # sweep run far off scale: keep the compositions, with the CMO totals
+        y = stripping * x
+        y = y / y.sum(axis=1, keepdims=True)
+        l_flows = L[:, None] * x
+        v_flows = V[:, None] * y
+    if system.total_condenser:
+        setting = system.condenser_setting
+        if setting.reflux_temperature is not None:
+            T[t] = setting.reflux_temperature
+        elif setting.reflux_subcooling:
+            T[t] = T[t] - setting.reflux_subcooling
+    return system.pack(T, l_flows, v_flows)
+
+
+def wang_henke_sweeps(system: MeshSystem, L: np.ndarray, V: np.ndarray, T: np.ndarray, x: np.ndarray):
+    """Bubble-point sweeps at fixed total flows until no temperature moves by 1e-3 K.
+    Returns (T, x, component liquid flows l, stripping factors S with v = S l)."""
+    thermo = system.thermo
+    N, c = system.N, system.c
     A_L = system.graph.liquid_inflow
     A_V = system.graph.vapor_inflow
     U, W = system.liquid_draws, system.vapor_draws
     t = system.top
+    T = T.copy()
     for _ in range(_WANG_HENKE_SWEEPS):
         K = thermo.k_values(T, system.pressures, x, derivatives=False).K
         stripping = K * (V / L)[:, None]
@@ -178,23 +226,64 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
         for i in range(c):
             diagonal = sp.diags(1.0 + U / L + stripping[:, i] * (1.0 + W / V))
             matrix = (diagonal - A_L - A_V @ sp.diags(stripping[:, i])).tocsc()
-            l[:, i] = spla.spsolve(matrix, system.feed_flows[:, i])
-        l = np.maximum(l, 1e-16 * fs / fs)
+            # natural ordering keeps the elimination in stage order, where the column-wise
+            # diagonal dominance of these matrices makes it stable
+            l[:, i] = spla.spsolve(matrix, system.feed_flows[:, i], permc_spec="NATURAL")
+        l = np.maximum(l, 1e-30)
         x = l / l.sum(axis=1, keepdims=True)
         try:
-            T, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
+            T_new, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
         except ThermoError:
-            pass
+            break
+        moved = float(np.max(np.abs(T_new - T)))
+        T = T_new
+        if moved < 1e-3:
+            break
     K = thermo.k_values(T, system.pressures, x, derivatives=False).K
-    y = K * x
-    y = y / y.sum(axis=1, keepdims=True)
+    stripping = K * (V / L)[:, None]
     if system.total_condenser:
-        y[t] = x[t]
-        setting = system.condenser_setting
-        if setting.reflux_temperature is not None:
-            T[t] = setting.reflux_temperature
-        elif setting.reflux_subcooling:
-            T[t] = T[t] - setting.reflux_subcooling
-    l_flows = L[:, None] * x
-    v_flows = V[:, None] * y
-    return system.pack(T, l_flows, v_flows)
+        stripping[t] = V[t] / L[t]
+    return T, x, l, stripping
+
+
+def _meet_composition_spec(system: MeshSystem, spec: Spec, D: float, profile) -> float:
+    """Move the overhead rate so that the CMO profile meets a product composition or recovery
+    spec (Brent's method, Brent 1973, on a bracket found by stepping out from D)."""
+    feed = system.total_feed_by_component
+    F_net = float(feed.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
+
+    def error(D: float) -> float:
+        L, V, T, x, l, stripping = profile(D)
+        top = stripping[system.top] * l[system.top]
+        bottom = l[system.bottom]
+        return _spec_error(spec, top, bottom, feed, system.component_names)
+
+    low, high = 0.01 * F_net, 0.99 * F_net
+    value = error(D)
+    if not np.isfinite(value) or value == 0.0:
+        return D
+    probe = float(np.clip(D * 1.02, low, high))
+    probe_value = error(probe)
+    if np.isfinite(probe_value) and np.sign(probe_value) != np.sign(value):
+        return _bracketed(error, D, probe, F_net, D)
+    # walk in the direction in which the error shrinks, widening the step, until it changes sign
+    direction = 1.0 if np.isfinite(probe_value) and abs(probe_value) < abs(value) else -1.0
+    a, fa = D, value
+    step = 0.05 * D
+    for _ in range(14):
+        b = float(np.clip(a + direction * step, low, high))
+        fb = error(b)
+        if np.isfinite(fb) and np.sign(fb) != np.sign(fa):
+            return _bracketed(error, a, b, F_net, D)
+        if b in (low, high) or not np.isfinite(fb):
+            return D
+        a, fa = b, fb
+        step *= 1.6
+    return D
+
+
+def _bracketed(error, a: float, b: float, F_net: float, fallback: float) -> float:
+    try:
+        return float(brentq(error, min(a, b), max(a, b), xtol=1e-6 * F_net, maxiter=40))
+    except (ValueError, RuntimeError):
+        return fallback

@@ -2,9 +2,11 @@
 
 Each iteration solves ``J dX = -F`` with a sparse LU factorization (SuperLU through
 ``scipy.sparse.linalg.splu``), limits the step so that no temperature moves by more than
-``max_temperature_step`` and no flow turns negative, then halves the step until the sum of
-squared scaled residuals falls by the Armijo condition (Dennis & Schnabel, *Numerical Methods
-for Unconstrained Optimization and Nonlinear Equations*, 1983, sec. 6.3).
+``max_temperature_step``, moves shrinking flows multiplicatively so that none turns negative
+(:func:`take_step`), then halves the step until the sum of squared scaled residuals falls by
+the Armijo condition (Dennis & Schnabel, *Numerical Methods for Unconstrained Optimization and
+Nonlinear Equations*, 1983, sec. 6.3), measured against the largest of the last few merits
+(the non-monotone rule of Grippo, Lampariello & Lucidi, SIAM J. Numer. Anal. 23 (1986) 707).
 
 Convergence criterion: the largest scaled residual is at most ``tolerance`` (default 1e-9:
 component balances in fractions of the total feed, equilibrium relations in mole fraction,
@@ -27,9 +29,11 @@ class NewtonOptions:
     tolerance: float = 1e-9
     max_iterations: int = 60
     max_temperature_step: float = 20.0  # K
-    min_flow_fraction: float = 0.02  # a flow may shrink to this fraction of its value in one step
     armijo: float = 1e-4
-    max_halvings: int = 12
+    max_halvings: int = 8
+    nonmonotone_memory: int = 4  # compare with the largest merit of this many past iterations
+    temperature_scale: float = 10.0  # K that count as much as a flow equal to the total feed
+    max_path_halvings: int = 30
 
 
 @dataclass(frozen=True)
@@ -59,6 +63,65 @@ class NewtonResult:
     message: str = ""
 
 
+def take_step(X: np.ndarray, step: np.ndarray, damping: float, flow_mask: np.ndarray) -> np.ndarray:
+    """``X + damping * step``, except that a flow being reduced moves along ``l exp(dl / l)``:
+    to first order the same step, but a flow can never reach zero or turn negative, and a
+    trace component may fall by orders of magnitude in one step (Newton's method in the
+    logarithm of the shrinking flows)."""
+    trial = X + damping * step
+    flows = X[flow_mask]
+    change = damping * step[flow_mask]
+    shrinking = (change < 0) & (flows > 0)
+    updated = trial[flow_mask]
+    with np.errstate(over="ignore", under="ignore"):
+        updated[shrinking] = flows[shrinking] * np.exp(change[shrinking] / flows[shrinking])
+    updated = np.maximum(updated, 0.0)
+    trial[flow_mask] = updated
+    return trial
+
+
+def dogleg_search(evaluate, X, current, newton_step, scale, flow_mask, merit, options: NewtonOptions):
+    """Fallback when no fraction of the Newton step lowers the residuals: backtrack along
+    Powell's dogleg path (Powell 1970, in *Numerical Methods for Nonlinear Algebraic
+    Equations*, ed. Rabinowitz) from the Newton point towards the Cauchy point of steepest
+    descent and below it, in variables scaled by ``scale``, halving the radius until the
+    residuals fall (Armijo on the predicted decrease). Returns (X, evaluation, fraction of the
+    Newton step length) or None."""
+    J = current.jacobian
+    F = current.residuals
+    gradient = J.T @ F  # gradient of 0.5 |F|^2 in X
+    scaled_gradient = gradient / scale
+    direction = -scaled_gradient / scale  # steepest descent of the scaled problem, in X
+    curvature = J @ direction
+    denominator = float(curvature @ curvature)
+    if denominator <= 0 or not np.isfinite(denominator):
+        return None
+    cauchy = direction * (float(scaled_gradient @ scaled_gradient) / denominator)
+    newton_length = float(np.linalg.norm(newton_step * scale))
+    cauchy_length = float(np.linalg.norm(cauchy * scale))
+    radius = min(newton_length, cauchy_length) if newton_length > 0 else cauchy_length
+    for _ in range(options.max_path_halvings):
+        if radius >= cauchy_length:
+            # on the segment from the Cauchy point to the Newton point
+            a = (newton_step - cauchy) * scale
+            b = cauchy * scale
+            aa, ab, bb = float(a @ a), float(a @ b), float(b @ b)
+            t = 0.0 if aa == 0 else (-ab + np.sqrt(max(ab * ab - aa * (bb - radius * radius), 0.0))) / aa
+            step = cauchy + min(max(t, 0.0), 1.0) * (newton_step - cauchy)
+        else:
+            step = cauchy * (radius / cauchy_length)
+        predicted = merit - 0.5 * float(np.sum((F + J @ step) ** 2))
+        trial = take_step(X, step, 1.0, flow_mask)
+        candidate = evaluate(trial, False)
+        if np.all(np.isfinite(candidate.residuals)) and predicted > 0:
+            trial_merit = 0.5 * float(candidate.residuals @ candidate.residuals)
+            if merit - trial_merit >= options.armijo * predicted:
+                fraction = radius / newton_length if newton_length > 0 else 0.0
+                return trial, candidate, fraction
+        radius *= 0.5
+    return None
+
+
 def solve(
     evaluate: Callable,
     X0: np.ndarray,
@@ -85,6 +148,9 @@ def solve(
                 iteration_log=[r.as_dict() for r in log],
             )
 
+    history: list[float] = []
+    scale = np.ones_like(X)
+    scale[temperature_index] = 1.0 / options.temperature_scale
     check_finite(X, "the starting estimate", describe_variable)
     current = evaluate(X, True)
     check_finite(current.residuals, "a residual of the starting estimate", describe_equation)
@@ -109,38 +175,30 @@ def solve(
         largest_dT = float(np.max(np.abs(step[temperature_index]))) if len(temperature_index) else 0.0
         if largest_dT > options.max_temperature_step:
             damping = options.max_temperature_step / largest_dT
-        flows = X[flow_mask]
-        flow_steps = step[flow_mask]
-        shrinking = flow_steps < 0
-        if np.any(shrinking):
-            # keep every flow above min_flow_fraction of its value (fraction to the boundary)
-            limits = (1.0 - options.min_flow_fraction) * flows[shrinking] / -flow_steps[shrinking]
-            positive = flows[shrinking] > 0
-            if np.any(positive):
-                damping = min(damping, float(np.min(limits[positive])))
         merit = 0.5 * float(current.residuals @ current.residuals)
+        history.append(merit)
+        reference = max(history[-options.nonmonotone_memory :])
         accepted = None
         trial_damping = damping
-        for _ in range(options.max_halvings + 1):
-            trial = X + trial_damping * step
-            trial[flow_mask] = np.maximum(trial[flow_mask], 0.0)
-            candidate = evaluate(trial, True)
+        for halving in range(options.max_halvings + 1):
+            trial = take_step(X, step, trial_damping, flow_mask)
+            candidate = evaluate(trial, halving == 0)
             if np.all(np.isfinite(candidate.residuals)):
                 trial_merit = 0.5 * float(candidate.residuals @ candidate.residuals)
-                if trial_merit <= (1.0 - 2.0 * options.armijo * trial_damping) * merit:
+                if trial_merit <= reference - 2.0 * options.armijo * trial_damping * merit:
                     accepted = (trial, candidate, trial_damping)
                     break
             trial_damping *= 0.5
         if accepted is None:
-            # no decrease along the Newton direction: take the shortest trial step if finite,
-            # so that the iteration can leave a saddle; the log shows it
-            if np.all(np.isfinite(candidate.residuals)):
-                accepted = (trial, candidate, trial_damping)
-            else:
+            accepted = dogleg_search(evaluate, X, current, step, scale, flow_mask, merit, options)
+            if accepted is None:
                 return NewtonResult(
                     X, current.residuals, False, iteration - 1, norm, tuple(log),
-                    "the line search found no finite point along the Newton step",
+                    "neither the Newton step nor the steepest-descent path lowers the residuals "
+                    f"(largest residual {norm:.3g} in the {describe_equation(int(np.argmax(np.abs(current.residuals))))})",
                 )
+        if accepted[1].jacobian is None:
+            accepted = (accepted[0], evaluate(accepted[0], True), accepted[2])
         X_new, current, used = accepted
         step_norm = float(np.max(np.abs(X_new - X)))
         X = X_new

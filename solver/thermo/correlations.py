@@ -20,8 +20,8 @@ coefficients were fitted in. The forms and their published sources:
     capacity of Aly, F. A. and Lee, L. L. (1981), Fluid Phase Equilibria 6, 169-179; DIPPR 801
     equation 107.
 ``watson``
-    ``dH = value ((Tc - T)/(Tc - at))^n`` with ``n = 0.38`` unless given (coefficient ``n``);
-    Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
+    ``dH = value ((Tc - T)/(Tc - at))^n`` with ``n = 0.38`` unless given (coefficient
+    ``exponent``, or ``n``); Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
 ``dippr106``
     ``Y = A (1 - Tr)^(B + C Tr + D Tr^2 + E Tr^3)`` with ``Tr = T/Tc``; DIPPR 801 equation 106.
 ``dippr105``
@@ -57,7 +57,7 @@ FORMS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "dippr101": (("A", "B"), ("C", "D", "E")),
     "polynomial": ((), ()),  # c0, c1, ... checked separately
     "dippr107": (("A", "B", "C"), ("D", "E")),
-    "watson": (("value", "at"), ("n", "Tc")),
+    "watson": (("value", "at"), ("exponent", "n", "Tc")),
     "dippr106": (("A", "B"), ("C", "D", "E", "Tc")),
     "dippr105": (("A", "B", "C", "D"), ()),
     "constant": (("value",), ()),
@@ -372,7 +372,7 @@ def _watson(corr, T, critical_temperature, label):
     c = corr.coefficients
     Tc = _critical(corr, critical_temperature, label)
     at = c["at"]
-    n = c.get("n", WATSON_EXPONENT)
+    n = c.get("exponent", c.get("n", WATSON_EXPONENT))
     span = Tc - at
     if span <= 0.0:
         raise ThermoError(f"{label} (watson): reference temperature {at:.2f} K is not below Tc = {Tc:.2f} K")

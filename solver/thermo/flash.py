@@ -35,19 +35,20 @@ def _as_rows(values: np.ndarray, count: int | None = None) -> np.ndarray:
 
 
 def _starting_temperature(thermo, pressure: np.ndarray, composition: np.ndarray) -> np.ndarray:
-    """Mole-fraction average of the pure-component saturation temperatures at ``pressure``,
-    from the Clausius-Clapeyron line through each component's normal boiling point."""
-    boiling = np.asarray(thermo.pure.normal_boiling_point, dtype=float)
-    latent = np.array(
-        [thermo.pure.heat_of_vaporization(np.array([tb]))[0][0, i] for i, tb in enumerate(boiling)]
-    )
-    inverse = 1.0 / boiling[None, :] - 8.314462618 / latent[None, :] * np.log(pressure[:, None] / 101325.0)
-    saturation = 1.0 / np.maximum(inverse, 1e-4)
-    return np.clip(np.einsum("nc,nc->n", composition, saturation), 150.0, None)
+    """Mole-fraction average of the pure-component saturation temperatures at ``pressure``
+    (needs only the vapor pressures: no heat of vaporization, no normal boiling point)."""
+    saturation = thermo.saturation_temperatures(pressure)
+    return np.clip(np.einsum("nc,nc->n", composition, saturation), _lower_temperature(thermo), _upper_temperature(thermo))
 
 
 def _upper_temperature(thermo) -> float:
     return float(np.max(thermo.pure.critical_temperature)) * 0.999
+
+
+def _lower_temperature(thermo) -> float:
+    """Lowest temperature a bubble or dew point iteration may visit: a tenth of the lowest
+    critical temperature (about 13 K for nitrogen, 65 K for water)."""
+    return float(np.min(thermo.pure.critical_temperature)) * 0.1
 
 
 def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 100) -> tuple[np.ndarray, np.ndarray]:
@@ -57,7 +58,7 @@ def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 10
     x = x / x.sum(axis=1, keepdims=True)
     pressure = _as_rows(pressure, x.shape[0])
     temperature = _starting_temperature(thermo, pressure, x) if guess is None else _as_rows(guess, x.shape[0]).copy()
-    upper = _upper_temperature(thermo)
+    lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
     for _ in range(max_iterations):
         k = thermo.k_values(temperature, pressure, x, derivatives=True)
         total = np.einsum("nc,nc->n", k.K, x)
@@ -65,7 +66,7 @@ def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 10
         slope = np.einsum("nc,nc,nc->n", k.K, x, k.d_ln_K_dT) / total
         step = -residual / np.where(np.abs(slope) > 1e-12, slope, 1e-12)
         step = np.clip(step, -_MAX_TEMPERATURE_STEP, _MAX_TEMPERATURE_STEP)
-        temperature = np.clip(temperature + step, 100.0, upper)
+        temperature = np.clip(temperature + step, lower, upper)
         if np.all(np.abs(residual) < _TOLERANCE):
             break
     else:
@@ -89,7 +90,7 @@ def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) 
         temperature = temperature + 5.0
     else:
         temperature = _as_rows(guess, y.shape[0]).copy()
-    upper = _upper_temperature(thermo)
+    lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
     x = y.copy()
     for _ in range(max_iterations):
         k = thermo.k_values(temperature, pressure, x, derivatives=True)
@@ -102,7 +103,7 @@ def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) 
         step = np.clip(step, -_MAX_TEMPERATURE_STEP, _MAX_TEMPERATURE_STEP)
         change = np.max(np.abs(new_x - x))
         x = new_x
-        temperature = np.clip(temperature + step, 100.0, upper)
+        temperature = np.clip(temperature + step, lower, upper)
         if np.all(np.abs(residual) < _TOLERANCE) and change < 1e-12:
             break
     else:

@@ -26,20 +26,22 @@ import numpy as np
 
 from ..case import Case
 from ..components import ComponentInfo, component_info
-from ..errors import CaseError
+from ..errors import CaseError, ThermoError
 from . import activity as activity_models
 from .pure import PureComponents
 
 GAS_CONSTANT = 8.314462618  # J/mol/K, CODATA 2018
+ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
 
 
 @dataclass(frozen=True)
 class KValues:
     """K-values and derivatives: ``K (n,c)``, ``d_ln_K_dT (n,c)`` in 1/K and
-    ``d_ln_K_dx (n,c,c)`` with ``[s, i, k] = d ln K_i / d x_k`` (other x held fixed)."""
+    ``d_ln_K_dx (n,c,c)`` with ``[s, i, k] = d ln K_i / d x_k`` (other x held fixed). Both
+    derivatives are None when they were not asked for."""
 
     K: np.ndarray
-    d_ln_K_dT: np.ndarray
+    d_ln_K_dT: np.ndarray | None
     d_ln_K_dx: np.ndarray | None
 
 
@@ -121,8 +123,9 @@ class ThermoPackage:
         self.enthalpy_model = enthalpy
         self.names = tuple(pure.names)
         self.component_count = len(self.names)
+        self.cmo_latent_heat_basis = "given"
         if cmo_latent_heat is None:
-            cmo_latent_heat = self.reference_latent_heat()
+            cmo_latent_heat, self.cmo_latent_heat_basis = self._reference_latent_heat()
         self.cmo_latent_heat = float(cmo_latent_heat)
         self._description = description or {}
 
@@ -166,16 +169,64 @@ class ThermoPackage:
         out["activity_parameters"] = self.activity.describe()
         if self.enthalpy_model == "cmo":
             out["cmo_latent_heat_J_per_mol"] = self.cmo_latent_heat
+            out["cmo_latent_heat_basis"] = self.cmo_latent_heat_basis
         return out
 
     def reference_latent_heat(self) -> float:
         """Mean of the pure-component heats of vaporization at their normal boiling points
-        (J/mol); the constant molar latent heat of the ``cmo`` enthalpy model."""
+        (J/mol); the constant molar latent heat of the ``cmo`` enthalpy model.
+
+        Where a component has no normal boiling point within its vapor-pressure correlation,
+        its saturation temperature at 101325 Pa from the extrapolated vapor pressure is used.
+        If a component has no heat-of-vaporization correlation, every latent heat is taken from
+        the vapor-pressure slope by the Clausius-Clapeyron equation, ``dHvap = R T^2 d ln Psat/dT``
+        (ideal vapor, liquid volume neglected; e.g. Smith, Van Ness & Abbott, 7th ed., sec. 6.4)."""
+        return self._reference_latent_heat()[0]
+
+    def _reference_latent_heat(self) -> tuple[float, str]:
         boiling = np.asarray(self.pure.normal_boiling_point, dtype=float)
-        values = np.array(
-            [self.pure.heat_of_vaporization(np.array([tb]))[0][0, i] for i, tb in enumerate(boiling)]
-        )
-        return float(np.mean(values))
+        if not np.all(np.isfinite(boiling)):
+            saturation = self.saturation_temperatures(np.array([ATMOSPHERIC_PRESSURE]))[0]
+            boiling = np.where(np.isfinite(boiling), boiling, saturation)
+        own = np.arange(self.component_count)
+        try:
+            values = self.pure.heat_of_vaporization(boiling)[0][own, own]
+            basis = "mean heat of vaporization at the normal boiling points"
+        except ThermoError:
+            slope = self.pure.ln_vapor_pressure(boiling)[1][own, own]
+            values = GAS_CONSTANT * boiling**2 * slope
+            basis = "mean Clausius-Clapeyron latent heat R T^2 dln(Psat)/dT at the normal boiling points"
+        return float(np.mean(values)), basis
+
+    def saturation_temperatures(self, pressure: np.ndarray, max_iterations: int = 50) -> np.ndarray:
+        """Temperature (K) at which each pure component's vapor pressure equals ``pressure (n,)``
+        Pa, shape (n, c). Newton's method in 1/T, in which ln Psat is nearly linear
+        (Clausius-Clapeyron), from the normal boiling point (0.7 Tc where there is none); the
+        result is kept within [0.1 Tc, Tc] (above the critical pressure: Tc)."""
+        pressure = np.atleast_1d(np.asarray(pressure, dtype=float))
+        n, c = pressure.shape[0], self.component_count
+        critical = np.asarray(self.pure.critical_temperature, dtype=float)
+        boiling = np.asarray(self.pure.normal_boiling_point, dtype=float)
+        start = np.where(np.isfinite(boiling), boiling, 0.7 * critical)
+        inverse = np.tile(1.0 / start, (n, 1))
+        lowest_inverse, highest_inverse = 1.0 / critical, 1.0 / (0.1 * critical)
+        target = np.log(pressure)[:, None]
+        own = np.arange(c)
+        for _ in range(max_iterations):
+            T = 1.0 / inverse
+            ln_p, slope = self.pure.ln_vapor_pressure(T.reshape(-1))
+            ln_p = ln_p.reshape(n, c, c)[:, own, own]
+            slope = slope.reshape(n, c, c)[:, own, own]
+            gap = ln_p - target
+            # d ln Psat / d(1/T) = -T^2 d ln Psat / dT
+            moved = inverse + gap / np.maximum(T**2 * slope, 1e-300)
+            stuck = ((moved <= lowest_inverse) & (inverse == lowest_inverse)) | (
+                (moved >= highest_inverse) & (inverse == highest_inverse)
+            )
+            inverse = np.clip(moved, lowest_inverse, highest_inverse)
+            if np.all((np.abs(gap) < 1e-11) | stuck):
+                break
+        return 1.0 / inverse
 
     # ------------------------------------------------------------------ equilibrium
     def k_values(self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, derivatives: bool = True) -> KValues:
@@ -188,7 +239,7 @@ class ThermoPackage:
         ln_k = act.ln_gamma + ln_psat - np.log(pressure)[:, None]
         K = np.exp(ln_k)
         if not derivatives:
-            return KValues(K, d_ln_psat_dT, None)
+            return KValues(K, None, None)
         return KValues(K, act.d_ln_gamma_dT + d_ln_psat_dT, act.d_ln_gamma_dx)
 
     def ln_gamma(self, temperature: np.ndarray, x: np.ndarray) -> np.ndarray:

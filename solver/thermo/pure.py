@@ -21,9 +21,10 @@ Each interpolant has equal pieces of :data:`SATURATION_TERMS` (saturation) or
 doubles until the interpolant matches CoolProp within :data:`FIT_TOLERANCE` at the
 Chebyshev-Lobatto points of every piece (where the interpolation error of Chebyshev nodes of the
 first kind peaks). The achieved maximum error is kept and reported by
-:meth:`PureComponents.describe`. Pieces are evaluated in local monomial form by Horner's rule
-(faster in numpy than Clenshaw's recurrence; the conversion costs ~1e-12 relative at this
-degree and is included in the checked error).
+:meth:`PureComponents.describe`. Each piece is evaluated as a power series in its local variable
+u in [0, 1] by Horner's rule, which in numpy takes about half the array operations of
+Clenshaw's recurrence; the conversion from the Chebyshev coefficients costs ~1e-13 relative at
+this degree and is included in the checked error.
 
 Outside the fitted range the evaluation extrapolates smoothly and never raises:
 ``ln Psat`` linear in 1/T (Clausius-Clapeyron), ``dHvap`` as a power of ``(1 - T/Tc)`` with the
@@ -64,6 +65,10 @@ MAX_PIECES = 256
 REFERENCE_TEMPERATURE = correlations.REFERENCE_TEMPERATURE
 #: Closest approach of the saturation fits to Tc, tried in turn: T_high_fit = Tc (1 - gap).
 CRITICAL_GAPS = (1e-4, 1e-3, 1e-2)
+#: Saturation pressures (Pa) the lower end of the saturation fits is raised to, in turn, when
+#: the tolerance cannot be met down to the triple point (a judgement: such pressures play no
+#: part in a column; below the fit ln Psat is extrapolated linearly in 1/T).
+LOW_END_PRESSURES = (1e-3, 1.0)
 #: Gas constant, J/(mol K) (CODATA 2018, exact).
 GAS_CONSTANT = 8.314462618
 
@@ -339,7 +344,7 @@ class PureComponents:
         clamped = np.maximum(spread, low)
         np.minimum(clamped, high, out=clamped)
         # the extension formulas are the identity where nothing was clamped
-        outside = bool(T.min() < bounds[0] or T.max() > bounds[1])
+        outside = T.size > 0 and bool(T.min() < bounds[0] or T.max() > bounds[1])
         return spread, clamped, outside
 
     def _saturation_state(self, T: np.ndarray) -> tuple:
@@ -545,13 +550,23 @@ def _extend_in_inverse_temperature(
 def saturation_fits(fluid: str) -> SaturationFits:
     """Fits of the CoolProp saturation curve of ``fluid`` (cached per process): ln Psat (as
     Tr ln(Psat/Pc)), ln dHvap and ln V_satL in s = ln(1 - T/Tc), from the triple point (or
-    CoolProp's Tmin) to as close to Tc as the tolerance allows (see :data:`CRITICAL_GAPS`)."""
+    CoolProp's Tmin) to as close to Tc as the tolerance allows (see :data:`CRITICAL_GAPS`). If
+    the tolerance cannot be met there, the lower end is raised to where Psat reaches
+    :data:`LOW_END_PRESSURES` (far below anything a column sees) before the upper end is moved
+    away from Tc."""
     state = CP.AbstractState("HEOS", fluid)
     Tc, Pc = float(state.T_critical()), float(state.p_critical())
-    T_low = max(float(state.Ttriple()), float(state.Tmin()))
+    T_floor = max(float(state.Ttriple()), float(state.Tmin()))
+    low_ends = [T_floor]
+    for pressure in LOW_END_PRESSURES:
+        try:
+            state.update(CP.PQ_INPUTS, pressure, 0.0)
+            low_ends.append(max(T_floor, float(state.T())))
+        except ValueError:  # pressure below the triple point: the floor stays
+            pass
 
     def sample(s: np.ndarray) -> dict[str, np.ndarray]:
-        T = np.clip(Tc * (1.0 - np.exp(s)), T_low, Tc)
+        T = np.clip(Tc * (1.0 - np.exp(s)), T_floor, Tc)
         p = np.empty_like(T)
         dh = np.empty_like(T)
         rho = np.empty_like(T)
@@ -566,26 +581,26 @@ def saturation_fits(fluid: str) -> SaturationFits:
         return 1.0 / (1.0 - np.exp(s))
 
     weights = {"wagner": inverse_reduced, "ln_dh": None, "ln_v": None}
-    best: tuple[float, float, dict[str, PiecewiseFit]] | None = None
+    best: tuple[float, float, float, dict[str, PiecewiseFit]] | None = None
     last_error: Exception | None = None
-    for gap in CRITICAL_GAPS:
+    attempts = [(gap, T_low) for gap in CRITICAL_GAPS for T_low in dict.fromkeys(low_ends)]
+    for gap, T_low in attempts:
         T_high = Tc * (1.0 - gap)
-        if T_high <= T_low:
+        if T_high <= T_low * 1.01:
             continue
-        low, high = math.log(gap), math.log(1.0 - T_low / Tc)
         try:
-            fits = _fit_adaptively(sample, low, high, weights, SATURATION_TERMS)
+            fits = _fit_adaptively(sample, math.log(gap), math.log(1.0 - T_low / Tc), weights, SATURATION_TERMS)
         except (ValueError, RuntimeError) as exc:  # CoolProp failed at some sample point
             last_error = exc
             continue
         worst = max(f.max_error for f in fits.values())
         if best is None or worst < best[0]:
-            best = (worst, T_high, fits)
+            best = (worst, T_low, T_high, fits)
         if worst <= FIT_TOLERANCE:
             break
     if best is None:
         raise ThermoError(f"CoolProp could not compute the saturation curve of {fluid}: {last_error}")
-    _, T_high, fits = best
+    _, T_low, T_high, fits = best
     variable = "ln(1 - T/Tc)"
     return SaturationFits(
         fluid=fluid,
@@ -636,9 +651,12 @@ def _fit_adaptively(
     nodes = np.cos(np.pi * (np.arange(terms) + 0.5) / terms)  # first kind
     checks = np.cos(np.pi * np.arange(terms + 1) / terms)  # Chebyshev-Lobatto
     to_coefficients = _values_to_chebyshev(terms)
-    at_checks = chebyshev.chebvander(checks, terms - 1)  # (terms + 1, terms)
+    # checked in the local power form the evaluation uses, so its rounding is included
+    at_checks = _chebyshev_to_monomial(terms) @ polynomial.polyvander(0.5 * (checks + 1.0), terms - 1).T
     best: dict[str, PiecewiseFit] | None = None
     pieces = 1
+    previous_worst = math.inf
+    stalled = 0
     while pieces <= MAX_PIECES:
         edges = np.linspace(low, high, pieces + 1)
         middle = 0.5 * (edges[:-1] + edges[1:])
@@ -654,7 +672,7 @@ def _fit_adaptively(
                 raise ValueError(f"non-finite {name} sampled between {low:g} and {high:g}")
             coefficients = values[:split].reshape(pieces, terms) @ to_coefficients.T
             expected = values[split:].reshape(pieces, terms + 1)
-            error = np.abs(coefficients @ at_checks.T - expected)
+            error = np.abs(coefficients @ at_checks - expected)
             if weight == "relative":
                 error /= np.abs(expected)
             elif weight is not None:
@@ -665,6 +683,12 @@ def _fit_adaptively(
             best = level
         if worst <= FIT_TOLERANCE:
             break
+        # a smooth function loses a factor 2^terms per doubling; much less means noise or a
+        # singularity in the sampled data, and more pieces will not help
+        stalled = stalled + 1 if pieces >= 16 and worst > 0.25 * previous_worst else 0
+        if stalled >= 2:
+            break
+        previous_worst = worst
         pieces *= 2
     return best
 

@@ -1,0 +1,120 @@
+"""simulate(case): convergence from the default start, the post-check, heat effects."""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+from pathlib import Path
+
+import CoolProp.CoolProp as CP
+import numpy as np
+import pytest
+
+from conftest import methanol_water_case
+from solver.case import load_case
+from solver.errors import ConvergenceError
+from solver.newton import NewtonOptions
+from solver.results import SCHEMA
+from solver.simulate import build_system, simulate
+
+CASES = Path(__file__).resolve().parent.parent / "cases"
+
+
+@pytest.mark.parametrize("name", ["methanol_water", "benzene_toluene"])
+def test_demo_cases_converge_from_the_default_start(name):
+    result = simulate(load_case(CASES / f"{name}.toml"))
+    assert result.converged, result.message
+    assert result.iterations <= 8
+    assert result.residual_norm <= 1e-9
+    for key in ("component_balance_max", "equilibrium_max", "summation_max", "enthalpy_balance_max"):
+        assert result.post_check[key] < 1e-9, key
+
+
+def test_specs_are_met():
+    result = simulate(methanol_water_case())
+    assert result.reflux_ratio == pytest.approx(1.4, rel=1e-9)
+    assert result.bottoms_composition[1] == pytest.approx(0.995, abs=1e-10)
+    assert result.condenser_duty < 0 < result.reboiler_duty
+
+
+def test_methanol_water_vapor_flow_falls_down_the_stripping_section():
+    """Real enthalpies: methanol's molar latent heat is lower than water's, so the vapor rising
+    through the stripping section shrinks towards the reboiler, by about the ratio of the
+    vapor's molar latent heats at the two ends (latent heats from CoolProp called directly)."""
+    case = load_case(CASES / "methanol_water.toml")
+    result = simulate(case)
+    assert result.converged
+    f = case.feeds[0].stage
+    V = result.vapor_flow
+    stripping = V[f:]  # vapor leaving stages f+1 .. N
+    assert np.all(np.diff(stripping) < 0), "vapor must fall monotonically down the stripping section"
+
+    def latent(fluid, T):
+        return CP.PropsSI("Hmolar", "T", T, "Q", 1, fluid) - CP.PropsSI("Hmolar", "T", T, "Q", 0, fluid)
+
+    def mixture_latent(stage_index):
+        T = result.temperature[stage_index]
+        y = result.y[stage_index]
+        return y[0] * latent("Methanol", T) + y[1] * latent("Water", T)
+
+    observed = V[f] / V[-1]
+    expected = mixture_latent(-1) / mixture_latent(f)
+    assert observed > 1.03  # a real effect, not noise
+    assert observed == pytest.approx(expected, rel=0.03)
+    ratio_pure = latent("Water", 373.124) / latent("Methanol", 337.632)
+    assert observed < ratio_pure
+    assert result.post_check["enthalpy_balance_max"] < 1e-8
+    assert result.balances()["energy_closure_rel"] < 1e-8
+
+
+def test_cmo_enthalpies_give_constant_molar_overflow_on_a_real_mixture():
+    result = simulate(methanol_water_case(enthalpy="cmo"))
+    assert result.converged
+    f = 7
+    np.testing.assert_allclose(result.vapor_flow[1:f], result.vapor_flow[1], rtol=1e-9)
+    np.testing.assert_allclose(result.vapor_flow[f:], result.vapor_flow[-1], rtol=1e-9)
+
+
+def test_unconverged_result_is_marked_and_keeps_its_log():
+    result = simulate(methanol_water_case(), options=NewtonOptions(max_iterations=2))
+    assert not result.converged
+    assert "no convergence in 2 iterations" in result.message
+    assert len(result.iteration_log) == 3
+    document = json.loads(result.to_json())
+    assert document["converged"] is False
+    assert document["message"] == result.message
+
+
+def test_a_nan_start_is_a_convergence_error_naming_the_variable():
+    case = methanol_water_case(stages=6, feed_stage=3)
+    _, _, system, _, _ = build_system(case)
+    start = np.full(system.size, 1.0)
+    start[system.width * 2] = np.nan
+    with pytest.raises(ConvergenceError, match="temperature of stage 3"):
+        simulate(case, start=start)
+
+
+def test_result_document_has_every_design_field():
+    result = simulate(methanol_water_case())
+    document = json.loads(result.to_json())
+    for key in (
+        "schema", "title", "case", "converged", "iterations", "residual_norm", "message", "components", "units",
+        "stages", "products", "duties", "balances", "thermo", "iteration_log",
+    ):
+        assert key in document, key
+    assert document["schema"] == SCHEMA
+    stage = document["stages"][0]
+    for key in ("number", "T", "P", "L", "V", "x", "y", "K", "h_L", "h_V", "feeds", "liquid_draw", "vapor_draw", "duty"):
+        assert key in stage, key
+    # total condenser convention: V = 0 and the distillate is the liquid draw
+    assert stage["V"] == 0.0
+    assert stage["liquid_draw"] == pytest.approx(document["products"]["distillate"]["flow"])
+    assert document["stages"][-1]["L"] == pytest.approx(document["products"]["bottoms"]["flow"])
+    assert document["thermo"]["pairs"][0]["source"].startswith("Smith, Van Ness & Abbott")
+
+
+def test_stage_feed_and_duties_are_consistent():
+    result = simulate(methanol_water_case())
+    assert sum(f.flow for feeds in result.stage_feeds for f in feeds) == pytest.approx(100 / 3.6)
+    # no side duties: only the condenser and the reboiler exchange heat
+    assert np.all(result.duty[1:-1] == pytest.approx(0.0, abs=1e-6 * abs(result.duty[0])))

@@ -15,6 +15,7 @@ import numpy as np
 from scipy.optimize import root
 
 from _common import ideal_four_case, save
+from solver.errors import TraystackError
 from solver.initial import initial_estimate
 from solver.newton import NewtonOptions, solve
 from solver.simulate import build_system
@@ -36,7 +37,12 @@ def main() -> None:
 
         def residuals(X):
             calls["n"] += 1
-            return system.evaluate(X, False).residuals
+            try:
+                return system.evaluate(X, False).residuals
+            except TraystackError:
+                # a trial point outside the property models (e.g. a negative temperature):
+                # a large residual makes the general-purpose method back off
+                return np.full(len(X), 1e6)
 
         start = time.perf_counter()
         general = root(residuals, X0, method="hybr", options={"xtol": 1e-12, "maxfev": 200 * (len(X0) + 1)})

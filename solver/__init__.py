@@ -6,3 +6,9 @@ the column's stage graph, and sets the result beside the shortcut (operating-lin
 """
 
 __version__ = "0.1.0"
+
+from .case import load_case, loads_case  # noqa: E402
+from .results import Result  # noqa: E402
+from .simulate import simulate  # noqa: E402
+
+__all__ = ["Result", "load_case", "loads_case", "simulate", "__version__"]

@@ -434,3 +434,65 @@ def test_feed_state_normalizes_the_composition(binary):
     b = flash.feed_state(binary, Z, ATMOSPHERE, temperature=355.0)
     assert a.q == pytest.approx(b.q, rel=1e-12)
     np.testing.assert_allclose(a.x, b.x, atol=1e-12)
+
+
+# ------------------------------------------------------------------ starting points
+
+
+def test_cryogenic_bubble_and_dew_points():
+    """Nitrogen-oxygen (Raoult's law) at 1 atm boils between the pure components' boiling
+    points, 77.35 and 90.19 K (CoolProp), well below 100 K."""
+    thermo = ThermoPackage(PureComponents([component_info("nitrogen"), component_info("oxygen")]), IdealSolution(2))
+    z = np.array([[0.79, 0.21], [0.5, 0.5], [1.0, 0.0]])
+    pressure = np.full(3, ATMOSPHERE)
+    bubble, y = flash.bubble_temperature(thermo, pressure, z)
+    dew, x = flash.dew_temperature(thermo, pressure, z)
+    assert np.all((77.0 < bubble) & (bubble < dew + 1e-9) & (dew < 90.5))
+    K = thermo.k_values(bubble, pressure, z, derivatives=False).K
+    np.testing.assert_allclose((K * z).sum(axis=1), 1.0, atol=1e-10)
+    state = CP.AbstractState("HEOS", "Nitrogen")
+    state.update(CP.PQ_INPUTS, ATMOSPHERE, 0.0)
+    assert bubble[2] == pytest.approx(state.T(), abs=1e-4)
+
+
+def test_bubble_point_of_a_user_component_without_a_normal_boiling_point():
+    """An invented component whose vapor-pressure correlation ends below its boiling point
+    (no normal boiling point known, no heat of vaporization given): the bubble point starts
+    from the extrapolated vapor pressure and converges."""
+    case = case_from_text(
+        """
+        [components]
+        names = ["solvent_a", "toluene"]
+        [components.data.solvent_a]
+        molar_mass = "0.08 kg/mol"
+        critical_temperature = "560 K"
+        critical_pressure = "4.5 MPa"
+        vapor_pressure = { form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "330 K" }
+        source = "invented for this test"
+        [thermo]
+        liquid = "ideal"
+        enthalpy = "cmo"
+        [column]
+        stages = 5
+        condenser = "total"
+        reboiler = "partial"
+        pressure.top = "101.325 kPa"
+        [[feeds]]
+        stage = 3
+        flow = "100 kmol/h"
+        composition = { solvent_a = 0.5, toluene = 0.5 }
+        vapor_fraction = 0.0
+        [specs]
+        reflux_ratio = 2.0
+        distillate_rate = "40 kmol/h"
+        """
+    )
+    thermo = ThermoPackage.from_case(case)
+    assert np.isnan(thermo.pure.normal_boiling_point[0])
+    z = np.array([[0.5, 0.5], [0.9, 0.1]])
+    pressure = np.full(2, ATMOSPHERE)
+    bubble, y = flash.bubble_temperature(thermo, pressure, z)
+    K = thermo.k_values(bubble, pressure, z, derivatives=False).K
+    np.testing.assert_allclose((K * z).sum(axis=1), 1.0, atol=1e-10)
+    dew, _ = flash.dew_temperature(thermo, pressure, y)
+    np.testing.assert_allclose(dew, bubble, atol=1e-8)

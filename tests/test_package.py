@@ -23,6 +23,7 @@ from solver.thermo.pure import PureComponents
 NAMES = ("methanol", "ethanol", "water")
 COOLPROP_NAMES = {"methanol": "Methanol", "ethanol": "Ethanol", "water": "Water", "benzene": "Benzene", "toluene": "Toluene"}
 STATES = 12
+ATMOSPHERE = 101325.0  # Pa
 
 
 @pytest.fixture(scope="module")
@@ -483,3 +484,68 @@ def test_describe_of_a_directly_built_package_is_json(pure, kind):
     assert described["activity_parameters"]["model"] == kind
     assert "source" in described["activity_parameters"]
     assert len(described["components"]) == 3
+
+
+# ------------------------------------------------------------------ saturation temperatures, reference latent heat
+
+
+def test_saturation_temperatures_match_coolprop(pure):
+    package = ThermoPackage(pure, IdealSolution(3))
+    pressure = np.array([0.2e5, ATMOSPHERE, 5.0e5, 40.0e5])
+    T = package.saturation_temperatures(pressure)
+    assert T.shape == (4, 3)
+    for k, name in enumerate(NAMES):
+        state = CP.AbstractState("HEOS", COOLPROP_NAMES[name])
+        for row, p in enumerate(pressure):
+            state.update(CP.PQ_INPUTS, float(p), 0.0)
+            assert T[row, k] == pytest.approx(state.T(), abs=1e-4)
+    # above the critical pressure there is no saturation temperature: Tc
+    above = package.saturation_temperatures(np.array([3.0 * pure.critical_pressure.max()]))
+    np.testing.assert_allclose(above[0], pure.critical_temperature)
+
+
+USER_LIGHT = """
+[components.data.solvent_a]
+molar_mass = "0.08 kg/mol"
+critical_temperature = "560 K"
+critical_pressure = "4.5 MPa"
+vapor_pressure = {{ form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "{t_max}" }}
+source = "invented for this test"
+"""
+
+
+def _user_case(t_max: str, enthalpy: str = "cmo"):
+    """An invented component (Antoine constants of our own, boiling at 362.95 K) with toluene."""
+    return case_from_text(
+        '[components]\nnames = ["solvent_a", "toluene"]\n'
+        + USER_LIGHT.format(t_max=t_max)
+        + f'[thermo]\nliquid = "ideal"\nenthalpy = "{enthalpy}"\n'
+        + CASE_TAIL.format(composition="{ solvent_a = 0.5, toluene = 0.5 }")
+    )
+
+
+def test_cmo_package_builds_without_a_heat_of_vaporization_correlation():
+    """The constant latent heat then comes from the vapor-pressure slope at the normal boiling
+    points (Clausius-Clapeyron), for every component alike."""
+    package = ThermoPackage.from_case(_user_case("400 K"))
+    boiling = package.pure.normal_boiling_point
+    assert np.all(np.isfinite(boiling))
+    own = np.arange(2)
+    expected = 8.314462618 * boiling**2 * package.pure.ln_vapor_pressure(boiling)[1][own, own]
+    assert package.cmo_latent_heat == pytest.approx(expected.mean(), rel=1e-12)
+    assert package.reference_latent_heat() == pytest.approx(expected.mean(), rel=1e-12)
+    assert 25e3 < package.cmo_latent_heat < 40e3
+    assert "Clausius-Clapeyron" in package.describe()["cmo_latent_heat_basis"]
+    # a CoolProp-only package uses the heats of vaporization themselves
+    assert "heat of vaporization" in ThermoPackage.from_case(methanol_water_case(enthalpy="cmo")).describe()["cmo_latent_heat_basis"]
+
+
+def test_reference_latent_heat_without_a_normal_boiling_point_in_range():
+    """The user's vapor-pressure range ends below 1 atm: the boiling point is extrapolated."""
+    package = ThermoPackage.from_case(_user_case("330 K"))
+    assert np.isnan(package.pure.normal_boiling_point[0])
+    saturation = package.saturation_temperatures(np.array([ATMOSPHERE]))[0]
+    # the Antoine equation itself would give 362.95 K; beyond 330 K it is continued linearly in 1/T
+    assert 355.0 < saturation[0] < 370.0
+    np.testing.assert_allclose(package.pure.vapor_pressure(saturation)[0][[0, 1], [0, 1]], ATMOSPHERE, rtol=1e-10)
+    assert np.isfinite(package.cmo_latent_heat) and package.cmo_latent_heat > 20e3

@@ -29,6 +29,7 @@ from .mesh import MeshSystem
 from .thermo.flash import bubble_temperature
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
+_PROFILE_SPECS = ("mole_fraction", "recovery", "stage_temperature")  # met by moving D on the CMO profile
 _WANG_HENKE_SWEEPS = 60  # at most; the sweeps stop when no temperature moves by 1e-3 K
 
 
@@ -94,8 +95,13 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
         D = float(grid[int(np.argmin(errors))])
     if D is None and len(energy_relations) >= 2:
         (a1, b1), (a2, b2) = energy_relations[:2]
-        if abs(b1 - b2) > 1e-12:
+        if abs(b1 - b2) > 1e-9 * max(abs(b1), abs(b2), 1.0):
             D = (a2 - a1) / (b1 - b2)
+    duties = {s.kind: s.value for s in specs if s.kind in ("condenser_duty", "reboiler_duty")}
+    if D is None and len(duties) == 2:
+        # both duties given: under CMO they fix the vapor rates but not the split, which follows
+        # from the overall enthalpy balance H_F + Q_C + Q_R = D h_D + B h_B
+        D = _overhead_from_energy_balance(system, duties, feed, ln_alpha, exponent, F_net)
     if D is None:
         # one energy spec and nothing that fixes D, or an absorber: split the feed by volatility
         D = max(vapor_in_feeds, 0.5 * F_net) if system.graph.condenser != "none" else max(vapor_in_feeds, 0.3 * F_net)
@@ -114,6 +120,29 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
     top = fenske_split(feed, ln_alpha, D, exponent)
     adjustable = D_fixed is None and len(energy_relations) < 2
     return D, top_vapor, top, adjustable
+
+
+def _overhead_from_energy_balance(system: MeshSystem, duties: dict, feed: np.ndarray, ln_alpha, exponent, F_net) -> float:
+    """Overhead rate (scaled) that closes the overall enthalpy balance with products at their
+    bubble points and Fenske-distributed compositions, searched on a grid of rates."""
+    thermo = system.thermo
+    grid = np.linspace(0.02, 0.98, 97) * F_net
+    tops = np.array([fenske_split(feed, ln_alpha, D, exponent) for D in grid])
+    bottoms = feed[None, :] - tops
+    x_top = tops / tops.sum(axis=1, keepdims=True)
+    x_bottom = bottoms / bottoms.sum(axis=1, keepdims=True)
+    try:
+        t_top, _ = bubble_temperature(thermo, np.full(len(grid), system.pressures[0]), x_top)
+        t_bottom, _ = bubble_temperature(thermo, np.full(len(grid), system.pressures[-1]), x_bottom)
+    except ThermoError:
+        return 0.5 * F_net
+    h_top = thermo.liquid_enthalpy(t_top, x_top).molar
+    if system.graph.condenser != "total":
+        h_top = thermo.vapor_enthalpy(t_top, x_top).molar
+    h_bottom = thermo.liquid_enthalpy(t_bottom, x_bottom).molar
+    heat_in = float(system.feed_enthalpy.sum()) * system.energy_scale + sum(duties.values()) / system.flow_scale
+    mismatch = heat_in - grid * h_top - (F_net - grid) * h_bottom
+    return float(grid[int(np.argmin(np.abs(mismatch)))])
 
 
 def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.ndarray, stage_q: np.ndarray):
@@ -181,9 +210,9 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
         return L, V, T, x, l, stripping
 
     L, V, T, x, l, stripping = profile(D)
-    composition_specs = [spec for spec in specs if spec.kind in _COMPOSITION_SPECS]
-    if adjustable and composition_specs:
-        D = _meet_composition_spec(system, composition_specs[0], D, profile)
+    profile_specs = [spec for spec in specs if spec.kind in _PROFILE_SPECS]
+    if adjustable and profile_specs:
+        D = _meet_composition_spec(system, profile_specs[0], D, profile)
         L, V, T, x, l, stripping = profile(D)
 
     t = system.top
@@ -254,6 +283,8 @@ def _meet_composition_spec(system: MeshSystem, spec: Spec, D: float, profile) ->
 
     def error(D: float) -> float:
         L, V, T, x, l, stripping = profile(D)
+        if spec.kind == "stage_temperature":
+            return float(T[spec.stage - 1] - spec.value) / 10.0
         top = stripping[system.top] * l[system.top]
         bottom = l[system.bottom]
         return _spec_error(spec, top, bottom, feed, system.component_names)

@@ -118,3 +118,105 @@ def test_stage_feed_and_duties_are_consistent():
     assert sum(f.flow for feeds in result.stage_feeds for f in feeds) == pytest.approx(100 / 3.6)
     # no side duties: only the condenser and the reboiler exchange heat
     assert np.all(result.duty[1:-1] == pytest.approx(0.0, abs=1e-6 * abs(result.duty[0])))
+
+
+FEATURES = """
+title = "feature column"
+[components]
+names = ["acetone", "methanol", "water"]
+[thermo]
+liquid = "nrtl"
+[thermo.nrtl.acetone.methanol]
+dg = ["184.70 cal/mol", "222.64 cal/mol"]
+alpha = 0.3084
+source = "Smith, Van Ness & Abbott, 7th ed., Table 12.5"
+[thermo.nrtl.acetone.water]
+dg = ["631.05 cal/mol", "1197.41 cal/mol"]
+alpha = 0.5343
+source = "Smith, Van Ness & Abbott, 7th ed., Table 12.5"
+[thermo.nrtl.methanol.water]
+dg = ["-253.88 cal/mol", "845.21 cal/mol"]
+alpha = 0.2994
+source = "Smith, Van Ness & Abbott, 7th ed., Table 12.5"
+[column]
+stages = 18
+condenser = "{condenser}"
+reboiler = "partial"
+pressure.top = "1.1 bar"
+pressure.drop_per_stage = "0.7 kPa"
+efficiency = {efficiency}
+{extra_column}
+[[feeds]]
+name = "liquid feed"
+stage = 8
+flow = "60 kmol/h"
+composition = {{ acetone = 0.25, methanol = 0.35, water = 0.40 }}
+temperature = "40 degC"
+[[feeds]]
+name = "vapor feed"
+stage = 13
+flow = "20 kmol/h"
+composition = {{ acetone = 0.05, methanol = 0.25, water = 0.70 }}
+vapor_fraction = 1.0
+[specs]
+{specs}
+"""
+
+
+@pytest.mark.parametrize(
+    "condenser, efficiency, extra_column, specs",
+    [
+        ("total", "1.0", "", 'reflux_ratio = 3.0\ndistillate_rate = "25 kmol/h"'),
+        ("partial", "1.0", "", 'reflux_ratio = 3.0\ndistillate_rate = "25 kmol/h"'),
+        ("total", "0.6", "", 'reflux_ratio = 3.0\nbottoms = { water = 0.9 }'),
+        (
+            "total",
+            "0.8",
+            '[[column.side_draws]]\nstage = 5\nphase = "liquid"\nflow = "5 kmol/h"\n'
+            '[[column.side_draws]]\nstage = 15\nphase = "vapor"\nflow = "4 kmol/h"\n'
+            '[[column.heaters]]\nstage = 10\nduty = "-50 kW"\n',
+            'boilup_ratio = 2.0\nrecovery = { acetone = { distillate = 0.95 } }',
+        ),
+        ("total", "1.0", "", 'reflux_ratio = 3.0\ndistillate_rate = "25 kmol/h"\nreflux_subcooling = "10 K"'),
+        ("total", "1.0", "", 'condenser_duty = "-900 kW"\nreboiler_duty = "730 kW"'),
+        ("total", "1.0", "", 'stage_temperature = { stage = 12, value = "73.5 degC" }\nreflux_ratio = 3.0'),
+    ],
+    ids=["total", "partial", "murphree", "draws-heater-recovery", "subcooled-reflux", "duties", "stage-temperature"],
+)
+def test_column_features_converge_and_meet_specs(condenser, efficiency, extra_column, specs):
+    from conftest import case_from_text
+
+    case = case_from_text(FEATURES.format(condenser=condenser, efficiency=efficiency, extra_column=extra_column, specs=specs))
+    result = simulate(case)
+    assert result.converged, result.message
+    assert result.iterations <= 15
+    assert result.post_check["enthalpy_balance_max"] < 1e-9
+    assert result.balances()["component_closure_max"] < 1e-10
+    for spec in case.specs:
+        if spec.kind == "reflux_ratio":
+            assert result.reflux_ratio == pytest.approx(spec.value, rel=1e-8)
+        elif spec.kind == "boilup_ratio":
+            assert result.boilup_ratio == pytest.approx(spec.value, rel=1e-8)
+        elif spec.kind == "distillate_rate":
+            assert result.distillate_flow == pytest.approx(spec.value, rel=1e-8)
+        elif spec.kind == "condenser_duty":
+            assert result.condenser_duty == pytest.approx(spec.value, rel=1e-7)
+        elif spec.kind == "reboiler_duty":
+            assert result.reboiler_duty == pytest.approx(spec.value, rel=1e-7)
+        elif spec.kind == "stage_temperature":
+            assert result.temperature[spec.stage - 1] == pytest.approx(spec.value, abs=1e-7)
+        elif spec.kind == "mole_fraction":
+            assert result.bottoms_composition[2] == pytest.approx(spec.value, abs=1e-9)
+        elif spec.kind == "recovery":
+            recovered = result.distillate_flow * result.distillate_composition[0]
+            assert recovered / (60 / 3.6 * 0.25 + 20 / 3.6 * 0.05) == pytest.approx(0.95, abs=1e-9)
+    if case.column.reflux_subcooling:
+        from solver.thermo.flash import bubble_temperature
+        from solver.thermo.package import ThermoPackage
+
+        thermo = ThermoPackage.from_case(case)
+        bubble, _ = bubble_temperature(thermo, result.pressure[:1], result.x[:1])
+        assert result.temperature[0] == pytest.approx(bubble[0] - 10.0, abs=1e-6)
+    if case.column.side_draws:
+        assert result.liquid_draw[4] == pytest.approx(5 / 3.6) and result.vapor_draw[14] == pytest.approx(4 / 3.6)
+        assert result.duty[9] == pytest.approx(-50e3)

@@ -228,13 +228,6 @@ class ThermoPackage:
                 break
         return 1.0 / inverse
 
-    def boiling_points(self) -> np.ndarray:
-        """Normal boiling points (K); where a component has none (a user component whose vapor
-        pressure never reaches one atmosphere in range), 0.7 Tc as a stand-in (common practice:
-        Guldberg's rule, Tb ~ 2/3 Tc)."""
-        boiling = np.asarray(self.pure.normal_boiling_point, dtype=float)
-        return np.where(np.isfinite(boiling), boiling, 0.7 * np.asarray(self.pure.critical_temperature))
-
     # ------------------------------------------------------------------ equilibrium
     def k_values(self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, derivatives: bool = True) -> KValues:
         """Modified Raoult's law K-values at ``temperature (n,)`` K, ``pressure (n,)`` Pa and

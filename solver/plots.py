@@ -10,6 +10,7 @@ import matplotlib
 matplotlib.use("Agg")
 import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
+from matplotlib.ticker import MaxNLocator  # noqa: E402
 
 from .results import Result, write_atomic  # noqa: E402
 
@@ -22,6 +23,7 @@ def _save(figure, path: Path) -> Path:
 
 
 def _stage_axis(ax, count: int) -> None:
+    ax.yaxis.set_major_locator(MaxNLocator(integer=True))
     ax.set_ylabel("stage (1 = top)")
     ax.set_ylim(count + 0.5, 0.5)
     ax.grid(True, alpha=0.3)

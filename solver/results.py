@@ -303,6 +303,16 @@ def _json_safe(value: Any) -> Any:
     return value
 
 
+def _file_mode(target: Path) -> int:
+    """The mode an ordinary new file would get (0o666 less the umask), or the existing file's."""
+    try:
+        return target.stat().st_mode & 0o777
+    except FileNotFoundError:
+        umask = os.umask(0)
+        os.umask(umask)
+        return 0o666 & ~umask
+
+
 def write_atomic(path: str | os.PathLike, text: str | bytes) -> Path:
     """Write ``text`` to ``path`` atomically (temporary file in the same folder, then
     :func:`os.replace`)."""
@@ -315,6 +325,7 @@ def write_atomic(path: str | os.PathLike, text: str | bytes) -> Path:
             stream.write(data)
             stream.flush()
             os.fsync(stream.fileno())
+        os.chmod(temporary, _file_mode(target))
         os.replace(temporary, target)
     except BaseException:
         try:

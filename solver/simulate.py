@@ -21,7 +21,14 @@ from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
 from .newton import NewtonOptions, solve
 from .results import Result, StageFeed
-from .thermo.flash import feed_state
+from .thermo.flash import (
+    FeedState,
+    bubble_temperature,
+    dew_temperature,
+    feed_state,
+    flash_p_vapor_fraction,
+    flash_tp,
+)
 from .thermo.package import ThermoPackage
 
 POST_CHECK_TOLERANCE = 1e-7
@@ -54,14 +61,19 @@ def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[Fee
         stage = feed.stage - 1
         stage_pressure = float(graph.pressures[stage])
         pressure = feed.pressure if feed.pressure is not None else stage_pressure
-        state = feed_state(
-            thermo,
-            np.asarray(feed.composition),
-            pressure,
-            temperature=feed.temperature,
-            vapor_fraction=feed.vapor_fraction,
-            reference_pressure=stage_pressure,
-        )
+        try:
+            state = feed_state(
+                thermo,
+                np.asarray(feed.composition),
+                pressure,
+                temperature=feed.temperature,
+                vapor_fraction=feed.vapor_fraction,
+                reference_pressure=stage_pressure,
+            )
+        except ThermoError:
+            if thermo.enthalpy_model != "cmo":
+                raise
+            state = _cmo_feed_state(thermo, feed, pressure)
         if thermo.enthalpy_model == "cmo":
             enthalpy = (1.0 - state.q) * thermo.cmo_latent_heat
         else:
@@ -77,6 +89,36 @@ def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[Fee
             )
         )
     return FeedData(component_flows, enthalpy_flows), details, tuple(tuple(s) for s in per_stage)
+
+
+def _cmo_feed_state(thermo: ThermoPackage, feed, pressure: float) -> FeedState:
+    """Without real enthalpies (a user component lacking heat-capacity or latent-heat data)
+    the ``cmo`` model can still take a feed: its thermal condition is its liquid fraction,
+    q = 1 - vapor fraction (a subcooled liquid counts as saturated, a superheated vapor as
+    saturated vapor)."""
+    z = np.atleast_2d(np.asarray(feed.composition, dtype=float))
+    p = np.array([float(pressure)])
+    bubble, _ = bubble_temperature(thermo, p, z)
+    dew, _ = dew_temperature(thermo, p, z)
+    if feed.vapor_fraction is not None:
+        flash = flash_p_vapor_fraction(thermo, p, z, np.array([feed.vapor_fraction]))
+    elif feed.temperature <= bubble[0]:
+        flash = None
+        beta = 0.0
+    elif feed.temperature >= dew[0]:
+        flash = None
+        beta = 1.0
+    else:
+        flash = flash_tp(thermo, np.array([feed.temperature]), p, z)
+    if flash is not None:
+        beta = float(flash.vapor_fraction[0])
+    temperature = float(flash.temperature[0]) if flash is not None else float(feed.temperature)
+    return FeedState(
+        temperature=temperature, pressure=float(pressure), vapor_fraction=beta,
+        x=z[0] if flash is None else flash.x[0], y=z[0] if flash is None else flash.y[0],
+        enthalpy=(beta) * thermo.cmo_latent_heat, q=1.0 - beta,
+        bubble_temperature=float(bubble[0]), dew_temperature=float(dew[0]),
+    )
 
 
 def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict[str, float]:
@@ -121,6 +163,27 @@ def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict
         ),
         **balances,
     }
+
+
+VANISHING_FLOW = 1e-6  # of the total feed
+
+
+def _vanishing_streams(result: Result) -> list[str]:
+    """Names of the products and internal flows that are all but zero: such a "solution" meets
+    the MESH equations trivially (a dry tray, an empty product) and is no column at all."""
+    total = sum(feed.flow for feeds in result.stage_feeds for feed in feeds)
+    limit = VANISHING_FLOW * max(total, 1e-300)
+    found = []
+    if result.distillate_flow < limit:
+        found.append("distillate")
+    if result.bottoms_flow < limit:
+        found.append("bottoms")
+    # liquid leaving stages 1..N-1 for the stage below, vapor leaving stages 2..N for the one above
+    if np.any(result.liquid_flow[:-1] < limit):
+        found.append("liquid on some stages")
+    if np.any(result.vapor_flow[1:] < limit):
+        found.append("vapor on some stages")
+    return found
 
 
 def build_system(case: Case, thermo: ThermoPackage | None = None):
@@ -205,6 +268,16 @@ def simulate(case: Case, *, options: NewtonOptions | None = None, thermo: Thermo
             converged = False
             message = "Newton met its tolerance but the independent post-check failed: " + ", ".join(
                 f"{k} = {v:.3g}" for k, v in failed.items()
+            )
+    if converged:
+        degenerate = _vanishing_streams(result)
+        if degenerate:
+            converged = False
+            message = (
+                "the equations are met only by a column that carries (almost) no "
+                + " and no ".join(degenerate)
+                + "; the specifications cannot be met by this column (too few stages, or a feed too cold "
+                "or too hot for them)"
             )
     if converged:
         try:

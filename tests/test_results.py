@@ -62,3 +62,10 @@ def test_energy_closure_recomputed_from_streams(result):
 
     broken = dataclasses.replace(result, duty=result.duty * 1.01)
     assert broken.balances()["energy_closure_rel"] > 1e-4
+
+
+def test_atomic_write_gives_ordinary_permissions(tmp_path):
+    target = write_atomic(tmp_path / "fresh.json", "{}")
+    umask = os.umask(0)
+    os.umask(umask)
+    assert target.stat().st_mode & 0o777 == 0o666 & ~umask

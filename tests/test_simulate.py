@@ -12,7 +12,7 @@ import pytest
 
 from conftest import methanol_water_case
 from solver.case import load_case
-from solver.errors import ConvergenceError
+from solver.errors import ConvergenceError, ThermoError
 from solver.newton import NewtonOptions
 from solver.results import SCHEMA
 from solver.simulate import build_system, simulate
@@ -220,3 +220,51 @@ def test_column_features_converge_and_meet_specs(condenser, efficiency, extra_co
     if case.column.side_draws:
         assert result.liquid_draw[4] == pytest.approx(5 / 3.6) and result.vapor_draw[14] == pytest.approx(4 / 3.6)
         assert result.duty[9] == pytest.approx(-50e3)
+
+
+def test_cmo_model_runs_without_enthalpy_data():
+    """User components with only a vapor pressure: the rigorous feed enthalpy is unavailable,
+    so the cmo model takes q = 1 - vapor fraction (a subcooled feed counts as saturated)."""
+    case = load_case(Path(__file__).parent / "data" / "user_components_cmo.toml")
+    result = simulate(case)
+    assert result.converged
+    assert result.stage_feeds[4][0].q == 1.0
+    # symmetric constant-alpha column, D = F/2: the products mirror each other
+    assert result.x[0, 0] == pytest.approx(result.x[-1, 1], abs=1e-9)
+    with pytest.raises(ThermoError, match="ideal gas cp"):
+        simulate(dataclasses.replace(case, thermo=dataclasses.replace(case.thermo, enthalpy="rigorous")))
+
+
+def test_a_dry_column_is_not_reported_as_converged():
+    """Three stages cannot make a 0.61 ethanol distillate from a cold dilute feed; Newton can
+    still meet the equations with an all but empty distillate, which must not pass."""
+    from conftest import case_from_text
+
+    case = case_from_text(
+        """
+        title = "infeasible short column"
+        [components]
+        names = ["ethanol", "water"]
+        [thermo]
+        liquid = "nrtl"
+        [thermo.nrtl.ethanol.water]
+        a = [-0.178, 1.963]
+        alpha = 0.2974
+        [column]
+        stages = 3
+        condenser = "total"
+        reboiler = "partial"
+        pressure = "98.0665 kPa"
+        [[feeds]]
+        stage = 2
+        flow = "453.68 kmol/h"
+        composition = { ethanol = 0.1435, water = 0.8565 }
+        temperature = "40 degC"
+        [specs]
+        reflux_ratio = 3.0
+        distillate = { ethanol = 0.61 }
+        """
+    )
+    result = simulate(case)
+    assert not result.converged
+    assert "almost" in result.message or "no convergence" in result.message

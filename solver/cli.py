@@ -1,128 +1,277 @@
-"""The ``traystack`` command.
+"""The ``traystack`` command: ``run``, ``check``, ``sweep``, ``components``.
 
-Exit codes (DESIGN.md): 0 success; 1 a check found drift; 2 bad input or infeasible
-specification; 3 the solver did not converge (the result file is still written, marked
-``converged: false``). An unexpected internal error exits 4 with a one-line message; ``--debug``
-shows its traceback.
+Exit codes (DESIGN.md): 0 success; 1 ``check`` found drift or a case that failed; 2 bad input or
+an infeasible specification (one message naming the file, key and value; ``--debug`` shows the
+traceback); 3 the solver did not converge (``run`` still writes the result, marked
+``converged: false``; ``sweep`` when no point converged). An unexpected internal error exits 4
+with a one-line message.
+
+Each command is one ``add_*_command`` function that declares its options and one
+``command_*`` function that runs it; :data:`COMMANDS` lists them in the order of ``--help``.
 """
 
 from __future__ import annotations
 
 import argparse
-import json
+import os
 import sys
+import time
 import traceback
+from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
 from pathlib import Path
 
 from rich.console import Console
+from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
 from rich.table import Table
 
 from . import __version__
-from .errors import TraystackError
+from .errors import CaseError, ConvergenceError, TraystackError
+from .reports import CAUTION
 
-CAUTION = (
-    "Engineering estimate from models and data of limited accuracy. It does not replace review by a "
-    "qualified engineer, vendor data, or the codes and standards that apply where the column is built "
-    "(pressure equipment, relief, hazardous areas, flammable/toxic service, thermal stability of bottoms)."
-)
-
-
-def _console(quiet: bool = False) -> Console:
-    return Console(stderr=False, quiet=quiet, highlight=False, soft_wrap=False, width=110)
+#: Files of a run that show a converged solution; removed from the output folder when a later
+#: run does not converge, so that an old figure is never read as the new result.
+PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png")
 
 
-def _default_out(case_path: Path) -> Path:
-    return case_path.with_suffix("").parent / (case_path.stem + "_out")
+def _console(quiet: bool = False, stderr: bool = False) -> Console:
+    return Console(stderr=stderr, quiet=quiet, highlight=False, soft_wrap=False, width=120)
 
 
-def _summary_tables(result, display) -> list[Table]:
-    from .units import convert
+def _default_out(case_path: Path, suffix: str) -> Path:
+    """The default output folder: named after the case, in the current folder."""
+    return Path.cwd() / f"{case_path.stem}{suffix}"
 
-    t_unit = display.get("temperature", "degC")
-    p_unit = display.get("pressure", "bar")
-    f_unit = display.get("flow", "kmol/h")
-    q_unit = display.get("duty", "kW")
-    t_label = {"degC": "°C", "degF": "°F"}.get(t_unit, t_unit)
 
-    overview = Table(title=f"{result.title}", show_header=True, header_style="bold")
-    overview.add_column("quantity")
-    overview.add_column("value", justify="right")
-    overview.add_row("converged", "yes" if result.converged else "NO")
-    overview.add_row("Newton iterations", str(result.iterations))
-    overview.add_row("largest scaled residual", f"{result.residual_norm:.2e}")
-    if result.reflux_ratio is not None:
-        overview.add_row("reflux ratio L/D", f"{result.reflux_ratio:.4f}")
-    if result.boilup_ratio is not None:
-        overview.add_row("boilup ratio V/B", f"{result.boilup_ratio:.4f}")
-    if result.condenser_duty is not None:
-        overview.add_row(f"condenser duty / {q_unit}", f"{convert(result.condenser_duty, 'power', q_unit):.4g}")
-    if result.reboiler_duty is not None:
-        overview.add_row(f"reboiler duty / {q_unit}", f"{convert(result.reboiler_duty, 'power', q_unit):.4g}")
-    balances = result.balances()
-    overview.add_row("component closure", f"{balances['component_closure_max']:.1e}")
-    overview.add_row("energy closure", f"{balances['energy_closure_rel']:.1e}")
+def _executor(jobs: int) -> Executor:
+    """Worker processes for ``--jobs N`` (N > 1); a single worker thread otherwise."""
+    return ProcessPoolExecutor(max_workers=jobs) if jobs > 1 else ThreadPoolExecutor(max_workers=1)
 
-    products = Table(title="products", header_style="bold")
-    products.add_column("product")
-    products.add_column(f"flow / {f_unit}", justify="right")
-    products.add_column(f"T / {t_label}", justify="right")
-    for name in result.components:
-        products.add_column(f"x {name}", justify="right")
-    for name, product in result.products().items():
-        products.add_row(
-            name,
-            f"{convert(product['flow'], 'molar_flow', f_unit):.5g}",
-            f"{convert(product['T'], 'temperature', t_unit):.2f}",
-            *[f"{value:.6f}" for value in product["composition"]],
-        )
 
-    stages = Table(title="stages", header_style="bold")
-    for column in ("stage", f"T / {t_label}", f"P / {p_unit}", f"L / {f_unit}", f"V / {f_unit}"):
-        stages.add_column(column, justify="right")
-    for name in result.components:
-        stages.add_column(f"x {name}", justify="right")
-    for record in result.stage_records():
-        stages.add_row(
-            f"{record['number']}{' ' + record['role'].split('_')[0] if record['role'] != 'tray' else ''}",
-            f"{convert(record['T'], 'temperature', t_unit):.2f}",
-            f"{convert(record['P'], 'pressure', p_unit):.4f}",
-            f"{convert(record['L'], 'molar_flow', f_unit):.4g}",
-            f"{convert(record['V'], 'molar_flow', f_unit):.4g}",
-            *[f"{value:.5f}" for value in record["x"]],
-        )
-    return [overview, products, stages]
+def _progress(console: Console) -> Progress:
+    # auto_refresh=False: no refresh thread, so worker processes are never forked while one runs
+    return Progress(
+        TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
+        console=console, auto_refresh=False, transient=True, disable=not console.is_terminal,
+    )
+
+
+def _positive_int(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"{value} is not at least 1")
+    return value
+
+
+# =======================================================================================
+# run
+# =======================================================================================
 
 
 def command_run(args: argparse.Namespace) -> int:
     from .case import load_case
+    from .newton import NewtonOptions
     from .plots import write_all
+    from .reports import cautions, display_units, summary_tables, write_summary
     from .results import write_result_json, write_stages_csv
     from .simulate import simulate
+    from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)
     case_path = Path(args.case)
     case = load_case(case_path)
-    result = simulate(case)
-    out = Path(args.out) if args.out else _default_out(case_path)
-    write_result_json(result, out / "result.json")
-    write_stages_csv(result, out / "stages.csv")
+    units = display_units(case.display, args.units)
+    options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
+    try:
+        result = simulate(case, options=options)
+    except ConvergenceError as exc:
+        if exc.result is None:
+            raise
+        result = exc.result
+    out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
+    plots = []
     if result.converged:
-        write_all(result, out)
-    display = dict(case.display)
-    if args.units:
-        for item in args.units.split(","):
-            key, _, unit = item.partition("=")
-            display[key.strip()] = unit.strip()
+        plots = write_all(result, out, thermo=ThermoPackage.from_case(case))
+    else:
+        for name in PLOT_FILES:
+            (out / name).unlink(missing_ok=True)
+    written.append(write_summary(result, out / "summary.md", units, [path.name for path in plots]))
+    written += plots
     if args.json:
         print(result.to_json())
-    else:
-        for table in _summary_tables(result, display):
-            console.print(table)
-        console.print(f"files written to {out}/ (result.json, stages.csv{', plots' if result.converged else ''})")
-        if not result.converged:
-            console.print(f"[bold red]NOT CONVERGED[/]: {result.message}")
-        console.print(f"[dim]Caution: {CAUTION}[/]")
-    return 0 if result.converged else 3
+    for table in summary_tables(result, units):
+        console.print(table)
+    for text in cautions(result)[:-1]:
+        console.print(f"[yellow]caution:[/] {text}")
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    if not result.converged:
+        print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
+              "marked converged: false", file=sys.stderr)
+        return 3
+    return 0
+
+
+def add_run_command(sub) -> None:
+    run = sub.add_parser("run", help="rigorous solve of a case; summary on screen; result.json, stages.csv, summary.md, plots")
+    run.add_argument("case", help="case file (TOML)")
+    run.add_argument("--out", metavar="DIR", help="output folder (default: CASE_out in the current folder)")
+    run.add_argument("--units", help="screen and summary units: 'si', or e.g. temperature=degF,pressure=psi,flow=lbmol/h,duty=kW "
+                     "(default: the case's [display] table, else degC, bar, kmol/h, kW)")
+    run.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+    run.add_argument("--json", action="store_true", help="print the result JSON on stdout (and nothing else there)")
+    run.add_argument("--max-iterations", type=_positive_int, metavar="N",
+                     help="diagnostic: limit Newton to N iterations (default 60), e.g. to see a partial solve")
+    run.set_defaults(handler=command_run)
+
+
+# =======================================================================================
+# check
+# =======================================================================================
+
+
+def _moved(check, limit: int = 4) -> str:
+    from .regress import FAILED
+
+    if check.status == FAILED:
+        return check.message
+    lines = [deviation.describe() for deviation in check.deviations[:limit]]
+    if len(check.deviations) > limit:
+        lines.append(f"... and {len(check.deviations) - limit} more")
+    if check.baseline_version and check.baseline_version != __version__:
+        lines.append(f"(baseline from traystack {check.baseline_version})")
+    return "\n".join(lines)
+
+
+def command_check(args: argparse.Namespace) -> int:
+    from .regress import DRIFT, FAILED, NO_BASELINE, PASS, check_cases, find_cases, junit_xml
+    from .results import write_atomic
+
+    console = _console()
+    cases = find_cases(args.cases)
+    started = time.perf_counter()
+    styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
+    with _executor(args.jobs) as executor, _progress(console) as progress:
+        task = progress.add_task("checking cases", total=len(cases))
+
+        def advance(check) -> None:
+            progress.advance(task)
+            progress.refresh()
+
+        checks = check_cases(cases, executor, update=args.update, progress=advance)
+    seconds = time.perf_counter() - started
+    table = Table(title=f"traystack check {args.cases}", header_style="bold")
+    for column in ("case", "status", "iterations", "time / s", "what moved (baseline -> now)"):
+        table.add_column(column, justify="right" if column in ("iterations", "time / s") else "left")
+    for check in checks:
+        style = styles.get(check.status, "cyan")
+        table.add_row(check.name, f"[{style}]{check.status}[/]", "" if check.iterations is None else str(check.iterations),
+                      f"{check.seconds:.2f}", _moved(check))
+    console.print(table)
+    counts = {status: sum(check.status == status for check in checks) for status in (PASS, DRIFT, FAILED, NO_BASELINE)}
+    written = len(checks) - sum(counts.values())
+    summary = (f"{len(checks)} case(s) in {seconds:.1f} s: {counts[PASS]} pass, {counts[DRIFT]} drift, "
+               f"{counts[FAILED]} failed, {counts[NO_BASELINE]} without baseline")
+    if written:
+        summary += f", {written} baseline(s) written"
+    console.print(summary)
+    if counts[NO_BASELINE]:
+        console.print("Cases without a baseline are not failures; `traystack check --update` records one.")
+    if counts[DRIFT] and not args.update:
+        console.print("Baselines are unchanged; if the change is intended, rerun with --update and commit the baselines.")
+    if args.junit:
+        write_atomic(args.junit, junit_xml(checks, seconds=seconds))
+        console.print(f"JUnit report written to {args.junit}")
+    return 0 if all(check.ok for check in checks) else 1
+
+
+def add_check_command(sub) -> None:
+    check = sub.add_parser("check", help="re-run every case that has a baseline and compare (for CI); exit 1 on drift")
+    check.add_argument("cases", metavar="CASES_DIR", help="folder of NAME.toml cases with NAME.expected.json baselines (or one case)")
+    check.add_argument("--update", action="store_true",
+                       help="write a baseline for every case that drifted or had none (atomically); passing baselines "
+                       "are left untouched, a case that fails gets none")
+    check.add_argument("--junit", metavar="FILE", help="also write a JUnit XML report to FILE")
+    check.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="run N cases at a time in worker processes (default 1)")
+    check.set_defaults(handler=command_check)
+
+
+# =======================================================================================
+# sweep
+# =======================================================================================
+
+
+def command_sweep(args: argparse.Namespace) -> int:
+    from .case import load_case
+    from .sweep import load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+
+    console = _console()
+    case_path = Path(args.case)
+    base = load_case(case_path)  # a bad case is reported before any point runs
+    document = load_document(case_path)
+    variations = [parse_variation(text) for text in args.vary]
+    if len(variations) > 2:
+        raise CaseError("at most two keys can be varied", key="--vary", value=[v.key for v in variations])
+    out = Path(args.out) if args.out else _default_out(case_path, "_sweep")
+    total = 1
+    for variation in variations:
+        total *= len(variation.values)
+    with _executor(args.jobs) as executor, _progress(console) as progress:
+        task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
+
+        def advance(outcome) -> None:
+            progress.advance(task)
+            progress.refresh()
+
+        result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+    files = [write_sweep_csv(result, out / "sweep.csv")]
+    figure = write_sweep_plot(result, out / "sweep.png", base.title)
+    if figure is not None:
+        files.append(figure)
+
+    table = Table(title=f"sweep: {base.title or case_path.name}", header_style="bold")
+    for variation in variations:
+        table.add_column(variation.label, justify="right")
+    for column in ("status", "iterations", "reboiler duty / kW", "condenser duty / kW", *[f"x_D {n}" for n in result.components[:2]]):
+        table.add_column(column, justify="right")
+    for outcome in result.outcomes:
+        cells = [str(value) for value in outcome.values]
+        if outcome.converged:
+            distillate = outcome.products["distillate"][1]
+            cells += ["converged", str(outcome.iterations), f"{(outcome.reboiler_duty or 0) / 1e3:.5g}",
+                      f"{(outcome.condenser_duty or 0) / 1e3:.5g}", *[f"{x:.6f}" for x in distillate[:2]]]
+        else:
+            cells += [f"[bold red]{outcome.status}[/]", "" if outcome.iterations is None else str(outcome.iterations),
+                      "", "", *[""] * min(2, len(result.components))]
+        table.add_row(*cells)
+    console.print(table)
+    for outcome in result.failed:
+        console.print(f"[bold red]point {outcome.index + 1} failed[/] ({outcome.status}): {outcome.message}")
+    converged = len(result.outcomes) - len(result.failed)
+    console.print(f"{converged} of {len(result.outcomes)} points converged; files written to {out}{os.sep}: "
+                  + ", ".join(path.name for path in files))
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    return 0 if converged else 3
+
+
+def add_sweep_command(sub) -> None:
+    sweep = sub.add_parser("sweep", help="parametric study over one or two case keys, with a progress bar; CSV and plot")
+    sweep.add_argument("case", help="case file (TOML)")
+    sweep.add_argument("--vary", action="append", required=True, metavar="KEY=START:STOP:COUNT",
+                       help="a key of the case file (dotted path, e.g. specs.reflux_ratio, feeds[0].stage, column.pressure.top) "
+                       "and COUNT evenly spaced values; START and STOP may carry a unit ('feeds[0].temperature=40 degC:70 degC:4'); "
+                       "give it twice for a grid")
+    sweep.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="solve N points at a time in worker processes (default 1)")
+    sweep.add_argument("--out", metavar="DIR", help="output folder (default: CASE_sweep in the current folder)")
+    sweep.set_defaults(handler=command_sweep)
+
+
+# =======================================================================================
+# components
+# =======================================================================================
 
 
 def command_components(args: argparse.Namespace) -> int:
@@ -146,27 +295,30 @@ def command_components(args: argparse.Namespace) -> int:
     return 0
 
 
+def add_components_command(sub) -> None:
+    components = sub.add_parser("components", help="list the components that can be used")
+    components.add_argument("pattern", nargs="?", help="part of a name, or a glob such as 'n-*'")
+    components.set_defaults(handler=command_components)
+
+
+#: The commands in the order ``--help`` lists them (the shortcut and audit commands go after run).
+COMMANDS = (add_run_command, add_check_command, add_sweep_command, add_components_command)
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="traystack",
         description="Rigorous tray-by-tray distillation column simulation (MESH equations, Newton's method).",
-        epilog="Caution: " + CAUTION,
+        epilog="Exit codes: 0 success, 1 check found drift, 2 bad input or infeasible specification, "
+        "3 not converged, 4 internal error. Caution: " + CAUTION,
     )
     parser.add_argument("--version", action="version", version=f"traystack {__version__}")
     parser.add_argument("--debug", action="store_true", help="show the traceback of an error")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-
-    run = sub.add_parser("run", help="rigorous solve of a case; summary on screen; result.json, stages.csv and plots")
-    run.add_argument("case", help="case file (TOML)")
-    run.add_argument("--out", help="output folder (default: CASE_out next to the case file)")
-    run.add_argument("--units", help="screen units, e.g. temperature=degC,pressure=bar,flow=kmol/h,duty=kW")
-    run.add_argument("--quiet", action="store_true", help="print nothing but errors")
-    run.add_argument("--json", action="store_true", help="print the result JSON on stdout")
-    run.set_defaults(handler=command_run)
-
-    components = sub.add_parser("components", help="list the components that can be used")
-    components.add_argument("pattern", nargs="?", help="part of a name, or a glob such as 'n-*'")
-    components.set_defaults(handler=command_components)
+    for add_command in COMMANDS:
+        add_command(sub)
+    for command in sub.choices.values():  # --debug also after the command name
+        command.add_argument("--debug", action="store_true", default=argparse.SUPPRESS, help="show the traceback of an error")
     return parser
 
 

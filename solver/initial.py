@@ -201,19 +201,37 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
     except ThermoError:
         pass
 
-    state = {"T": T, "x": x}
+    state = {"T": T, "x": x, "reflux_factor": None}
 
-    def profile(D: float):
-        L, V = cmo_flows(system, D, top_vapor(D), stage_feed_totals, stage_q)
+    def vapor_for(D: float) -> float:
+        if state["reflux_factor"] is not None:
+            return state["reflux_factor"] * D
+        return top_vapor(D)
+
+    def profile(D: float, V_top: float | None = None):
+        L, V = cmo_flows(system, D, vapor_for(D) if V_top is None else V_top, stage_feed_totals, stage_q)
         T, x, l, stripping = wang_henke_sweeps(system, L, V, state["T"], state["x"])
         state["T"], state["x"] = T, x
         return L, V, T, x, l, stripping
 
-    L, V, T, x, l, stripping = profile(D)
     profile_specs = [spec for spec in specs if spec.kind in _PROFILE_SPECS]
+    F_net = float(system.total_feed_by_component.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
     if adjustable and profile_specs:
-        D = _meet_composition_spec(system, profile_specs[0], D, profile)
-        L, V, T, x, l, stripping = profile(D)
+        first = profile_specs[0]
+        second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None
+        rounds = 2 if second is not None else 1
+        for _ in range(rounds):
+            D = _root_by_walking(
+                lambda trial: _profile_spec_error(system, first, profile(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-4 * F_net
+            )
+            if second is None:
+                break
+            factor = vapor_for(D) / D  # V_top / D = R + 1
+            factor = _root_by_walking(
+                lambda trial: _profile_spec_error(system, second, profile(D, trial * D)), factor, 1.05, 200.0, 1e-3
+            )
+            state["reflux_factor"] = factor
+    L, V, T, x, l, stripping = profile(D)
 
     t = system.top
     if np.all(l.sum(axis=1) <= 2.0 * L):
@@ -275,46 +293,48 @@ def wang_henke_sweeps(system: MeshSystem, L: np.ndarray, V: np.ndarray, T: np.nd
     return T, x, l, stripping
 
 
-def _meet_composition_spec(system: MeshSystem, spec: Spec, D: float, profile) -> float:
-    """Move the overhead rate so that the CMO profile meets a product composition or recovery
-    spec (Brent's method, Brent 1973, on a bracket found by stepping out from D)."""
-    feed = system.total_feed_by_component
-    F_net = float(feed.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
+def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float:
+    """How far a CMO profile is from meeting a composition, recovery or temperature spec."""
+    L, V, T, x, l, stripping = profile_result
+    if spec.kind == "stage_temperature":
+        return float(T[spec.stage - 1] - spec.value) / 10.0
+    top = stripping[system.top] * l[system.top]
+    bottom = l[system.bottom]
+    return _spec_error(spec, top, bottom, system.total_feed_by_component, system.component_names)
 
-    def error(D: float) -> float:
-        L, V, T, x, l, stripping = profile(D)
-        if spec.kind == "stage_temperature":
-            return float(T[spec.stage - 1] - spec.value) / 10.0
-        top = stripping[system.top] * l[system.top]
-        bottom = l[system.bottom]
-        return _spec_error(spec, top, bottom, feed, system.component_names)
 
-    low, high = 0.01 * F_net, 0.99 * F_net
-    value = error(D)
+def _root_by_walking(error, start: float, low: float, high: float, tolerance: float) -> float:
+    """A root of ``error`` near ``start`` in [low, high]: step out (widening the step) first in
+    the direction in which |error| shrinks, then in the other one (the error need not be
+    monotone), and finish with Brent's method (Brent 1973) on the bracket. Returns ``start``
+    when no sign change is found."""
+    value = error(start)
     if not np.isfinite(value) or value == 0.0:
-        return D
-    probe = float(np.clip(D * 1.02, low, high))
+        return start
+    probe = float(np.clip(start * 1.02, low, high))
     probe_value = error(probe)
     if np.isfinite(probe_value) and np.sign(probe_value) != np.sign(value):
-        return _bracketed(error, D, probe, F_net, D)
-    # walk in the direction in which the error shrinks, widening the step, until it changes sign
-    direction = 1.0 if np.isfinite(probe_value) and abs(probe_value) < abs(value) else -1.0
-    a, fa = D, value
-    step = 0.05 * D
-    for _ in range(14):
-        b = float(np.clip(a + direction * step, low, high))
-        fb = error(b)
-        if np.isfinite(fb) and np.sign(fb) != np.sign(fa):
-            return _bracketed(error, a, b, F_net, D)
-        if b in (low, high) or not np.isfinite(fb):
-            return D
-        a, fa = b, fb
-        step *= 1.6
-    return D
+        return _bracketed(error, start, probe, tolerance, start)
+    first = 1.0 if np.isfinite(probe_value) and abs(probe_value) < abs(value) else -1.0
+    for direction in (first, -first):
+        a, fa = start, value
+        step = 0.05 * start
+        for _ in range(14):
+            b = float(np.clip(a + direction * step, low, high))
+            fb = error(b)
+            if not np.isfinite(fb):
+                break
+            if np.sign(fb) != np.sign(fa):
+                return _bracketed(error, a, b, tolerance, start)
+            if b in (low, high):
+                break
+            a, fa = b, fb
+            step *= 1.6
+    return start
 
 
-def _bracketed(error, a: float, b: float, F_net: float, fallback: float) -> float:
+def _bracketed(error, a: float, b: float, tolerance: float, fallback: float) -> float:
     try:
-        return float(brentq(error, min(a, b), max(a, b), xtol=1e-6 * F_net, maxiter=40))
+        return float(brentq(error, min(a, b), max(a, b), xtol=tolerance, maxiter=40))
     except (ValueError, RuntimeError):
         return fallback

@@ -1,9 +1,17 @@
-"""Figures of a column solution (matplotlib, Agg backend, PNG files written atomically)."""
+"""Figures of a column solution (matplotlib, Agg backend, PNG files written atomically).
+
+Profiles against stage number (temperature, internal liquid and vapor flows, liquid
+compositions), for a binary the y-x diagram, and the figure of a parameter sweep. The y-x
+diagram takes extra *layers* (functions that draw on its axes), so that the shortcut design's
+straight operating lines and steps can be laid over the rigorous solution without changing
+this module.
+"""
 
 from __future__ import annotations
 
 import io
 from pathlib import Path
+from typing import Callable, Mapping, Sequence
 
 import matplotlib
 
@@ -13,6 +21,11 @@ import numpy as np  # noqa: E402
 from matplotlib.ticker import MaxNLocator  # noqa: E402
 
 from .results import Result, write_atomic  # noqa: E402
+from .thermo.flash import bubble_temperature  # noqa: E402
+
+#: Something that draws on the y-x diagram: called as ``layer(axes, light)``, ``light`` being the
+#: index of the component whose mole fractions are on the axes.
+YXLayer = Callable[[plt.Axes, int], None]
 
 
 def _save(figure, path: Path) -> Path:
@@ -71,10 +84,118 @@ def composition_profiles(result: Result, path: Path) -> Path:
     return _save(figure, path)
 
 
-def write_all(result: Result, folder: Path) -> list[Path]:
+def light_component(result: Result) -> int:
+    """Index of the component the distillate is richest in, against the bottoms."""
+    return int(np.argmax(result.distillate_composition - result.bottoms_composition))
+
+
+def equilibrium_curve(thermo, pressure: float, light: int = 0, points: int = 101) -> tuple[np.ndarray, np.ndarray]:
+    """Liquid ``x`` and equilibrium vapor ``y`` mole fractions of component ``light`` of a
+    binary at ``pressure`` [Pa], by bubble points of the case's thermo package (the same
+    K-values as the column solution: modified Raoult's law with its activity model)."""
+    x = np.linspace(0.0, 1.0, points)
+    liquid = np.zeros((points, 2))
+    liquid[:, light] = x
+    liquid[:, 1 - light] = 1.0 - x
+    _, vapor = bubble_temperature(thermo, np.full(points, float(pressure)), liquid)
+    return x, vapor[:, light]
+
+
+def _balance_sections(result: Result) -> np.ndarray:
+    """For each pair of stages (j, j+1), top first, the number of stages below the top one
+    with a feed, side draw or side heater inside the balance envelope above the pair: the
+    operating curve (x_j, y_j+1) jumps where this number changes."""
+    special = np.zeros(result.stage_count, dtype=bool)
+    special |= np.array([len(feeds) > 0 for feeds in result.stage_feeds])
+    special |= (result.liquid_draw > 0) | (result.vapor_draw > 0)
+    interior = np.ones(result.stage_count, dtype=bool)
+    interior[[0, -1]] = False
+    special |= interior & (np.abs(result.duty) > 0)
+    special[0] = False
+    return np.cumsum(special)[:-1]
+
+
+def yx_diagram(result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = ()) -> Path:
+    """The y-x diagram of a binary column: the equilibrium curve at the mean column pressure
+    (when ``thermo`` is given), the rigorous stages (x_j, y_j), the rigorous operating curve
+    (x_j, y_j+1) — straight only under constant molar overflow — and the staircase between
+    them; then each of ``layers``."""
+    if len(result.components) != 2:
+        raise ValueError(f"a y-x diagram needs a binary, not {len(result.components)} components")
+    light = light_component(result)
+    x, y = result.x[:, light], result.y[:, light]
+    figure, ax = plt.subplots(figsize=(6, 6))
+    ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
+    if thermo is not None:
+        pressure = float(np.mean(result.pressure))
+        curve_x, curve_y = equilibrium_curve(thermo, pressure, light)
+        ax.plot(curve_x, curve_y, color="tab:blue", label=f"equilibrium at {pressure / 1e5:.4g} bar (mean column pressure)")
+    first = 1 if result.condenser == "total" else 0  # a total condenser is no equilibrium stage
+    steps_x, steps_y = [y[first]], [y[first]]
+    for j in range(first, result.stage_count):
+        steps_x.append(x[j])
+        steps_y.append(y[j])
+        if j + 1 < result.stage_count:
+            steps_x.append(x[j])
+            steps_y.append(y[j + 1])
+    ax.plot(steps_x, steps_y, color="0.35", linewidth=0.7, label="rigorous stages (staircase)")
+    ax.plot(x[first:], y[first:], "o", color="tab:blue", markersize=3.5, label="stage (x_j, y_j)")
+    sections = _balance_sections(result)
+    for number, section in enumerate(np.unique(sections)):
+        pairs = np.flatnonzero(sections == section)
+        ax.plot(x[pairs], y[pairs + 1], "s-", color="tab:red", markersize=3, linewidth=1.2,
+                label="rigorous operating curve (x_j, y_j+1)" if number == 0 else None)
+    for layer in layers:
+        layer(ax, light)
+    name = result.components[light]
+    ax.set_xlabel(f"liquid mole fraction {name}")
+    ax.set_ylabel(f"vapor mole fraction {name}")
+    ax.set_xlim(0, 1)
+    ax.set_ylim(0, 1)
+    ax.set_aspect("equal")
+    ax.grid(True, alpha=0.3)
+    ax.legend(loc="lower right", fontsize=7)
+    ax.set_title(result.title, fontsize=9)
+    return _save(figure, path)
+
+
+def write_all(result: Result, folder: Path, *, thermo=None, yx_layers: Sequence[YXLayer] = ()) -> list[Path]:
+    """Every figure of a run into ``folder``: temperature.png, flows.png, compositions.png and,
+    for a binary, yx.png (with the equilibrium curve when ``thermo`` is given)."""
     folder = Path(folder)
-    return [
+    written = [
         temperature_profile(result, folder / "temperature.png"),
         flow_profiles(result, folder / "flows.png"),
         composition_profiles(result, folder / "compositions.png"),
     ]
+    if len(result.components) == 2:
+        written.append(yx_diagram(result, folder / "yx.png", thermo=thermo, layers=yx_layers))
+    return written
+
+
+def sweep_plot(
+    x: np.ndarray,
+    x_label: str,
+    groups: Mapping[str, Mapping[str, np.ndarray]],
+    panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
+    path: Path,
+    title: str = "",
+) -> Path:
+    """Results of a parameter sweep against the first varied key.
+
+    ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
+    columns of values along ``x`` (NaN where a point failed, which leaves a gap); ``panels``
+    is one ``(axis label, [(column, line label), ...])`` per subplot."""
+    figure, axes = plt.subplots(len(panels), 1, figsize=(6.5, 2.8 * len(panels)), sharex=True, squeeze=False)
+    for ax, (axis_label, columns) in zip(axes[:, 0], panels):
+        for group, values in groups.items():
+            for column, line_label in columns:
+                label = f"{line_label}, {group}" if group else line_label
+                ax.plot(x, values[column], "o-", markersize=3.5, label=label)
+        ax.set_ylabel(axis_label)
+        ax.grid(True, alpha=0.3)
+        ax.legend(loc="best", fontsize=7)
+    axes[-1, 0].set_xlabel(x_label)
+    if title:
+        axes[0, 0].set_title(title, fontsize=9)
+    return _save(figure, path)

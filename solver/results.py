@@ -81,6 +81,7 @@ class Result:
     iteration_log: tuple[Mapping[str, float], ...]
     enthalpy_model: str = "rigorous"
     post_check: Mapping[str, float] = field(default_factory=dict)
+    strategy: Mapping[str, Any] = field(default_factory=dict)  # which rung of the fallback chain solved it
     extra: Mapping[str, Any] = field(default_factory=dict)  # shortcut, audit, ... added downstream
 
     @property
@@ -250,6 +251,7 @@ class Result:
                 "boilup_ratio": self.boilup_ratio,
                 "balances": self.balances(),
                 "post_check": dict(self.post_check),
+                "solution_strategy": dict(self.strategy),
                 "thermo": self.thermo,
                 "iteration_log": [dict(entry) for entry in self.iteration_log],
                 **{key: value for key, value in self.extra.items()},

@@ -16,6 +16,7 @@ import numpy as np
 
 from .case import Case
 from .errors import ConvergenceError, ThermoError
+from .continuation import continue_to_real_model
 from .initial import initial_estimate
 from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
@@ -242,22 +243,56 @@ def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) ->
     )
 
 
-def simulate(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None, start: np.ndarray | None = None) -> Result:
+def simulate(
+    case: Case,
+    *,
+    options: NewtonOptions | None = None,
+    thermo: ThermoPackage | None = None,
+    start: np.ndarray | None = None,
+    continuation: bool = True,
+) -> Result:
     """Solve the column of ``case`` rigorously. Always returns a Result; ``converged`` tells
-    whether it may be used. Raises :class:`ConvergenceError` only for NaN/inf (naming the
+    whether it may be used.
+
+    The fallback chain: (1) damped Newton from the default start (backtracking line search,
+    then the dogleg path when no step length lowers the residuals); (2) if that fails,
+    homotopy continuation from ideal K-values and CMO enthalpies to the real model
+    (:mod:`solver.continuation`). ``Result.strategy`` records the rung that solved it. Raises :class:`ConvergenceError` only for NaN/inf (naming the
     stage and variable), and :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for
     bad input."""
     thermo, graph, system, details, stage_feeds = build_system(case, thermo)
+    options = options or NewtonOptions()
     X0 = start if start is not None else initial_estimate(system, case.specs, details, graph.feed_stages)
     newton = solve(
         system.evaluate,
         X0,
         system.temperature_index(),
         system.flow_mask(),
-        options or NewtonOptions(),
+        options,
         describe_variable=system.variable_name,
         describe_equation=system.equation_name,
     )
+    full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
+    strategy: dict[str, Any] = {
+        "rung": ("newton" if full_steps else "damped newton") if newton.converged else None,
+        "newton_iterations": newton.iterations,
+    }
+    if not newton.converged and start is None and continuation:
+        cmo_flows = np.zeros(graph.stage_count)
+        np.add.at(
+            cmo_flows,
+            graph.feed_stages,
+            [d["flow"] * (1.0 - d["q"]) * thermo.cmo_latent_heat for d in details],
+        )
+        path = continue_to_real_model(system, case.specs, details, cmo_flows, options)
+        strategy["homotopy_path"] = [point.as_dict() for point in path.path]
+        strategy["homotopy_reached"] = path.reached
+        if path.converged:
+            newton = path.newton
+            strategy["rung"] = "homotopy"
+        else:
+            strategy["rung"] = None
+    strategy["chain"] = "damped Newton (line search, dogleg) from the default start; then homotopy from ideal K-values and CMO enthalpies"
     result = result_from_solution(case, thermo, graph, system, stage_feeds, newton.X, newton)
     check = post_check(result, thermo, graph)
     message = result.message
@@ -285,4 +320,4 @@ def simulate(case: Case, *, options: NewtonOptions | None = None, thermo: Thermo
         except ThermoError as exc:
             converged = False
             message = f"solution outside the property models' range: {exc}"
-    return dataclasses.replace(result, converged=converged, message=message, post_check=check)
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)

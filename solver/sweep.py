@@ -1,0 +1,433 @@
+"""Parametric studies: ``traystack sweep CASE.toml --vary KEY=START:STOP:COUNT``.
+
+A *key* is a dotted path into the case's TOML document, with ``[n]`` for an item of an array
+of tables: ``specs.reflux_ratio``, ``feeds[0].stage``, ``column.stages``,
+``column.pressure.top``, ``feeds[0].temperature``, ``specs.bottoms.water``. Each point writes
+its values into a copy of the parsed TOML document and validates it again with
+:func:`solver.case.parse_case`, so every value goes through the same checks and unit
+conversion as a case file: ``--vary 'feeds[0].temperature=40 degC:70 degC:4'`` writes
+``"40 degC"``, ``"50 degC"``, ... One key gives a line of points, two keys their grid.
+
+Points are solved through the :class:`concurrent.futures.Executor` interface: the caller hands
+in an executor (the command line makes a :class:`~concurrent.futures.ProcessPoolExecutor`; a
+distributed one, such as the executor of a Dask ``Client``, plugs in the same way). What goes
+to a worker is plain data (the TOML document as a dict and the key/value assignments), so it
+pickles. A point that fails (bad value at that point, infeasible specification, no
+convergence) is reported with its message; the other points go on.
+"""
+
+from __future__ import annotations
+
+import copy
+import csv
+import io
+import itertools
+import math
+import os
+import re
+import time
+import tomllib
+from concurrent.futures import Executor, as_completed
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any, Callable, Mapping, Sequence
+
+import numpy as np
+
+from .case import parse_case
+from .errors import CaseError, ConvergenceError, SpecError, ThermoError, TraystackError
+from .plots import sweep_plot
+from .results import write_atomic
+from .simulate import simulate
+
+__all__ = [
+    "Variation",
+    "PointOutcome",
+    "SweepResult",
+    "MAX_POINTS",
+    "parse_key",
+    "parse_variation",
+    "set_value",
+    "load_document",
+    "sweep_points",
+    "solve_point",
+    "run_sweep",
+    "sweep_csv",
+    "write_sweep_csv",
+    "write_sweep_plot",
+]
+
+#: More points than this is taken as a typing error, not a study.
+MAX_POINTS = 10_000
+#: Significant digits of an interpolated value (so that 0.1 steps print as 0.1, not 0.30000000000000004).
+VALUE_DIGITS = 12
+
+_SEGMENT = re.compile(r"([A-Za-z0-9_\-]+)((?:\[[0-9]+\])*)")
+_INDEX = re.compile(r"\[([0-9]+)\]")
+_NUMBER = re.compile(r"\s*([+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)\s*(.*?)\s*")
+_INTEGER = re.compile(r"[+-]?[0-9]+")
+
+PathPart = str | int
+
+
+@dataclass(frozen=True)
+class Variation:
+    """One varied key: its path into the TOML document and the values written there."""
+
+    key: str  # as written on the command line
+    path: tuple[PathPart, ...]
+    values: tuple[Any, ...]  # numbers, or strings with units ("40 degC")
+    magnitudes: tuple[float, ...]  # the numbers, in ``unit``
+    unit: str = ""
+
+    @property
+    def label(self) -> str:
+        return f"{self.key} [{self.unit}]" if self.unit else self.key
+
+
+@dataclass(frozen=True)
+class PointOutcome:
+    """The solution of one point, as plain numbers in SI (mol/s, W), or why there is none."""
+
+    index: int
+    values: tuple[Any, ...]  # one per variation
+    status: str  # converged | not converged | bad input | infeasible | thermo error | internal error
+    message: str = ""
+    iterations: int | None = None
+    residual_norm: float | None = None
+    condenser_duty: float | None = None
+    reboiler_duty: float | None = None
+    reflux_ratio: float | None = None
+    boilup_ratio: float | None = None
+    products: Mapping[str, tuple[float, tuple[float, ...]]] | None = None  # name -> (flow, composition)
+    seconds: float = 0.0
+
+    @property
+    def converged(self) -> bool:
+        return self.status == "converged"
+
+
+@dataclass(frozen=True)
+class SweepResult:
+    variations: tuple[Variation, ...]
+    components: tuple[str, ...]
+    outcomes: tuple[PointOutcome, ...]  # in point order
+
+    @property
+    def failed(self) -> tuple[PointOutcome, ...]:
+        return tuple(outcome for outcome in self.outcomes if not outcome.converged)
+
+
+# =======================================================================================
+# Keys and values
+# =======================================================================================
+
+
+def _bad(problem: str, key: str, value: Any = None, expected: str | None = None) -> CaseError:
+    return CaseError(problem, key=f"--vary {key}", value=value, expected=expected)
+
+
+def parse_key(key: str) -> tuple[PathPart, ...]:
+    """``"feeds[0].temperature"`` -> ``("feeds", 0, "temperature")``."""
+    parts: list[PathPart] = []
+    for segment in key.split("."):
+        match = _SEGMENT.fullmatch(segment)
+        if not match:
+            raise _bad("cannot read the key", key, key,
+                       "a dotted path into the case file such as specs.reflux_ratio or feeds[0].temperature")
+        parts.append(match.group(1))
+        parts.extend(int(index) for index in _INDEX.findall(match.group(2)))
+    return tuple(parts)
+
+
+def _spell(path: Sequence[PathPart]) -> str:
+    text = ""
+    for part in path:
+        text += f"[{part}]" if isinstance(part, int) else (f".{part}" if text else part)
+    return text
+
+
+def _container(document: Any, path: Sequence[PathPart], key: str) -> Any:
+    """The table or array that holds the last part of ``path``."""
+    here = document
+    for depth, part in enumerate(path[:-1]):
+        where = _spell(path[: depth + 1])
+        if isinstance(part, int):
+            if not isinstance(here, list) or part >= len(here):
+                size = len(here) if isinstance(here, list) else 0
+                raise _bad(f"the case has no {where} ({_spell(path[:depth]) or 'it'} has {size} item(s))", key)
+            here = here[part]
+        else:
+            if not isinstance(here, dict) or part not in here:
+                raise _bad(f"the case has no {where}", key, expected="a key the case file holds")
+            here = here[part]
+        if not isinstance(here, (dict, list)):
+            raise _bad(f"{where} is a value ({here!r}), not a table or array", key)
+    return here
+
+
+def set_value(document: dict, path: Sequence[PathPart], value: Any, key: str = "") -> None:
+    """Write ``value`` at ``path`` into ``document`` (in place). The tables and arrays on the
+    way must exist; the last key of a table may be new. Raises :class:`CaseError`."""
+    key = key or _spell(path)
+    holder, last = _container(document, path, key), path[-1]
+    if isinstance(last, int):
+        if not isinstance(holder, list) or last >= len(holder):
+            raise _bad(f"the case has no {_spell(path)}", key)
+    elif not isinstance(holder, dict):
+        raise _bad(f"{_spell(path[:-1])} is an array; give an item number like {_spell(path[:-1])}[0]", key)
+    holder[last] = value
+
+
+def _split_quantity(text: str, key: str) -> tuple[float, str, bool]:
+    match = _NUMBER.fullmatch(text)
+    if not match:
+        raise _bad("START and STOP must be numbers, optionally with a unit", key, text, "like 1.2 or '40 degC'")
+    number = float(match.group(1))
+    if not math.isfinite(number):
+        raise _bad("not a finite number", key, text)
+    return number, match.group(2), bool(_INTEGER.fullmatch(match.group(1)))
+
+
+def parse_variation(text: str) -> Variation:
+    """``"KEY=START:STOP:COUNT"`` -> :class:`Variation` with COUNT evenly spaced values from START
+    to STOP. START and STOP may carry the same unit (``40 degC:70 degC:4``); whole numbers at
+    both ends with a whole step give whole numbers (stage counts, feed stages)."""
+    key, sign, spec = text.partition("=")
+    key = key.strip()
+    parts = spec.split(":")
+    if not sign or not key or len(parts) != 3:
+        raise _bad("cannot read the variation", key or text, text, "KEY=START:STOP:COUNT, e.g. specs.reflux_ratio=1.2:2.0:5")
+    path = parse_key(key)
+    start, start_unit, start_whole = _split_quantity(parts[0], key)
+    stop, stop_unit, stop_whole = _split_quantity(parts[1], key)
+    if start_unit != stop_unit:
+        raise _bad("START and STOP must have the same unit", key, f"{start_unit or 'none'} and {stop_unit or 'none'}")
+    count_text = parts[2].strip()
+    if not _INTEGER.fullmatch(count_text) or not 1 <= int(count_text) <= MAX_POINTS:
+        raise _bad("COUNT must be a whole number of points", key, count_text, f"1 to {MAX_POINTS}")
+    count = int(count_text)
+    if count == 1 and stop != start:
+        raise _bad("one point needs START = STOP", key, spec)
+    whole = start_whole and stop_whole and (count == 1 or (int(stop) - int(start)) % (count - 1) == 0)
+    if whole:
+        step = 0 if count == 1 else (int(stop) - int(start)) // (count - 1)
+        magnitudes = tuple(float(int(start) + i * step) for i in range(count))
+    else:
+        magnitudes = tuple(float(f"{value:.{VALUE_DIGITS}g}") for value in np.linspace(start, stop, count))
+    if whole:
+        values: tuple[Any, ...] = tuple(int(m) for m in magnitudes)
+    else:
+        values = magnitudes
+    if start_unit:
+        values = tuple(f"{value:.{VALUE_DIGITS}g} {start_unit}" for value in values)
+    return Variation(key, path, values, magnitudes, start_unit)
+
+
+def load_document(path: str | os.PathLike) -> dict:
+    """The TOML document of a case file, as :func:`tomllib.load` reads it. Raises
+    :class:`CaseError` naming the file."""
+    try:
+        with open(path, "rb") as handle:
+            return tomllib.load(handle)
+    except FileNotFoundError:
+        raise CaseError("file not found", file=str(path)) from None
+    except (OSError, UnicodeDecodeError) as exc:
+        raise CaseError(f"cannot read the file ({exc})", file=str(path)) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise CaseError(f"not valid TOML: {exc}", file=str(path)) from None
+
+
+def sweep_points(variations: Sequence[Variation]) -> list[tuple[Any, ...]]:
+    """The values of every point: the grid of the variations, the first varying slowest."""
+    return list(itertools.product(*(variation.values for variation in variations)))
+
+
+def _assignments(variations: Sequence[Variation], values: Sequence[Any]) -> tuple[tuple[tuple[PathPart, ...], str, Any], ...]:
+    return tuple((variation.path, variation.key, value) for variation, value in zip(variations, values))
+
+
+def _apply(document: Mapping, assignments) -> dict:
+    point = copy.deepcopy(dict(document))
+    for path, key, value in assignments:
+        set_value(point, path, value, key)
+    return point
+
+
+# =======================================================================================
+# Solving points
+# =======================================================================================
+
+
+_STATUS = ((CaseError, "bad input"), (SpecError, "infeasible"), (ThermoError, "thermo error"), (ConvergenceError, "not converged"))
+
+
+def _failure(index: int, values: tuple, exc: BaseException, seconds: float) -> PointOutcome:
+    if not isinstance(exc, TraystackError):
+        return PointOutcome(index, values, "internal error",
+                            f"{type(exc).__name__}: {exc} (a bug in traystack; please report it)", seconds=seconds)
+    status = next((name for kind, name in _STATUS if isinstance(exc, kind)), "failed")
+    return PointOutcome(index, values, status, str(exc), seconds=seconds)
+
+
+def solve_point(index: int, document: Mapping, assignments, source_file: str = "<sweep>") -> PointOutcome:
+    """Solve one point: write ``assignments`` ((path, key, value), ...) into a copy of the TOML
+    ``document``, validate it and simulate. Runs in a worker; never raises for a failed point."""
+    started = time.perf_counter()
+    values = tuple(value for _, _, value in assignments)
+    try:
+        case = parse_case(_apply(document, assignments), source_file=source_file)
+        result = simulate(case)
+    except Exception as exc:  # a failed point is reported, not fatal
+        return _failure(index, values, exc, time.perf_counter() - started)
+    return PointOutcome(
+        index=index,
+        values=values,
+        status="converged" if result.converged else "not converged",
+        message="" if result.converged else result.message,
+        iterations=result.iterations,
+        residual_norm=result.residual_norm,
+        condenser_duty=result.condenser_duty,
+        reboiler_duty=result.reboiler_duty,
+        reflux_ratio=result.reflux_ratio,
+        boilup_ratio=result.boilup_ratio,
+        products={name: (p["flow"], tuple(p["composition"])) for name, p in result.products().items()},
+        seconds=time.perf_counter() - started,
+    )
+
+
+def run_sweep(
+    document: Mapping,
+    variations: Sequence[Variation],
+    executor: Executor,
+    *,
+    source_file: str = "<sweep>",
+    progress: Callable[[PointOutcome], None] | None = None,
+) -> SweepResult:
+    """Solve every point of the grid of ``variations`` through ``executor``.
+
+    Each point is first validated here (writing its values and parsing the case); a point that
+    does not validate is a failed point and is not sent to the executor. When no point
+    validates, the sweep itself is bad input: :class:`CaseError` with the first point's
+    message. ``progress`` is called with each outcome as it arrives."""
+    if not variations:
+        raise CaseError("nothing to vary", key="--vary", expected="at least one --vary KEY=START:STOP:COUNT")
+    if len({variation.path for variation in variations}) != len(variations):
+        raise CaseError("the same key is varied twice", key="--vary", value=[v.key for v in variations])
+    points = sweep_points(variations)
+    if len(points) > MAX_POINTS:
+        raise CaseError(f"the sweep has {len(points)} points", key="--vary", expected=f"at most {MAX_POINTS}")
+    outcomes: list[PointOutcome | None] = [None] * len(points)
+    futures = {}
+    components: tuple[str, ...] = ()
+    for index, values in enumerate(points):
+        assignments = _assignments(variations, values)
+        try:
+            case = parse_case(_apply(document, assignments), source_file=source_file)
+        except TraystackError as exc:
+            outcomes[index] = _failure(index, tuple(values), exc, 0.0)
+            continue
+        components = components or case.component_names
+        futures[executor.submit(solve_point, index, document, assignments, source_file)] = index
+    if not futures:
+        first = outcomes[0]
+        raise CaseError(f"no point of the sweep is a valid case; the first: {first.message}", key="--vary")
+    for outcome in outcomes:
+        if outcome is not None and progress is not None:
+            progress(outcome)
+    for future in as_completed(futures):
+        index = futures[future]
+        try:
+            outcome = future.result()
+        except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
+            outcome = _failure(index, tuple(points[index]), exc, 0.0)
+        outcomes[index] = outcome
+        if progress is not None:
+            progress(outcome)
+    return SweepResult(tuple(variations), tuple(components), tuple(o for o in outcomes if o is not None))
+
+
+# =======================================================================================
+# Writing the results
+# =======================================================================================
+
+
+def _product_names(result: SweepResult) -> list[str]:
+    names = ["distillate", "bottoms"]
+    for outcome in result.outcomes:
+        names += [name for name in (outcome.products or {}) if name not in names]
+    return names
+
+
+def _cell(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, float):
+        return f"{value:.9g}" if math.isfinite(value) else ""
+    return str(value)
+
+
+def sweep_csv(result: SweepResult) -> str:
+    """One row per point: the varied values (in their units), status, iterations, duties [W],
+    reflux and boilup ratios, product flows [mol/s] and compositions, time, message."""
+    products = _product_names(result)
+    header = ["point", *[variation.label for variation in result.variations], "status", "converged", "iterations",
+              "residual_norm", "condenser_duty_W", "reboiler_duty_W", "reflux_ratio", "boilup_ratio"]
+    for product in products:
+        header += [f"{product}_flow_mol_s", *[f"x_{product}_{name}" for name in result.components]]
+    header += ["seconds", "message"]
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(header)
+    for outcome in result.outcomes:
+        magnitudes = [variation.magnitudes[variation.values.index(value)]
+                      for variation, value in zip(result.variations, outcome.values)]
+        row = [outcome.index + 1, *[_cell(m) for m in magnitudes], outcome.status, "true" if outcome.converged else "false",
+               _cell(outcome.iterations), _cell(outcome.residual_norm), _cell(outcome.condenser_duty),
+               _cell(outcome.reboiler_duty), _cell(outcome.reflux_ratio), _cell(outcome.boilup_ratio)]
+        for product in products:
+            flow, composition = (outcome.products or {}).get(product, (None, (None,) * len(result.components)))
+            row += [_cell(flow), *[_cell(x) for x in composition]]
+        row += [f"{outcome.seconds:.3f}", outcome.message]
+        writer.writerow(row)
+    return buffer.getvalue()
+
+
+def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = "") -> Path | None:
+    """Duties and product purities against the first varied key (one line per value of the
+    second); failed points leave gaps. None when no point converged."""
+    converged = [outcome for outcome in result.outcomes if outcome.converged]
+    if not converged:
+        return None
+    first = converged[0].products
+    distillate, bottoms = np.asarray(first["distillate"][1]), np.asarray(first["bottoms"][1])
+    light, heavy = int(np.argmax(distillate - bottoms)), int(np.argmax(bottoms - distillate))
+    primary = result.variations[0]
+    groups: dict[str, dict[str, np.ndarray]] = {}
+    second = result.variations[1] if len(result.variations) > 1 else None
+    for group_value in (second.values if second else (None,)):
+        label = f"{second.key} = {group_value}" if second else ""
+        members = {o.values[0]: o for o in result.outcomes if second is None or o.values[1] == group_value}
+        columns = {name: np.full(len(primary.values), np.nan) for name in ("reboiler", "condenser", "light", "heavy")}
+        for i, value in enumerate(primary.values):
+            outcome = members.get(value)
+            if outcome is None or not outcome.converged:
+                continue
+            columns["reboiler"][i] = (outcome.reboiler_duty or np.nan) / 1e3
+            columns["condenser"][i] = abs(outcome.condenser_duty or np.nan) / 1e3
+            columns["light"][i] = outcome.products["distillate"][1][light]
+            columns["heavy"][i] = outcome.products["bottoms"][1][heavy]
+        groups[label] = columns
+    failed = len(result.failed)
+    note = f"{failed} of {len(result.outcomes)} points failed (see sweep.csv)" if failed else f"{len(result.outcomes)} points"
+    panels = [
+        ("duty / kW", [("reboiler", "reboiler duty"), ("condenser", "condenser duty (magnitude)")]),
+        ("mole fraction", [("light", f"distillate {result.components[light]}"),
+                           ("heavy", f"bottoms {result.components[heavy]}")]),
+    ]
+    return sweep_plot(np.asarray(primary.magnitudes), primary.label, groups, panels, Path(path),
+                      f"{title} — {note}" if title else note)
+
+
+def write_sweep_csv(result: SweepResult, path: str | os.PathLike) -> Path:
+    return write_atomic(path, sweep_csv(result))

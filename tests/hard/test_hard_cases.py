@@ -1,0 +1,24 @@
+"""Every hard case converges from the default start, and its answer passes the post-check.
+
+`python benchmarks/hard_cases.py` prints the rung of the fallback chain each one needed."""
+
+from __future__ import annotations
+
+import pytest
+
+from hard_cases import HARD_CASES
+from solver.case import loads_case
+from solver.simulate import simulate
+
+
+def test_the_suite_is_large_enough():
+    assert len(HARD_CASES) >= 25
+
+
+@pytest.mark.parametrize("name", sorted(HARD_CASES))
+def test_hard_case_converges(name):
+    result = simulate(loads_case(HARD_CASES[name], source_file=f"<hard case {name}>"))
+    assert result.converged, f"{name}: {result.message} ({result.strategy})"
+    assert result.post_check["enthalpy_balance_max"] < 1e-8
+    assert result.post_check["component_balance_max"] < 1e-8
+    assert result.strategy["rung"] in ("newton", "damped newton", "homotopy")

@@ -17,6 +17,7 @@ import numpy as np
 from .case import Case
 from .errors import ConvergenceError, ThermoError
 from .continuation import continue_to_real_model
+from .feasibility import check_specifications
 from .initial import initial_estimate
 from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
@@ -192,6 +193,15 @@ def build_system(case: Case, thermo: ThermoPackage | None = None):
     thermo = thermo or ThermoPackage.from_case(case)
     graph = build_stage_graph(case)
     feeds, details, stage_feeds = feed_data(case, thermo, graph)
+    check_specifications(
+        case.specs,
+        case.component_names,
+        feeds.component_flows.sum(axis=0),
+        float(graph.liquid_draws.sum() + graph.vapor_draws.sum()),
+        [d["q"] for d in details],
+        [d["flow"] for d in details],
+        thermo.cmo_latent_heat,
+    )
     system = MeshSystem(
         graph,
         thermo,

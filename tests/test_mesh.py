@@ -50,7 +50,8 @@ def assert_jacobian_matches(case, seed=0):
 SPEC_VARIANTS = [
     'reflux_ratio = 1.4\nbottoms = { water = 0.995 }',
     'boilup_ratio = 2.0\ndistillate = { methanol = 0.97 }',
-    'distillate_rate = "30 kmol/h"\nbottoms_rate = "70 kmol/h"',
+    'distillate_rate = "30 kmol/h"\nreboiler_duty = "900 kW"',
+    'bottoms_rate = "70 kmol/h"\nreflux_ratio = 2.0',
     'condenser_duty = "-1500 kW"\nreboiler_duty = "1600 kW"',
     'recovery = { methanol = { distillate = 0.98 }, water = { bottoms = 0.99 } }',
     'stage_temperature = { stage = 4, value = "70 degC" }\nreflux_ratio = 2.0',

@@ -1,0 +1,116 @@
+"""Before solving: can the specifications be met at all? Each refusal is a SpecError that
+names the spec and the bound it breaks, so that the engineer need not read a failed Newton
+log to learn that the column was asked for the impossible.
+
+Checks (bounds from the overall balances alone):
+
+* a product rate at or above the net feed (feeds less side draws), or at or below zero;
+* specs that fix the same thing twice: distillate and bottoms rates together (D + B = F),
+  every mole fraction of one product (they sum to one), a component's recovery to both
+  products (they sum to one);
+* a product mole fraction that the overall component balance cannot deliver with a given
+  product rate (``x_D,i <= F_i / D``), or a recovery above one;
+* a reboiler duty too small to bring a subcooled feed to its boiling point, let alone boil
+  anything: ``Q_R <= (q - 1) F lambda`` summed over the feeds (constant-molar-overflow
+  estimate with a mean latent heat).
+"""
+
+from __future__ import annotations
+
+from typing import Sequence
+
+import numpy as np
+
+from .case import Spec
+from .errors import SpecError
+
+
+def check_specifications(
+    specs: Sequence[Spec],
+    component_names: Sequence[str],
+    feed_flows: np.ndarray,
+    side_draw_total: float,
+    feed_q: Sequence[float],
+    feed_totals: Sequence[float],
+    latent_heat: float,
+) -> None:
+    """Raise :class:`SpecError` for a spec set that the overall balances already rule out.
+    ``feed_flows (c,)`` mol/s of each component in all feeds together."""
+    names = list(component_names)
+    F = float(np.sum(feed_flows))
+    F_net = F - side_draw_total
+    kinds = [s.kind for s in specs]
+
+    def label(spec: Spec) -> str:
+        return spec.key or spec.kind
+
+    rates = {s.kind: s for s in specs if s.kind in ("distillate_rate", "bottoms_rate")}
+    if len(rates) == 2:
+        D, B = rates["distillate_rate"], rates["bottoms_rate"]
+        raise SpecError(
+            f"{label(D)} and {label(B)} fix one degree of freedom twice: D + B must equal the net feed "
+            f"({F_net * 3.6:.6g} kmol/h); give one of them and a second, independent spec"
+        )
+    for spec in rates.values():
+        if not 0.0 < spec.value < F_net:
+            raise SpecError(
+                f"{label(spec)} = {spec.value * 3.6:.6g} kmol/h is impossible: a product rate must lie between 0 and "
+                f"the net feed, {F_net * 3.6:.6g} kmol/h (feeds {F * 3.6:.6g} kmol/h less side draws "
+                f"{side_draw_total * 3.6:.6g} kmol/h)"
+            )
+    for product in ("distillate", "bottoms"):
+        fractions = [s for s in specs if s.kind == "mole_fraction" and s.product == product]
+        if len({s.component for s in fractions}) < len(fractions):
+            raise SpecError(f"{', '.join(label(s) for s in fractions)}: the same mole fraction is given twice")
+        if len(names) == 2 and len(fractions) == 2:
+            raise SpecError(
+                f"{label(fractions[0])} and {label(fractions[1])} fix the same thing twice: the two mole fractions of "
+                f"a binary {product} sum to one"
+            )
+    recoveries: dict[str, list[Spec]] = {}
+    for spec in specs:
+        if spec.kind == "recovery":
+            if not 0.0 < spec.value <= 1.0:
+                raise SpecError(f"{label(spec)} = {spec.value:g}: a recovery must lie in (0, 1]")
+            recoveries.setdefault(spec.component, []).append(spec)
+    for component, given in recoveries.items():
+        if len(given) > 1:
+            raise SpecError(
+                f"{', '.join(label(s) for s in given)}: the recoveries of {component} to the two products sum to one, "
+                "so they fix the same thing twice"
+            )
+    for spec in specs:
+        if spec.kind != "mole_fraction":
+            continue
+        i = names.index(spec.component)
+        rate = rates.get("distillate_rate" if spec.product == "distillate" else "bottoms_rate")
+        if rate is not None:
+            bound = float(feed_flows[i]) / rate.value
+            if spec.value > bound:
+                raise SpecError(
+                    f"{label(spec)} = {spec.value:g} cannot be met with {label(rate)} = {rate.value * 3.6:.6g} kmol/h: "
+                    f"even all of the {component_label(spec)} fed ({feed_flows[i] * 3.6:.6g} kmol/h) would give at most "
+                    f"{bound:.6g}"
+                )
+        other = rates.get("bottoms_rate" if spec.product == "distillate" else "distillate_rate")
+        if other is not None:
+            product_rate = F_net - other.value
+            bound = float(feed_flows[i]) / product_rate
+            if spec.value > bound:
+                raise SpecError(
+                    f"{label(spec)} = {spec.value:g} cannot be met with {label(other)} = {other.value * 3.6:.6g} kmol/h "
+                    f"(so {spec.product} {product_rate * 3.6:.6g} kmol/h): at most {bound:.6g}"
+                )
+    if "reboiler_duty" in kinds:
+        spec = next(s for s in specs if s.kind == "reboiler_duty")
+        needed = sum(max(q - 1.0, 0.0) * flow for q, flow in zip(feed_q, feed_totals)) * latent_heat
+        if spec.value <= needed:
+            raise SpecError(
+                f"{label(spec)} = {spec.value / 1e3:.6g} kW is too small to boil anything: the subcooled feed alone "
+                f"needs about {needed / 1e3:.6g} kW to reach its boiling point (q - 1 times its flow and a mean latent "
+                f"heat of {latent_heat / 1e3:.4g} kJ/mol)"
+            )
+
+
+def component_label(spec: Spec) -> str:
+    return spec.component or "component"

@@ -75,7 +75,7 @@ def command_run(args: argparse.Namespace) -> int:
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
-    from .results import write_result_json, write_stages_csv
+    from .results import Result, write_result_json, write_stages_csv
     from .simulate import simulate
     from .thermo.package import ThermoPackage
 
@@ -86,8 +86,8 @@ def command_run(args: argparse.Namespace) -> int:
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
         result = simulate(case, options=options)
-    except ConvergenceError as exc:
-        if exc.result is None:
+    except ConvergenceError as exc:  # NaN or inf: write the last iterate if the error carries one
+        if not isinstance(exc.result, Result):
             raise
         result = exc.result
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
@@ -119,7 +119,7 @@ def add_run_command(sub) -> None:
     run = sub.add_parser("run", help="rigorous solve of a case; summary on screen; result.json, stages.csv, summary.md, plots")
     run.add_argument("case", help="case file (TOML)")
     run.add_argument("--out", metavar="DIR", help="output folder (default: CASE_out in the current folder)")
-    run.add_argument("--units", help="screen and summary units: 'si', or e.g. temperature=degF,pressure=psi,flow=lbmol/h,duty=kW "
+    run.add_argument("--units", help="screen and summary units: 'si', or e.g. temperature=degF,pressure=psi,duty=Btu/h "
                      "(default: the case's [display] table, else degC, bar, kmol/h, kW)")
     run.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
     run.add_argument("--json", action="store_true", help="print the result JSON on stdout (and nothing else there)")
@@ -133,14 +133,12 @@ def add_run_command(sub) -> None:
 # =======================================================================================
 
 
-def _moved(check, limit: int = 4) -> str:
-    from .regress import FAILED
+def _moved(check) -> str:
+    from .regress import FAILED, headlines
 
     if check.status == FAILED:
         return check.message
-    lines = [deviation.describe() for deviation in check.deviations[:limit]]
-    if len(check.deviations) > limit:
-        lines.append(f"... and {len(check.deviations) - limit} more")
+    lines = headlines(check.deviations)
     if check.baseline_version and check.baseline_version != __version__:
         lines.append(f"(baseline from traystack {check.baseline_version})")
     return "\n".join(lines)
@@ -233,19 +231,24 @@ def command_sweep(args: argparse.Namespace) -> int:
         files.append(figure)
 
     table = Table(title=f"sweep: {base.title or case_path.name}", header_style="bold")
+    keys = result.key_components()
+    purities = [] if keys is None else [("distillate", keys[0]), ("bottoms", keys[1])]
     for variation in variations:
-        table.add_column(variation.label, justify="right")
-    for column in ("status", "iterations", "reboiler duty / kW", "condenser duty / kW", *[f"x_D {n}" for n in result.components[:2]]):
+        table.add_column(variation.label, justify="right", no_wrap=True)
+    table.add_column("status", no_wrap=True)
+    for column in ("iterations", "reboiler duty / kW", "condenser duty / kW",
+                   *[f"x {result.components[i]} {product}" for product, i in purities]):
         table.add_column(column, justify="right")
     for outcome in result.outcomes:
         cells = [str(value) for value in outcome.values]
+        cells.append(outcome.status if outcome.converged else f"[bold red]{outcome.status}[/]")
+        cells.append("" if outcome.iterations is None else str(outcome.iterations))
         if outcome.converged:
-            distillate = outcome.products["distillate"][1]
-            cells += ["converged", str(outcome.iterations), f"{(outcome.reboiler_duty or 0) / 1e3:.5g}",
-                      f"{(outcome.condenser_duty or 0) / 1e3:.5g}", *[f"{x:.6f}" for x in distillate[:2]]]
+            cells += [f"{outcome.reboiler_duty / 1e3:.5g}" if outcome.reboiler_duty is not None else "",
+                      f"{outcome.condenser_duty / 1e3:.5g}" if outcome.condenser_duty is not None else "",
+                      *[f"{outcome.products[product][1][i]:.6f}" for product, i in purities]]
         else:
-            cells += [f"[bold red]{outcome.status}[/]", "" if outcome.iterations is None else str(outcome.iterations),
-                      "", "", *[""] * min(2, len(result.components))]
+            cells += [""] * (2 + len(purities))
         table.add_row(*cells)
     console.print(table)
     for outcome in result.failed:

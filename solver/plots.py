@@ -108,9 +108,8 @@ def _balance_sections(result: Result) -> np.ndarray:
     special = np.zeros(result.stage_count, dtype=bool)
     special |= np.array([len(feeds) > 0 for feeds in result.stage_feeds])
     special |= (result.liquid_draw > 0) | (result.vapor_draw > 0)
-    interior = np.ones(result.stage_count, dtype=bool)
-    interior[[0, -1]] = False
-    special |= interior & (np.abs(result.duty) > 0)
+    for heater in result.case.get("column", {}).get("stage_duties", []):
+        special[heater["stage"] - 1] = True
     special[0] = False
     return np.cumsum(special)[:-1]
 
@@ -180,22 +179,29 @@ def sweep_plot(
     panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
     path: Path,
     title: str = "",
+    failed_x: Sequence[float] = (),
 ) -> Path:
     """Results of a parameter sweep against the first varied key.
 
     ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
     columns of values along ``x`` (NaN where a point failed, which leaves a gap); ``panels``
-    is one ``(axis label, [(column, line label), ...])`` per subplot."""
+    is one ``(axis label, [(column, line label), ...])`` per subplot; ``failed_x`` are marked
+    with dotted vertical lines."""
+    x = np.asarray(x, dtype=float)
     figure, axes = plt.subplots(len(panels), 1, figsize=(6.5, 2.8 * len(panels)), sharex=True, squeeze=False)
     for ax, (axis_label, columns) in zip(axes[:, 0], panels):
         for group, values in groups.items():
             for column, line_label in columns:
                 label = f"{line_label}, {group}" if group else line_label
                 ax.plot(x, values[column], "o-", markersize=3.5, label=label)
+        for number, position in enumerate(sorted(set(failed_x))):
+            ax.axvline(position, color="0.6", linestyle=":", linewidth=1, label="failed point" if number == 0 else None)
         ax.set_ylabel(axis_label)
         ax.grid(True, alpha=0.3)
         ax.legend(loc="best", fontsize=7)
     axes[-1, 0].set_xlabel(x_label)
+    if np.all(x == np.round(x)):
+        axes[-1, 0].xaxis.set_major_locator(MaxNLocator(integer=True))
     if title:
         axes[0, 0].set_title(title, fontsize=9)
     return _save(figure, path)

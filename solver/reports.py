@@ -103,10 +103,12 @@ def display_units(display: Mapping[str, str] | None = None, override: str | None
     (any subset). Raises :class:`CaseError` naming the option, key and unit for a bad one."""
     chosen = dict(DEFAULT_DISPLAY)
     chosen.update({key: value for key, value in (display or {}).items() if key in DEFAULT_DISPLAY})
+    origin = dict.fromkeys(chosen, "display")
     if override is not None:
         text = override.strip()
         if text.lower() == "si":
             chosen.update(SI_DISPLAY)
+            origin = dict.fromkeys(chosen, "--units")
         else:
             for item in filter(None, (part.strip() for part in text.split(","))):
                 key, sign, unit = item.partition("=")
@@ -118,23 +120,28 @@ def display_units(display: Mapping[str, str] | None = None, override: str | None
                         value=item,
                         expected="'si' or KEY=UNIT pairs separated by commas, KEY one of "
                         + ", ".join(DEFAULT_DISPLAY)
-                        + " (e.g. temperature=degF,flow=lbmol/h)",
+                        + " (e.g. temperature=degF,pressure=psi,duty=Btu/h)",
                     )
                 chosen[key] = unit
+                origin[key] = "--units"
     try:
         scale = temperature_scale(chosen["temperature"])
     except UnitParseError as exc:
-        raise CaseError(str(exc), key="display.temperature", value=chosen["temperature"]) from None
+        raise CaseError(str(exc), key=_where(origin, "temperature"), value=chosen["temperature"]) from None
     factors = []
     for key in ("pressure", "flow", "duty"):
         try:
             factors.append(unit_factor(chosen[key], _KINDS[key]))
         except UnitParseError as exc:
-            raise CaseError(str(exc), key=f"display.{key}", value=chosen[key]) from None
+            raise CaseError(str(exc), key=_where(origin, key), value=chosen[key]) from None
     return DisplayUnits(
         temperature=chosen["temperature"], pressure=chosen["pressure"], flow=chosen["flow"], duty=chosen["duty"],
         _temperature_scale=scale, _factors=tuple(factors),
     )
+
+
+def _where(origin: Mapping[str, str], key: str) -> str:
+    return f"--units {key}" if origin[key] == "--units" else f"display.{key}"
 
 
 # =======================================================================================
@@ -188,8 +195,7 @@ def cautions(result: Result) -> list[str]:
             "constant molar overflow by construction; the duties are estimates on that basis."
         )
     found.extend(str(warning) for warning in result.case.get("warnings", []))
-    audit = result.extra.get("audit") if isinstance(result.extra, Mapping) else None
-    for flag in (audit or {}).get("flags", []):
+    for flag in (result.extra.get("audit") or {}).get("flags", []):
         found.append(f"[{flag.get('severity', 'note')}] {flag.get('code', '')}: {flag.get('message', '')}".strip())
     found.append(CAUTION)
     return found
@@ -273,7 +279,7 @@ def summary_tables(result: Result, units: DisplayUnits) -> list[Table]:
         stages.add_row(
             _stage_label(result, j),
             f"{units.T(record['T']):.2f}",
-            f"{units.P(record['P']):.4g}",
+            f"{units.P(record['P']):.5g}",
             f"{units.F(record['L']):.4g}",
             f"{units.F(record['V']):.4g}",
             *[f"{value:.5f}" for value in record["x"]],

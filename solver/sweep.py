@@ -62,6 +62,15 @@ MAX_POINTS = 10_000
 #: Significant digits of an interpolated value (so that 0.1 steps print as 0.1, not 0.30000000000000004).
 VALUE_DIGITS = 12
 
+#: Keys of one table that exclude each other: writing one removes the other, so that varying a
+#: feed's temperature works on a case that gives its vapor fraction, and the reverse.
+EXCLUSIVE_KEYS = {
+    "temperature": ("vapor_fraction",),
+    "vapor_fraction": ("temperature",),
+    "reflux_temperature": ("reflux_subcooling",),
+    "reflux_subcooling": ("reflux_temperature",),
+}
+
 _SEGMENT = re.compile(r"([A-Za-z0-9_\-]+)((?:\[[0-9]+\])*)")
 _INDEX = re.compile(r"\[([0-9]+)\]")
 _NUMBER = re.compile(r"\s*([+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)\s*(.*?)\s*")
@@ -117,6 +126,16 @@ class SweepResult:
     def failed(self) -> tuple[PointOutcome, ...]:
         return tuple(outcome for outcome in self.outcomes if not outcome.converged)
 
+    def key_components(self) -> tuple[int, int] | None:
+        """Indices of the component the distillate is richest in (against the bottoms) and of
+        the one the bottoms is richest in, from the first converged point; None if none did."""
+        for outcome in self.outcomes:
+            if outcome.converged:
+                distillate = np.asarray(outcome.products["distillate"][1])
+                bottoms = np.asarray(outcome.products["bottoms"][1])
+                return int(np.argmax(distillate - bottoms)), int(np.argmax(bottoms - distillate))
+        return None
+
 
 # =======================================================================================
 # Keys and values
@@ -168,7 +187,8 @@ def _container(document: Any, path: Sequence[PathPart], key: str) -> Any:
 
 def set_value(document: dict, path: Sequence[PathPart], value: Any, key: str = "") -> None:
     """Write ``value`` at ``path`` into ``document`` (in place). The tables and arrays on the
-    way must exist; the last key of a table may be new. Raises :class:`CaseError`."""
+    way must exist; the last key of a table may be new, and replaces the key it excludes
+    (:data:`EXCLUSIVE_KEYS`). Raises :class:`CaseError`."""
     key = key or _spell(path)
     holder, last = _container(document, path, key), path[-1]
     if isinstance(last, int):
@@ -176,6 +196,9 @@ def set_value(document: dict, path: Sequence[PathPart], value: Any, key: str = "
             raise _bad(f"the case has no {_spell(path)}", key)
     elif not isinstance(holder, dict):
         raise _bad(f"{_spell(path[:-1])} is an array; give an item number like {_spell(path[:-1])}[0]", key)
+    else:
+        for other in EXCLUSIVE_KEYS.get(last, ()):
+            holder.pop(other, None)
     holder[last] = value
 
 
@@ -212,12 +235,10 @@ def parse_variation(text: str) -> Variation:
     whole = start_whole and stop_whole and (count == 1 or (int(stop) - int(start)) % (count - 1) == 0)
     if whole:
         step = 0 if count == 1 else (int(stop) - int(start)) // (count - 1)
-        magnitudes = tuple(float(int(start) + i * step) for i in range(count))
+        values: tuple[Any, ...] = tuple(int(start) + i * step for i in range(count))
+        magnitudes = tuple(float(value) for value in values)
     else:
         magnitudes = tuple(float(f"{value:.{VALUE_DIGITS}g}") for value in np.linspace(start, stop, count))
-    if whole:
-        values: tuple[Any, ...] = tuple(int(m) for m in magnitudes)
-    else:
         values = magnitudes
     if start_unit:
         values = tuple(f"{value:.{VALUE_DIGITS}g} {start_unit}" for value in values)
@@ -280,11 +301,14 @@ def solve_point(index: int, document: Mapping, assignments, source_file: str = "
         result = simulate(case)
     except Exception as exc:  # a failed point is reported, not fatal
         return _failure(index, values, exc, time.perf_counter() - started)
+    seconds = time.perf_counter() - started
+    if not result.converged:  # the numbers of an unconverged iterate are not results
+        return PointOutcome(index, values, "not converged", result.message, result.iterations, result.residual_norm,
+                            seconds=seconds)
     return PointOutcome(
         index=index,
         values=values,
-        status="converged" if result.converged else "not converged",
-        message="" if result.converged else result.message,
+        status="converged",
         iterations=result.iterations,
         residual_norm=result.residual_norm,
         condenser_duty=result.condenser_duty,
@@ -292,7 +316,7 @@ def solve_point(index: int, document: Mapping, assignments, source_file: str = "
         reflux_ratio=result.reflux_ratio,
         boilup_ratio=result.boilup_ratio,
         products={name: (p["flow"], tuple(p["composition"])) for name, p in result.products().items()},
-        seconds=time.perf_counter() - started,
+        seconds=seconds,
     )
 
 
@@ -396,12 +420,10 @@ def sweep_csv(result: SweepResult) -> str:
 def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = "") -> Path | None:
     """Duties and product purities against the first varied key (one line per value of the
     second); failed points leave gaps. None when no point converged."""
-    converged = [outcome for outcome in result.outcomes if outcome.converged]
-    if not converged:
+    keys = result.key_components()
+    if keys is None:
         return None
-    first = converged[0].products
-    distillate, bottoms = np.asarray(first["distillate"][1]), np.asarray(first["bottoms"][1])
-    light, heavy = int(np.argmax(distillate - bottoms)), int(np.argmax(bottoms - distillate))
+    light, heavy = keys
     primary = result.variations[0]
     groups: dict[str, dict[str, np.ndarray]] = {}
     second = result.variations[1] if len(result.variations) > 1 else None
@@ -425,8 +447,9 @@ def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = 
         ("mole fraction", [("light", f"distillate {result.components[light]}"),
                            ("heavy", f"bottoms {result.components[heavy]}")]),
     ]
+    failed_x = [primary.magnitudes[primary.values.index(o.values[0])] for o in result.failed]
     return sweep_plot(np.asarray(primary.magnitudes), primary.label, groups, panels, Path(path),
-                      f"{title} — {note}" if title else note)
+                      f"{title} — {note}" if title else note, failed_x)
 
 
 def write_sweep_csv(result: SweepResult, path: str | os.PathLike) -> Path:

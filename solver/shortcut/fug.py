@@ -82,7 +82,9 @@ def fenske_minimum_stages(relative_volatility: float, light_key_ratio: float, he
     return float(np.log(light_key_ratio / heavy_key_ratio) / np.log(relative_volatility))
 
 
-def fenske_distribution(relative_volatility, feed_flows, minimum_stages: float, heavy_key_ratio: float) -> tuple[np.ndarray, np.ndarray]:
+def fenske_distribution(
+    relative_volatility, feed_flows, minimum_stages: float, heavy_key_ratio: float
+) -> tuple[np.ndarray, np.ndarray]:
     """Distillate and bottoms component flows at total reflux, ``(d/b)_i = (d/b)_HK
     alpha_i^N_min`` with ``relative_volatility`` relative to the heavy key (Fenske 1932)."""
     alpha = np.asarray(relative_volatility, dtype=float)
@@ -95,7 +97,9 @@ def _feed_function(alpha: np.ndarray, z: np.ndarray, theta):
     return np.sum(alpha * z / (alpha - theta))
 
 
-def underwood_roots(relative_volatility, feed_composition, q: float, *, low: float | None = None, high: float | None = None) -> np.ndarray:
+def underwood_roots(
+    relative_volatility, feed_composition, q: float, *, low: float | None = None, high: float | None = None
+) -> np.ndarray:
     """Roots of Underwood's first equation ``sum_i alpha_i z_i / (alpha_i - theta) = 1 - q``
     lying between adjacent relative volatilities of components present in the feed (one in
     each interval: the left side rises from -inf to +inf between poles), restricted to
@@ -120,7 +124,9 @@ def underwood_roots(relative_volatility, feed_composition, q: float, *, low: flo
     return np.array(roots)
 
 
-def shiras_recoveries(relative_volatility, light_key: int, heavy_key: int, light_key_recovery: float, heavy_key_recovery: float) -> np.ndarray:
+def shiras_recoveries(
+    relative_volatility, light_key: int, heavy_key: int, light_key_recovery: float, heavy_key_recovery: float
+) -> np.ndarray:
     """Distillate recoveries at minimum reflux interpolated linearly in alpha between the keys'
     (Shiras, Hanson & Gibson 1950): a component whose value lies outside (0, 1) does not
     distribute."""
@@ -167,7 +173,8 @@ def underwood_minimum_reflux(
     recovery = shiras_recoveries(
         alpha, light_key, heavy_key, light_key_distillate / feed_flows[light_key], heavy_key_distillate / feed_flows[heavy_key]
     )
-    distributing = present & (((recovery > 0.0) & (recovery < 1.0)) | (np.arange(alpha.size) == light_key) | (np.arange(alpha.size) == heavy_key))
+    is_key = np.isin(np.arange(alpha.size), (light_key, heavy_key))
+    distributing = present & (((recovery > 0.0) & (recovery < 1.0)) | is_key)
     fixed = np.where(alpha > alpha[light_key], feed_flows, 0.0)  # non-distributing: lighter all up, heavier all down
     fixed[light_key], fixed[heavy_key] = light_key_distillate, heavy_key_distillate
     roots_all = underwood_roots(alpha, z, q)
@@ -233,7 +240,13 @@ def gilliland_stages(minimum_stages: float, minimum_reflux: float, reflux_ratio:
     return (minimum_stages + Y) / (1.0 - Y)
 
 
-def kirkbride_ratio(bottoms_to_distillate: float, z_heavy_key: float, z_light_key: float, x_light_key_bottoms: float, x_heavy_key_distillate: float) -> float:
+def kirkbride_ratio(
+    bottoms_to_distillate: float,
+    z_heavy_key: float,
+    z_light_key: float,
+    x_light_key_bottoms: float,
+    x_heavy_key_distillate: float,
+) -> float:
     """Kirkbride (1944): ``N_R / N_S = [(B/D)(z_HK/z_LK)(x_LK,B/x_HK,D)^2]^0.206``."""
     return float(
         (bottoms_to_distillate * (z_heavy_key / z_light_key) * (x_light_key_bottoms / x_heavy_key_distillate) ** 2)
@@ -308,7 +321,9 @@ _SPLIT_KINDS = ("mole_fraction", "recovery", "distillate_rate", "bottoms_rate")
 _ENERGY_KINDS = ("reflux_ratio", "boilup_ratio", "condenser_duty", "reboiler_duty")
 
 
-def _choose_keys(case: Case, split: Sequence[Spec], alpha: np.ndarray, light_key: str | None, heavy_key: str | None) -> tuple[int, int]:
+def _choose_keys(
+    case: Case, split: Sequence[Spec], alpha: np.ndarray, light_key: str | None, heavy_key: str | None
+) -> tuple[int, int]:
     names = list(case.component_names)
 
     def index(name: str, role: str) -> int:
@@ -325,7 +340,10 @@ def _choose_keys(case: Case, split: Sequence[Spec], alpha: np.ndarray, light_key
             if spec.component is not None and names.index(spec.component) not in named:
                 named.append(names.index(spec.component))
         if light_key is not None or heavy_key is not None:
-            given = index(light_key if light_key is not None else heavy_key, "light key" if light_key is not None else "heavy key")
+            if light_key is not None:
+                given = index(light_key, "light key")
+            else:
+                given = index(heavy_key, "heavy key")
             others = [i for i in named if i != given]
             if len(others) != 1:
                 raise SpecError("give both keys: the specs do not name exactly one other component")

@@ -116,7 +116,9 @@ class EquilibriumCurve:
 
     # ------------------------------------------------------------------ construction
     @classmethod
-    def constant_alpha(cls, alpha: float, *, light: str = "light", heavy: str = "heavy", points: int = 201) -> "EquilibriumCurve":
+    def constant_alpha(
+        cls, alpha: float, *, light: str = "light", heavy: str = "heavy", points: int = 201
+    ) -> "EquilibriumCurve":
         """``y = alpha x / (1 + (alpha - 1) x)``: the ideal curve of constant relative
         volatility (no temperatures)."""
         if not alpha > 1.0:
@@ -135,7 +137,31 @@ class EquilibriumCurve:
         )
 
     @classmethod
-    def from_thermo(cls, thermo: ThermoPackage, pressure: float, light_index: int, points: int = CURVE_POINTS) -> "EquilibriumCurve":
+    def from_points(
+        cls, x, y, *, light: str = "light", heavy: str = "heavy", pressure: float = float("nan")
+    ) -> "EquilibriumCurve":
+        """A curve through tabulated equilibrium pairs (e.g. a textbook's x-y table): ``ln alpha``
+        of the points strictly inside (0, 1) interpolated by cubic splines (extrapolated to the
+        pure ends); no temperatures, no azeotrope search."""
+        x = np.asarray(x, dtype=float)
+        y = np.asarray(y, dtype=float)
+        inside = (x > 0.0) & (x < 1.0)
+        x, y = x[inside], y[inside]
+        order = np.argsort(x)
+        x, y = x[order], y[order]
+        if x.size < 4 or not np.all(np.diff(y) > 0.0):
+            raise ValueError("an equilibrium table needs at least 4 points inside (0, 1) with y increasing in x")
+        ln_alpha = np.log(y * (1.0 - x) / (x * (1.0 - y)))
+        return cls(
+            x=x, y=y, temperature=np.full_like(x, np.nan), relative_volatility=np.exp(ln_alpha),
+            pressure=float(pressure), light=light, heavy=heavy, azeotropes=(),
+            _ln_alpha_of_x=CubicSpline(x, ln_alpha), _ln_alpha_of_y=CubicSpline(y, ln_alpha), _temperature_of_x=None,
+        )
+
+    @classmethod
+    def from_thermo(
+        cls, thermo: ThermoPackage, pressure: float, light_index: int, points: int = CURVE_POINTS
+    ) -> "EquilibriumCurve":
         """The curve from bubble points of ``thermo`` (a binary package) at ``pressure`` Pa, with
         component ``light_index`` (0 or 1) as the light one."""
         if thermo.component_count != 2:
@@ -338,7 +364,6 @@ class BinaryDesign:
     intersection: tuple[float, float]
     condenser_duty: float
     reboiler_duty: float
-    feed_pinch_reflux: float = float("nan")
     enthalpy: object | None = None  # ponchon_savarit.EnthalpyConstruction for that method
     notes: tuple[str, ...] = ()
 
@@ -357,7 +382,9 @@ class BinaryDesign:
 # =======================================================================================
 
 
-def feed_pinch(curve: EquilibriumCurve, x_feed: float, q: float, region: tuple[float, float] | None = None) -> tuple[float, float]:
+def feed_pinch(
+    curve: EquilibriumCurve, x_feed: float, q: float, region: tuple[float, float] | None = None
+) -> tuple[float, float]:
     """Where the q-line ``q x + (1 - q) y = x_F`` meets the equilibrium curve, (x, y)."""
     low, high = region if region is not None else curve.feasible_region(x_feed)
     if abs(q - 1.0) < 1e-12:
@@ -486,9 +513,10 @@ def _step_stages(
         if x <= x_bottoms:
             break
         if x >= previous - 1e-13 or len(xs) > max_equilibrium_stages:
+            hint = f"; with the feed on stage {feed_stage}, that stage may be too far from the optimum" if feed_stage else ""
             raise SpecError(
                 f"{what}: the stepping pinches at x = {x:.6g}, y = {y:.6g} {curve.light} after {n} stages "
-                f"(an operating line meets the equilibrium curve before x_B = {x_bottoms:.6g})"
+                f"(an operating line meets the equilibrium curve before x_B = {x_bottoms:.6g}){hint}"
             )
         if feed_stage is None:
             if not switched and x <= x_switch:
@@ -661,7 +689,6 @@ def mccabe_thiele(
         intersection=intersection,
         condenser_duty=float(condenser_duty),
         reboiler_duty=float(reboiler_duty),
-        feed_pinch_reflux=pinch.feed_pinch_ratio,
         notes=tuple(notes),
     )
 
@@ -694,10 +721,6 @@ class BinaryProblem:
     latent_heat: Callable[[float], float]
     reflux_temperature: float | None
     notes: tuple[str, ...]
-
-
-_SPLIT_KINDS = ("mole_fraction", "recovery", "distillate_rate", "bottoms_rate")
-_ENERGY_KINDS = ("reflux_ratio", "boilup_ratio", "condenser_duty", "reboiler_duty")
 
 
 def _describe_spec(spec: Spec) -> str:
@@ -742,7 +765,8 @@ def feed_condition(case: Case, thermo: ThermoPackage):
     )
 
 
-def _binary_rows(specs, names, light: str, F: float, z: float, q: float, condenser: str, latent_top: float, latent_bottom: float):
+def _binary_rows(specs, names, light: str, F: float, z: float, q: float, condenser: str, latent_top: float,
+                 latent_bottom: float):
     """One linear row per usable spec in the unknowns (D, d, V): distillate rate, light
     component in the distillate, vapor from the top tray. Returns (split rows, energy rows,
     ignored specs)."""
@@ -796,7 +820,9 @@ def _solve_split(case, light, F, z, q, condenser, latent, reflux_ratio, reflux_f
         if override:
             if energy:
                 notes.append("the case's " + ", ".join(row[2] for row in energy) + " replaced by the reflux given")
-            energy = [([-(reflux_ratio + 1.0), 0.0, 1.0], 0.0, f"reflux_ratio = {reflux_ratio:.6g} (given)")] if reflux_ratio is not None else []
+            energy = []
+            if reflux_ratio is not None:
+                energy = [([-(reflux_ratio + 1.0), 0.0, 1.0], 0.0, f"reflux_ratio = {reflux_ratio:.6g} (given)")]
         rows = split + energy
         need_energy = reflux_factor is None or reflux_ratio is not None
         wanted = 3 if need_energy else 2
@@ -843,7 +869,8 @@ def _solve_split(case, light, F, z, q, condenser, latent, reflux_ratio, reflux_f
         latent_top, latent_bottom = new_top, new_bottom
     if ignored:
         notes.append("not used by the shortcut: " + "; ".join(ignored))
-    if any(k in ("boilup_ratio", "condenser_duty", "reboiler_duty") for k in (row[2].split(" ")[0] for row in energy)) and not override:
+    converted = ("boilup_ratio", "condenser_duty", "reboiler_duty")
+    if not override and any(row[2].split(" ")[0] in converted for row in energy):
         notes.append("the reflux ratio was found from the boilup/duty spec by the CMO balances")
     if R is not None and not R > 0.0:
         raise SpecError(f"the specifications give a reflux ratio of {R:.6g}; it must be positive")
@@ -902,8 +929,12 @@ def binary_problem(
     column = case.column
     if column.condenser == "total" and (column.reflux_temperature is not None or column.reflux_subcooling):
         bubble = float(curve.temperature_of_x(np.array([x_D]))[0])
-        reflux_temperature = column.reflux_temperature if column.reflux_temperature is not None else bubble - column.reflux_subcooling
-    notes = notes + split_notes + [f"equilibrium curve at {P / 1e3:.6g} kPa (mean column pressure)" if pressure is None else f"equilibrium curve at {P / 1e3:.6g} kPa (given)"]
+        if column.reflux_temperature is not None:
+            reflux_temperature = column.reflux_temperature
+        else:
+            reflux_temperature = bubble - column.reflux_subcooling
+    where = "mean column pressure" if pressure is None else "given"
+    notes = notes + split_notes + [f"equilibrium curve at {P / 1e3:.6g} kPa ({where})"]
     return BinaryProblem(
         thermo=thermo, curve=curve, light_index=light_index, pressure=P, condenser=case.column.condenser,
         feed_flow=F, x_feed=z, q=float(state.q), feed_enthalpy=float(feed_enthalpy), distillate_flow=D,
@@ -931,7 +962,9 @@ def design_binary(
     fixes the feed; None takes the optimal one. ``pressure`` (Pa) overrides the mean column
     pressure. Raises :class:`SpecError` when the specs do not fix x_D, x_B and R, when a purity
     is beyond an azeotrope, or when the reflux is not above the minimum."""
-    problem = binary_problem(case, thermo, reflux_ratio=reflux_ratio, reflux_factor=reflux_factor, pressure=pressure, method="McCabe-Thiele")
+    problem = binary_problem(
+        case, thermo, reflux_ratio=reflux_ratio, reflux_factor=reflux_factor, pressure=pressure, method="McCabe-Thiele"
+    )
     R = problem.reflux_ratio
     notes = list(problem.notes)
     if problem.reflux_temperature is not None:

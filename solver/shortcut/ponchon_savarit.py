@@ -95,7 +95,9 @@ class SaturatedEnthalpies:
         return cls.from_arrays(curve, np.zeros_like(curve.x), np.full_like(curve.y, float(latent_heat)))
 
     @classmethod
-    def from_thermo(cls, curve: EquilibriumCurve, thermo: ThermoPackage, light_index: int, model: str = "rigorous") -> "SaturatedEnthalpies":
+    def from_thermo(
+        cls, curve: EquilibriumCurve, thermo: ThermoPackage, light_index: int, model: str = "rigorous"
+    ) -> "SaturatedEnthalpies":
         """Liquid and vapor of each equilibrium pair of ``curve`` at its bubble temperature (which
         is the vapor's dew temperature), with enthalpy model ``model``."""
         X = np.empty((curve.x.size, 2))
@@ -165,7 +167,10 @@ def _vapor_on_line(enthalpies: SaturatedEnthalpies, x_point: float, h_point: flo
     return np.where(reachable, 0.5 * (low + high), np.nan)
 
 
-def _top_pair(curve: EquilibriumCurve, enthalpies: SaturatedEnthalpies, x_distillate: float, condenser: str, reflux_enthalpy: float | None):
+def _top_pair(
+    curve: EquilibriumCurve, enthalpies: SaturatedEnthalpies, x_distillate: float, condenser: str,
+    reflux_enthalpy: float | None,
+):
     """(x_1, h_1) the liquid leaving stage 1 and the function R -> y_2."""
     if condenser == "total":
         h_1 = float(enthalpies.liquid_of_x(x_distillate)) if reflux_enthalpy is None else float(reflux_enthalpy)
@@ -211,7 +216,10 @@ def enthalpy_minimum_reflux(
             "too far outside the two-phase region for the enthalpy-composition construction"
         )
     k = crossings[np.argmin(np.abs(grid[crossings] - x_feed))]
-    x_p = float(brentq(lambda v: float(through_feed(v)), grid[k], grid[k + 1], xtol=1e-14)) if values[k] != 0 else float(grid[k])
+    if values[k] == 0:
+        x_p = float(grid[k])
+    else:
+        x_p = float(brentq(lambda v: float(through_feed(v)), grid[k], grid[k + 1], xtol=1e-14))
     y_p = float(curve.y_of_x(x_p))
 
     def extended_to_top(x):
@@ -355,8 +363,11 @@ def ponchon_savarit(
 
     grid = np.linspace(x_bottoms, x_distillate, 201)
     inner = grid[1:-1]
-    rectifying_y = np.concatenate(([np.nan], _vapor_on_line(enthalpies, x_distillate, h_top, inner, enthalpies.liquid_of_x(inner), x_distillate), [x_distillate]))
-    stripping_y = np.concatenate(([x_bottoms], _vapor_on_line(enthalpies, x_bottoms, h_bottom, inner, enthalpies.liquid_of_x(inner), 1.0), [np.nan]))
+    h_inner = enthalpies.liquid_of_x(inner)
+    rectifying_y = np.concatenate(
+        ([np.nan], _vapor_on_line(enthalpies, x_distillate, h_top, inner, h_inner, x_distillate), [x_distillate])
+    )
+    stripping_y = np.concatenate(([x_bottoms], _vapor_on_line(enthalpies, x_bottoms, h_bottom, inner, h_inner, 1.0), [np.nan]))
     rectifying_y = np.where(grid >= x_switch, rectifying_y, np.nan)
     stripping_y = np.where(grid <= x_switch, stripping_y, np.nan)
     construction = EnthalpyConstruction(
@@ -409,7 +420,6 @@ def ponchon_savarit(
         intersection=(x_switch, top(x_switch)),
         condenser_duty=float(condenser_duty),
         reboiler_duty=float(reboiler_duty),
-        feed_pinch_reflux=pinch.feed_pinch_ratio,
         enthalpy=construction,
         notes=tuple(notes),
     )
@@ -425,7 +435,9 @@ def _nan_is_pinch(operating: Callable[[float], float], what: str) -> Callable[[f
     def checked(x: float) -> float:
         y = operating(x)
         if not np.isfinite(y):
-            raise SpecError(f"{what}: the operating line from liquid x = {x:.6g} does not reach the saturated-vapor line (pinch)")
+            raise SpecError(
+                f"{what}: the operating line from liquid x = {x:.6g} does not reach the saturated-vapor line (pinch)"
+            )
         return y
 
     return checked

@@ -4,9 +4,13 @@
 
 from __future__ import annotations
 
+import sys
+from pathlib import Path
+
 import pytest
 
-from hard_cases import HARD_CASES
+sys.path.insert(0, str(Path(__file__).parent))
+from hard_cases import HARD_CASES  # noqa: E402
 from solver.case import loads_case
 from solver.simulate import simulate
 

@@ -14,7 +14,7 @@ sys.path.insert(0, str(HERE.parent / "tests" / "hard"))
 
 from hard_cases import HARD_CASES  # noqa: E402
 from solver.case import loads_case  # noqa: E402
-from solver.simulate import simulate  # noqa: E402
+from solver.engine import simulate  # noqa: E402
 
 
 def main() -> None:

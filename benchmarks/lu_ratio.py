@@ -15,7 +15,7 @@ import scipy.sparse.linalg as spla
 from _common import best_of, five_component_case, save
 from solver.initial import initial_estimate
 from solver.newton import NewtonOptions, solve
-from solver.simulate import build_system
+from solver.engine import build_system
 
 
 def main() -> None:

@@ -15,7 +15,7 @@ import numpy as np
 from _common import ideal_four_case, save
 from solver.initial import initial_estimate
 from solver.newton import NewtonOptions, solve
-from solver.simulate import build_system, simulate
+from solver.engine import build_system, simulate
 
 STAGE_COUNTS = (20, 50, 100, 200, 500)
 

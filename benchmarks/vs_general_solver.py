@@ -18,7 +18,7 @@ from _common import ideal_four_case, save
 from solver.errors import TraystackError
 from solver.initial import initial_estimate
 from solver.newton import NewtonOptions, solve
-from solver.simulate import build_system
+from solver.engine import build_system
 
 
 def main() -> None:

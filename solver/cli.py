@@ -76,7 +76,7 @@ def command_run(args: argparse.Namespace) -> int:
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
     from .results import Result, write_result_json, write_stages_csv
-    from .simulate import simulate
+    from .engine import simulate
     from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)

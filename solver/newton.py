@@ -92,8 +92,9 @@ def dogleg_search(evaluate, X, current, newton_step, scale, flow_mask, merit, op
     gradient = J.T @ F  # gradient of 0.5 |F|^2 in X
     scaled_gradient = gradient / scale
     direction = -scaled_gradient / scale  # steepest descent of the scaled problem, in X
-    curvature = J @ direction
-    denominator = float(curvature @ curvature)
+    with np.errstate(over="ignore", invalid="ignore"):
+        curvature = J @ direction
+        denominator = float(curvature @ curvature)
     if denominator <= 0 or not np.isfinite(denominator):
         return None
     cauchy = direction * (float(scaled_gradient @ scaled_gradient) / denominator)

@@ -52,7 +52,7 @@ from . import __version__
 from .case import TOLERANCE_KEYS, Case, load_case
 from .errors import CaseError, TraystackError
 from .results import Result, write_atomic
-from .simulate import simulate
+from .engine import simulate
 
 __all__ = [
     "BASELINE_SCHEMA",

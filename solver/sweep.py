@@ -38,7 +38,7 @@ from .case import parse_case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError, TraystackError
 from .plots import sweep_plot
 from .results import write_atomic
-from .simulate import simulate
+from .engine import simulate
 
 __all__ = [
     "Variation",

@@ -20,6 +20,8 @@ from functools import lru_cache
 import pint
 
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+# pound-mole, used on US datasheets (453.59237 g per lb, NIST SP 811)
+ureg.define("lbmol = 453.59237 * mol = lb_mol")
 Quantity = ureg.Quantity
 
 #: SI unit and the dimensionality it stands for, per kind of quantity used in case files.

@@ -6,7 +6,7 @@ import pytest
 
 from conftest import methanol_water_case
 from solver.errors import SpecError
-from solver.simulate import simulate
+from solver.engine import simulate
 
 # feed: 100 kmol/h, 35 mol% methanol
 INFEASIBLE = [

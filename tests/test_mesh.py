@@ -10,7 +10,7 @@ import pytest
 from conftest import case_from_text, methanol_water_case
 from solver.errors import SpecError
 from solver.initial import initial_estimate
-from solver.simulate import build_system
+from solver.engine import build_system
 
 
 def _system_and_start(case, seed: int = 0):

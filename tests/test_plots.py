@@ -7,7 +7,7 @@ import pytest
 
 from conftest import case_from_text, methanol_water_case
 from solver.plots import _balance_sections, equilibrium_curve, light_component, sweep_plot, write_all, yx_diagram
-from solver.simulate import simulate
+from solver.engine import simulate
 from solver.thermo.package import ThermoPackage
 
 PNG = b"\x89PNG\r\n\x1a\n"

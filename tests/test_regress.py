@@ -33,7 +33,7 @@ from solver.regress import (
     tolerances_for,
     write_baseline,
 )
-from solver.simulate import simulate
+from solver.engine import simulate
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 

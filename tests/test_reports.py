@@ -20,7 +20,7 @@ from solver.reports import (
     summary_tables,
     write_summary,
 )
-from solver.simulate import simulate
+from solver.engine import simulate
 
 
 @pytest.fixture(scope="module")

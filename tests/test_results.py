@@ -11,7 +11,7 @@ import pytest
 
 from conftest import methanol_water_case
 from solver.results import write_atomic, write_result_json, write_stages_csv
-from solver.simulate import simulate
+from solver.engine import simulate
 
 
 @pytest.fixture(scope="module")

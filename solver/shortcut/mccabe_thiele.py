@@ -755,7 +755,7 @@ def check_simple_column(case: Case, method: str) -> list[str]:
 
 def feed_condition(case: Case, thermo: ThermoPackage):
     """The case's single feed flashed at its own pressure, q judged at its stage's pressure (as
-    :func:`solver.simulate.feed_data` does)."""
+    :func:`solver.engine.feed_data` does)."""
     feed = case.feeds[0]
     stage_pressure = float(case.column.pressures[feed.stage - 1])
     pressure = feed.pressure if feed.pressure is not None else stage_pressure

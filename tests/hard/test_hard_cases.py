@@ -12,7 +12,7 @@ import pytest
 sys.path.insert(0, str(Path(__file__).parent))
 from hard_cases import HARD_CASES  # noqa: E402
 from solver.case import loads_case
-from solver.simulate import simulate
+from solver.engine import simulate
 
 
 def test_the_suite_is_large_enough():

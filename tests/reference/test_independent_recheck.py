@@ -54,7 +54,7 @@ from scipy.integrate import quad
 
 from conftest import case_from_text
 from solver.case import load_case
-from solver.simulate import simulate
+from solver.engine import simulate
 
 thermo = pytest.importorskip("thermo")
 from thermo.nrtl import NRTL as ThermoNRTL  # noqa: E402

@@ -32,7 +32,7 @@ import numpy as np
 import pytest
 
 from conftest import case_from_text
-from solver.simulate import simulate
+from solver.engine import simulate
 
 ALPHA = 2.5  # 10 ** (A_light - A_heavy) with equal B and C
 

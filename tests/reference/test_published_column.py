@@ -64,7 +64,7 @@ import numpy as np
 import pytest
 
 from solver.case import load_case
-from solver.simulate import simulate
+from solver.engine import simulate
 from solver.thermo.package import ThermoPackage
 
 CASE_FILE = Path(__file__).resolve().parents[2] / "cases" / "ethanol_water_wankat.toml"

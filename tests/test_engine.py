@@ -15,7 +15,7 @@ from solver.case import load_case
 from solver.errors import ConvergenceError, ThermoError
 from solver.newton import NewtonOptions
 from solver.results import SCHEMA
-from solver.simulate import build_system, simulate
+from solver.engine import build_system, simulate
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 

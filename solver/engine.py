@@ -1,4 +1,4 @@
-"""``simulate(case) -> Result``: the rigorous column solution, start to finish.
+"""The engine: ``simulate(case) -> Result``, the rigorous column solution, start to finish.
 
 case -> thermo package -> stage graph -> feeds (flashed) -> MESH system -> default start ->
 Newton -> independent post-check -> Result. A result is marked converged only when Newton

@@ -219,16 +219,15 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
     if adjustable and profile_specs:
         first = profile_specs[0]
         second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None
-        rounds = 2 if second is not None else 1
-        for _ in range(rounds):
+        for _ in range(2 if second is not None else 1):
             D = _root_by_walking(
-                lambda trial: _profile_spec_error(system, first, profile(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-4 * F_net
+                lambda trial: _profile_spec_error(system, first, profile(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-5 * F_net
             )
             if second is None:
                 break
             factor = vapor_for(D) / D  # V_top / D = R + 1
             factor = _root_by_walking(
-                lambda trial: _profile_spec_error(system, second, profile(D, trial * D)), factor, 1.05, 200.0, 1e-3
+                lambda trial: _profile_spec_error(system, second, profile(D, trial * D)), factor, 1.05, 200.0, 1e-4
             )
             state["reflux_factor"] = factor
     L, V, T, x, l, stripping = profile(D)
@@ -254,29 +253,61 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
     return system.pack(T, l_flows, v_flows)
 
 
-def wang_henke_sweeps(system: MeshSystem, L: np.ndarray, V: np.ndarray, T: np.ndarray, x: np.ndarray):
-    """Bubble-point sweeps at fixed total flows until no temperature moves by 1e-3 K.
+def component_balance_matrix(system: MeshSystem, L: np.ndarray, V: np.ndarray, stripping: np.ndarray) -> sp.csc_matrix:
+    """The component balances of every component at fixed total flows, with ``v = S l``, as one
+    block-diagonal sparse matrix in the liquid component flows (component-major order)."""
+    N, c = system.N, system.c
+    U, W = system.liquid_draws, system.vapor_draws
+    offsets = (np.arange(c) * N)[:, None]
+    stages = np.arange(N)[None, :]
+    le, ve = system.graph.liquid_edges, system.graph.vapor_edges
+    rows = [np.broadcast_to(offsets + stages, (c, N)).ravel()]
+    cols = [rows[0]]
+    values = [((1.0 + U / L)[:, None] + stripping * (1.0 + W / V)[:, None]).T.ravel()]
+    if len(le):
+        rows.append((offsets + le[:, 1][None, :]).ravel())
+        cols.append((offsets + le[:, 0][None, :]).ravel())
+        values.append(np.full(c * len(le), -1.0))
+    if len(ve):
+        rows.append((offsets + ve[:, 1][None, :]).ravel())
+        cols.append((offsets + ve[:, 0][None, :]).ravel())
+        values.append(-stripping[ve[:, 0], :].T.ravel())
+    return sp.csc_matrix(
+        (np.concatenate(values), (np.concatenate(rows), np.concatenate(cols))), shape=(N * c, N * c)
+    )
+
+
+def wang_henke_sweeps(
+    system: MeshSystem,
+    L: np.ndarray,
+    V: np.ndarray,
+    T: np.ndarray,
+    x: np.ndarray,
+    *,
+    tolerance: float = 1e-3,
+    max_sweeps: int = _WANG_HENKE_SWEEPS,
+):
+    """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K.
     Returns (T, x, component liquid flows l, stripping factors S with v = S l)."""
     thermo = system.thermo
     N, c = system.N, system.c
-    A_L = system.graph.liquid_inflow
-    A_V = system.graph.vapor_inflow
-    U, W = system.liquid_draws, system.vapor_draws
     t = system.top
     T = T.copy()
-    for _ in range(_WANG_HENKE_SWEEPS):
+    rhs = system.feed_flows.T.ravel()
+
+    def stripping_factors(T, x):
         K = thermo.k_values(T, system.pressures, x, derivatives=False).K
-        stripping = K * (V / L)[:, None]
+        factors = K * (V / L)[:, None]
         if system.total_condenser:
-            stripping[t] = V[t] / L[t]
-        l = np.empty((N, c))
-        for i in range(c):
-            diagonal = sp.diags(1.0 + U / L + stripping[:, i] * (1.0 + W / V))
-            matrix = (diagonal - A_L - A_V @ sp.diags(stripping[:, i])).tocsc()
-            # natural ordering keeps the elimination in stage order, where the column-wise
-            # diagonal dominance of these matrices makes it stable
-            l[:, i] = spla.spsolve(matrix, system.feed_flows[:, i], permc_spec="NATURAL")
-        l = np.maximum(l, 1e-30)
+            factors[t] = V[t] / L[t]
+        return factors
+
+    for _ in range(max_sweeps):
+        stripping = stripping_factors(T, x)
+        # natural ordering keeps the elimination in stage order, where the column-wise
+        # diagonal dominance of these matrices makes it stable
+        solution = spla.spsolve(component_balance_matrix(system, L, V, stripping), rhs, permc_spec="NATURAL")
+        l = np.maximum(solution.reshape(c, N).T, 1e-30)
         x = l / l.sum(axis=1, keepdims=True)
         try:
             T_new, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
@@ -284,13 +315,9 @@ def wang_henke_sweeps(system: MeshSystem, L: np.ndarray, V: np.ndarray, T: np.nd
             break
         moved = float(np.max(np.abs(T_new - T)))
         T = T_new
-        if moved < 1e-3:
+        if moved < tolerance:
             break
-    K = thermo.k_values(T, system.pressures, x, derivatives=False).K
-    stripping = K * (V / L)[:, None]
-    if system.total_condenser:
-        stripping[t] = V[t] / L[t]
-    return T, x, l, stripping
+    return T, x, l, stripping_factors(T, x)
 
 
 def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float:

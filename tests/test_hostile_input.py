@@ -161,6 +161,7 @@ def test_bad_values_are_refused_naming_the_key(choice):
 @settings(max_examples=800, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(st.sampled_from(TABLES), KEY_NAMES, st.sampled_from([1, "x", 2.5, True, [1]]))
 def test_unknown_keys_are_refused_with_the_allowed_ones(table, key, value):
+    key = "zq" + key  # no allowed key starts so; a bare random word could be a real key (normalize, basis)
     document = copy.deepcopy(BASE)
     target = document
     for part in table:

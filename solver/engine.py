@@ -17,7 +17,7 @@ import numpy as np
 from .case import Case
 from .errors import ConvergenceError, ThermoError
 from .continuation import continue_to_real_model
-from .feasibility import check_specifications
+from .feasibility import check_binary_limits, check_specifications
 from .initial import initial_estimate
 from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
@@ -202,6 +202,18 @@ def build_system(case: Case, thermo: ThermoPackage | None = None):
         [d["flow"] for d in details],
         thermo.cmo_latent_heat,
     )
+    if len(case.component_names) == 2 and len(case.feeds) == 1 and not case.column.side_draws:
+        all_equilibrium = bool(np.all(graph.efficiencies == 1.0))
+        check_binary_limits(
+            case.specs,
+            case.component_names,
+            thermo,
+            float(np.mean(graph.pressures)),
+            np.asarray(case.feeds[0].composition),
+            details[0]["q"],
+            float(graph.stage_count) if all_equilibrium else None,
+            graph.condenser,
+        )
     system = MeshSystem(
         graph,
         thermo,

@@ -114,3 +114,76 @@ def check_specifications(
 
 def component_label(spec: Spec) -> str:
     return spec.component or "component"
+
+
+def check_binary_limits(
+    specs: Sequence[Spec],
+    component_names: Sequence[str],
+    thermo,
+    pressure: float,
+    feed_composition: np.ndarray,
+    q: float,
+    equilibrium_stages_available: float | None,
+    condenser: str,
+) -> None:
+    """For a binary with one feed: purities beyond an azeotrope, a reflux ratio below the
+    minimum reflux (feed or tangent pinch, McCabe-Thiele under CMO) and purities beyond what
+    the column's stages give even at total reflux. ``equilibrium_stages_available`` is the
+    column's stage count when every stage is an equilibrium stage (None skips that check)."""
+    from .shortcut.mccabe_thiele import EquilibriumCurve, minimum_reflux, total_reflux_stages
+
+    names = list(component_names)
+    z = np.asarray(feed_composition, dtype=float)
+    z = z / z.sum()
+    try:
+        from .thermo.flash import bubble_temperature
+
+        T, _ = bubble_temperature(thermo, np.array([pressure]), z[None, :])
+        K = thermo.k_values(T, np.array([pressure]), z[None, :], derivatives=False).K[0]
+        light = 0 if K[0] >= K[1] else 1
+        curve = EquilibriumCurve.from_thermo(thermo, pressure, light)
+    except Exception:  # the shortcut's curve is a guard here, never a reason to refuse a case
+        return
+    x_feed = float(z[light])
+
+    def light_fraction(spec: Spec) -> float:
+        return spec.value if names.index(spec.component) == light else 1.0 - spec.value
+
+    top = next((s for s in specs if s.kind == "mole_fraction" and s.product == "distillate"), None)
+    bottom = next((s for s in specs if s.kind == "mole_fraction" and s.product == "bottoms"), None)
+    x_top = light_fraction(top) if top else None
+    x_bottom = light_fraction(bottom) if bottom else None
+    low, high = curve.feasible_region(x_feed)
+    for spec, x, beyond in ((top, x_top, lambda x: x >= high and high < 1.0), (bottom, x_bottom, lambda x: x <= low and low > 0.0)):
+        if spec is not None and beyond(x):
+            azeotrope = curve.azeotrope_above(x_feed) if spec is top else curve.azeotrope_below(x_feed)
+            raise SpecError(
+                f"{spec.key or spec.kind} = {spec.value:g} is beyond the {azeotrope.boiling}-boiling azeotrope at "
+                f"x = {azeotrope.x:.4f} {names[light]}, {azeotrope.temperature - 273.15:.2f} degC, "
+                f"{azeotrope.pressure / 1e3:.4g} kPa: no number of stages reaches it"
+            )
+    reflux = next((s for s in specs if s.kind == "reflux_ratio"), None)
+    if reflux is not None and x_top is not None and x_feed < x_top < 1.0 and -0.5 < q < 1.5:
+        bottoms_guess = x_bottom if x_bottom is not None else min(0.01 * x_feed, 1e-3)
+        try:
+            minimum = minimum_reflux(curve, x_top, bottoms_guess, x_feed, q)
+        except Exception:
+            minimum = None
+        if minimum is not None:
+            ratio = minimum.ratio if (minimum.section != "stripping" or x_bottom is not None) else minimum.feed_pinch_ratio
+            if reflux.value < ratio * (1.0 - 1e-3):
+                raise SpecError(
+                    f"{reflux.key or 'reflux_ratio'} = {reflux.value:g} is below the minimum reflux ratio {ratio:.4g} for "
+                    f"{top.key} = {top.value:g} ({minimum.pinch} pinch at x = {minimum.x:.4f} {names[light]}, "
+                    f"constant-molar-overflow estimate): no number of stages meets it"
+                )
+    if equilibrium_stages_available is not None and x_top is not None and x_bottom is not None and x_bottom < x_feed < x_top:
+        try:
+            needed = total_reflux_stages(curve, x_top, x_bottom, condenser)
+        except Exception:
+            return
+        if needed > equilibrium_stages_available + 1e-9:
+            raise SpecError(
+                f"{top.key} = {top.value:g} with {bottom.key} = {bottom.value:g} needs at least {needed:.2f} stages even at "
+                f"total reflux; the column has {equilibrium_stages_available:g}"
+            )

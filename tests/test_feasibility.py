@@ -33,3 +33,50 @@ def test_infeasible_specs_are_explained(specs, message):
 def test_a_feasible_neighbour_still_solves():
     result = simulate(methanol_water_case(specs='distillate_rate = "34 kmol/h"\ndistillate = { methanol = 0.98 }'))
     assert result.converged
+
+
+ETHANOL_WATER = """
+title = "ethanol-water limits"
+[components]
+names = ["ethanol", "water"]
+[thermo]
+liquid = "nrtl"
+[thermo.nrtl.ethanol.water]
+a = [-0.178, 1.963]
+alpha = 0.2974
+source = "Gmehling, Kolbe, Kleiber & Rarey 2012, Problem P05.01"
+[column]
+stages = {stages}
+condenser = "total"
+reboiler = "partial"
+pressure = "1 atm"
+[[feeds]]
+stage = {feed}
+flow = "100 kmol/h"
+composition = {{ ethanol = 0.1, water = 0.9 }}
+vapor_fraction = 0.0
+[specs]
+{specs}
+"""
+
+
+@pytest.mark.parametrize(
+    "stages, feed, specs, message",
+    [
+        (40, 30, "reflux_ratio = 8.0\ndistillate = { ethanol = 0.95 }",
+         r"specs.distillate.ethanol = 0.95 is beyond the minimum-boiling azeotrope at x = 0.90\d\d ethanol, 78.\d\d degC"),
+        (40, 30, "reflux_ratio = 8.0\ndistillate = { water = 0.02 }", r"beyond the minimum-boiling azeotrope"),
+        (40, 30, "reflux_ratio = 1.0\ndistillate = { ethanol = 0.85 }",
+         r"reflux_ratio = 1 is below the minimum reflux ratio 2.0\d+ .*tangent pinch at x = 0.7\d\d\d"),
+        (40, 30, "reflux_ratio = 0.3\ndistillate = { ethanol = 0.6 }", r"below the minimum reflux ratio 0.\d+ .*feed pinch"),
+        (6, 4, "distillate = { ethanol = 0.85 }\nbottoms = { ethanol = 0.0001 }", r"needs at least \d+\.\d\d stages even at total reflux; the column has 6"),
+    ],
+)
+def test_binary_limits_from_the_equilibrium_curve(make_case, stages, feed, specs, message):
+    with pytest.raises(SpecError, match=message):
+        simulate(make_case(ETHANOL_WATER.format(stages=stages, feed=feed, specs=specs)))
+
+
+def test_reflux_above_the_tangent_pinch_minimum_solves(make_case):
+    result = simulate(make_case(ETHANOL_WATER.format(stages=40, feed=30, specs="reflux_ratio = 3.0\ndistillate = { ethanol = 0.85 }")))
+    assert result.converged

@@ -39,7 +39,7 @@ distillate_rate = "{distillate} kmol/h"
 FIVE = """
 title = "ideal five-component benchmark column ({stages} stages)"
 [components]
-names = ["n-pentane", "n-hexane", "n-heptane", "n-octane", "n-nonane"]
+names = ["benzene", "toluene", "ethylbenzene", "o-xylene", "n-nonane"]
 [thermo]
 liquid = "ideal"
 [column]
@@ -51,11 +51,11 @@ pressure.drop_per_stage = "{drop} Pa"
 [[feeds]]
 stage = {feed}
 flow = "100 kmol/h"
-composition = {{ "n-pentane" = 0.2, "n-hexane" = 0.2, "n-heptane" = 0.2, "n-octane" = 0.2, "n-nonane" = 0.2 }}
+composition = {{ benzene = 0.3, toluene = 0.25, ethylbenzene = 0.15, "o-xylene" = 0.15, "n-nonane" = 0.15 }}
 vapor_fraction = 0.0
 [specs]
-reflux_ratio = 2.0
-distillate_rate = "50 kmol/h"
+reflux_ratio = 2.5
+distillate_rate = "45 kmol/h"
 """
 
 

@@ -1,6 +1,6 @@
 """Cost of one Newton iteration relative to one sparse LU factorization of its Jacobian.
 
-N = 200 stages, 5 components (ideal n-alkanes). ``ratio`` = seconds per Newton iteration
+N = 200 stages, 5 components (benzene, toluene, ethylbenzene, o-xylene, n-nonane; ideal liquid). ``ratio`` = seconds per Newton iteration
 (residuals, Jacobian assembly, factorization, solve, line search) / seconds for one
 ``scipy.sparse.linalg.splu`` of the same Jacobian (target: at most 4).
 Writes benchmarks/results/lu_ratio.json.

@@ -30,6 +30,10 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   list of them), ``reflux_temperature`` / ``reflux_subcooling`` (column settings, not specs).
 - ``[check]`` ``tolerances`` = {duty_rel, composition_abs, temperature_abs, flow_rel};
   ``[display]`` {temperature, pressure, flow, duty} units.
+- ``[audit]`` (optional, read by ``traystack audit`` and ``traystack shortcut``): what the shortcut
+  designs for where the specs do not say -- ``distillate``/``bottoms`` = {NAME = x} (product mole
+  fractions), ``reflux_ratio`` or ``reflux_factor`` (times the minimum reflux, > 1) -- and
+  ``thresholds`` = {KEY = value} over the audit's defaults (keys :data:`AUDIT_THRESHOLD_KEYS`).
 """
 
 from __future__ import annotations
@@ -194,6 +198,19 @@ class Spec:
 
 
 @dataclass(frozen=True)
+class AuditOptions:
+    """The optional ``[audit]`` table: product targets for the shortcut (``products``, specs of
+    kind mole_fraction, keyed ``audit.distillate.NAME``), its reflux (``reflux_ratio`` L/D, or
+    ``reflux_factor`` times the minimum reflux ratio; at most one) and flag ``thresholds``
+    (keys :data:`AUDIT_THRESHOLD_KEYS`)."""
+
+    products: tuple[Spec, ...] = ()
+    reflux_ratio: float | None = None
+    reflux_factor: float | None = None
+    thresholds: Mapping[str, float] = field(default_factory=_frozen_mapping)
+
+
+@dataclass(frozen=True)
 class Case:
     title: str
     component_names: tuple[str, ...]
@@ -204,6 +221,7 @@ class Case:
     specs: tuple[Spec, ...]
     check: Mapping[str, float] = field(default_factory=_frozen_mapping)  # tolerances
     display: Mapping[str, str] = field(default_factory=_frozen_mapping)  # screen units
+    audit: AuditOptions | None = None  # the optional [audit] table
     source_file: str = ""
     raw: Mapping[str, object] = field(default_factory=_frozen_mapping)  # the TOML as read
     # Added by the parser: notes that are not errors, e.g. a [components.data] entry that
@@ -234,8 +252,23 @@ WATSON_EXPONENT = 0.38
 DEFAULT_DISPLAY = {"temperature": "degC", "pressure": "bar", "flow": "kmol/h", "duty": "kW"}
 #: Keys of [check] tolerances.
 TOLERANCE_KEYS = ("duty_rel", "composition_abs", "temperature_abs", "flow_rel")
+#: Keys of [audit] thresholds (their defaults and reasons are in solver.audit). The two stage
+#: thresholds are numbers of stages, the others fractions (or a factor).
+AUDIT_THRESHOLD_KEYS = (
+    "cmo_deviation",
+    "purity_shortfall",
+    "stage_difference",
+    "reflux_difference",
+    "duty_difference",
+    "feed_condition",
+    "feed_q_offset",
+    "tangent_pinch",
+    "pinch_shift",
+    "serious_factor",
+)
+_AUDIT_KEYS = ("distillate", "bottoms", "reflux_ratio", "reflux_factor", "thresholds")
 
-_TOP_KEYS = ("title", "components", "thermo", "column", "feeds", "specs", "check", "display")
+_TOP_KEYS = ("title", "components", "thermo", "column", "feeds", "specs", "check", "display", "audit")
 _COMPONENT_DATA_KEYS = (
     "molar_mass",
     "critical_temperature",
@@ -633,6 +666,7 @@ def _parse(data: Any, at: _At) -> Case:
     column = replace(column, reflux_temperature=reflux_temperature, reflux_subcooling=reflux_subcooling)
     check = _read_check(data.get("check", {}), at.child("check"))
     display = _read_display(data.get("display", {}), at.child("display"))
+    audit = _read_audit(data["audit"], names, at.child("audit")) if "audit" in data else None
     return Case(
         title=title,
         component_names=names,
@@ -643,6 +677,7 @@ def _parse(data: Any, at: _At) -> Case:
         specs=specs,
         check=MappingProxyType(check),
         display=MappingProxyType(display),
+        audit=audit,
         source_file=at.file,
         raw=MappingProxyType(_plain(data)),
         warnings=tuple(warnings),
@@ -1413,3 +1448,50 @@ def _read_display(value: Any, at: _At) -> dict[str, str]:
             key_at.fail(str(exc), item, f"a unit such as {DEFAULT_DISPLAY[key]!r}")
         display[key] = unit
     return display
+
+
+# --- [audit] ---------------------------------------------------------------------------
+
+
+def _read_audit(value: Any, names: tuple[str, ...], at: _At) -> AuditOptions:
+    """Product targets, reflux and thresholds for the audit's shortcut (see
+    :class:`AuditOptions`)."""
+    table = _table(value, at, "a table such as { distillate = { methanol = 0.99 }, reflux_factor = 1.3 }")
+    _keys(table, at, _AUDIT_KEYS)
+    products: list[Spec] = []
+    for product in _PRODUCTS:
+        if product not in table:
+            continue
+        product_at = at.child(product)
+        for written, fraction in _table(table[product], product_at, "a table such as { water = 0.995 }").items():
+            fraction_at = product_at.child(written)
+            name = _component(written, names, fraction_at)
+            x = _quantity(fraction, "dimensionless", fraction_at, above=0.0, below=1.0)
+            products.append(Spec("mole_fraction", x, component=name, product=product, key=fraction_at.key))
+    if len(names) == 2:
+        for product in _PRODUCTS:
+            given = [spec for spec in products if spec.product == product]
+            if len(given) > 1:
+                at.child(product).fail(
+                    "a binary product has one composition: give one of its mole fractions",
+                    table[product], "one entry such as { water = 0.995 }",
+                )
+    reflux_ratio = reflux_factor = None
+    if "reflux_ratio" in table and "reflux_factor" in table:
+        at.child("reflux_factor").fail("cannot be combined with reflux_ratio", table["reflux_factor"], "one of the two")
+    if "reflux_ratio" in table:
+        reflux_ratio = _quantity(table["reflux_ratio"], "dimensionless", at.child("reflux_ratio"), above=0.0)
+    if "reflux_factor" in table:
+        reflux_factor = _quantity(table["reflux_factor"], "dimensionless", at.child("reflux_factor"), above=1.0)
+    thresholds_at = at.child("thresholds")
+    written = _table(table.get("thresholds", {}), thresholds_at, "a table such as { cmo_deviation = 0.05 }")
+    _keys(written, thresholds_at, AUDIT_THRESHOLD_KEYS)
+    thresholds = {}
+    for key, item in written.items():
+        if key == "serious_factor":
+            thresholds[key] = _quantity(item, "dimensionless", thresholds_at.child(key), above=1.0)
+        elif key in ("stage_difference", "pinch_shift"):
+            thresholds[key] = _real(item, thresholds_at.child(key), minimum=0.0, maximum=MAX_STAGES)
+        else:
+            thresholds[key] = _quantity(item, "dimensionless", thresholds_at.child(key), above=0.0)
+    return AuditOptions(tuple(products), reflux_ratio, reflux_factor, MappingProxyType(thresholds))

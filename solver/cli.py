@@ -1,6 +1,7 @@
-"""The ``traystack`` command: ``run``, ``check``, ``sweep``, ``components``.
+"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``check``, ``sweep``, ``components``.
 
-Exit codes (DESIGN.md): 0 success; 1 ``check`` found drift or a case that failed; 2 bad input or
+Exit codes (DESIGN.md): 0 success; 1 ``check`` found drift or a case that failed, or ``audit``
+raised a flag at or above ``--fail-on``; 2 bad input or
 an infeasible specification (one message naming the file, key and value; ``--debug`` shows the
 traceback); 3 the solver did not converge (``run`` still writes the result, marked
 ``converged: false``; ``sweep`` when no point converged). An unexpected internal error exits 4
@@ -30,7 +31,7 @@ from .reports import CAUTION
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
-PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png")
+PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png")
 
 
 def _console(quiet: bool = False, stderr: bool = False) -> Console:
@@ -53,6 +54,13 @@ def _progress(console: Console) -> Progress:
         TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
         console=console, auto_refresh=False, transient=True, disable=not console.is_terminal,
     )
+
+
+def _at_least_three(text: str) -> int:
+    value = _positive_int(text)
+    if value < 3:
+        raise argparse.ArgumentTypeError(f"{value} is less than 3 (the audit needs at least 3 rigorous solves)")
+    return value
 
 
 def _positive_int(text: str) -> int:
@@ -126,6 +134,136 @@ def add_run_command(sub) -> None:
     run.add_argument("--max-iterations", type=_positive_int, metavar="N",
                      help="diagnostic: limit Newton to N iterations (default 60), e.g. to see a partial solve")
     run.set_defaults(handler=command_run)
+
+
+# =======================================================================================
+# shortcut
+# =======================================================================================
+
+SHORTCUT_SCHEMA = "traystack-shortcut/1"
+
+
+def command_shortcut(args: argparse.Namespace) -> int:
+    import json
+
+    from .audit import shortcut_case, shortcut_record
+    from .case import load_case
+    from .engine import case_summary
+    from .plots import shortcut_layer, shortcut_yx_diagram
+    from .reports import display_units, shortcut_tables
+    from .results import UNITS, _json_safe, write_atomic
+
+    console = _console(args.quiet)
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    units = display_units(case.display, args.units)
+    report = shortcut_case(case)
+    record = shortcut_record(report)
+    out = Path(args.out) if args.out else _default_out(case_path, "_shortcut")
+    document = {
+        "schema": SHORTCUT_SCHEMA, "title": case.title, "case": case_summary(case),
+        "components": list(case.component_names), "units": dict(UNITS), "shortcut": record,
+    }
+    written = [write_atomic(out / "shortcut.json", json.dumps(_json_safe(document), indent=2, allow_nan=False) + "\n")]
+    if report.is_binary:
+        layers = [shortcut_layer(report.enthalpy_design, curve=False, steps=False, q_line=False, pinch=False,
+                                 linestyle="--")] if report.enthalpy_design else []
+        written.append(shortcut_yx_diagram(report.design, out / "yx_shortcut.png", title=case.title, layers=layers))
+    for table in shortcut_tables(record, units, case.title):
+        console.print(table)
+    for note in record.get("notes", []):
+        console.print(f"note: {note}")
+    if report.enthalpy_message:
+        console.print(f"[yellow]Ponchon-Savarit design not possible:[/] {report.enthalpy_message}")
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    return 0
+
+
+def add_shortcut_command(sub) -> None:
+    shortcut = sub.add_parser(
+        "shortcut", help="shortcut design only (McCabe-Thiele and Ponchon-Savarit, or Fenske-Underwood-Gilliland-Kirkbride)"
+    )
+    shortcut.add_argument("case", help="case file (TOML)")
+    shortcut.add_argument("--out", metavar="DIR", help="output folder for shortcut.json and, for a binary, yx_shortcut.png "
+                          "(default: CASE_shortcut in the current folder)")
+    shortcut.add_argument("--units", help="screen units, as for run")
+    shortcut.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+    shortcut.set_defaults(handler=command_shortcut)
+
+
+# =======================================================================================
+# audit
+# =======================================================================================
+
+
+def command_audit(args: argparse.Namespace) -> int:
+    from .audit import MAX_SOLVES, SEVERITIES, audit_case
+    from .case import load_case
+    from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
+    from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
+    from .results import write_result_json, write_stages_csv
+
+    console = _console(args.quiet)
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    units = display_units(case.display, args.units)
+    with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
+        report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
+    result = report.result
+    out = Path(args.out) if args.out else _default_out(case_path, "_audit")
+    written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
+    plots = []
+    if result.converged:
+        plots.append(temperature_profile(result, out / "temperature.png"))
+        plots.append(composition_profiles(result, out / "compositions.png"))
+        if report.cmo is not None:
+            plots.append(cmo_flow_profiles(result, report.cmo.liquid_cmo, report.cmo.vapor_cmo, out / "cmo_flows.png"))
+        if report.shortcut.is_binary:
+            layers = [shortcut_layer(report.shortcut.design)]
+            plots.append(yx_diagram(result, out / "yx.png", layers=layers, rigorous_steps=False))
+    else:
+        for name in PLOT_FILES:
+            (out / name).unlink(missing_ok=True)
+    written.append(write_summary(result, out / "summary.md", units, [path.name for path in plots]))
+    written += plots
+    for table in audit_tables(result, units):
+        console.print(table)
+    console.print(SIDE_BY_SIDE_NOTE, style="dim")
+    console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
+    for text in cautions(result)[:-1]:
+        if not text.startswith("["):  # the flags are in their table
+            console.print(f"[yellow]caution:[/] {text}")
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    if not result.converged:
+        print(f"traystack: the shortcut's column did not converge rigorously: {result.message}; the result is written "
+              f"to {out / 'result.json'} marked converged: false", file=sys.stderr)
+        return 3
+    if args.fail_on:
+        level = SEVERITIES.index(args.fail_on)
+        failing = [flag for flag in report.flags if SEVERITIES.index(flag.severity) >= level]
+        if failing:
+            print(f"traystack: {len(failing)} audit flag(s) at or above {args.fail_on}: "
+                  + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
+            return 1
+    return 0
+
+
+def add_audit_command(sub) -> None:
+    audit = sub.add_parser(
+        "audit", help="shortcut and rigorous side by side, CMO audit, flags where the shortcut misleads"
+    )
+    audit.add_argument("case", help="case file (TOML); an optional [audit] table sets the shortcut's targets, "
+                       "reflux and the flag thresholds")
+    audit.add_argument("--out", metavar="DIR", help="output folder (default: CASE_audit in the current folder)")
+    audit.add_argument("--fail-on", choices=("warning", "serious"),
+                       help="exit 1 when a flag of this severity or worse is raised (for CI)")
+    audit.add_argument("--units", help="screen and summary units, as for run")
+    audit.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+    audit.add_argument("--max-solves", type=_at_least_three, metavar="N",
+                       help="most rigorous solves the audit may use (default 30, at least 3)")
+    audit.set_defaults(handler=command_audit)
 
 
 # =======================================================================================
@@ -304,15 +442,19 @@ def add_components_command(sub) -> None:
     components.set_defaults(handler=command_components)
 
 
-#: The commands in the order ``--help`` lists them (the shortcut and audit commands go after run).
-COMMANDS = (add_run_command, add_check_command, add_sweep_command, add_components_command)
+#: The commands in the order ``--help`` lists them.
+COMMANDS = (
+    add_run_command, add_shortcut_command, add_audit_command, add_check_command, add_sweep_command,
+    add_components_command,
+)
 
 
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="traystack",
         description="Rigorous tray-by-tray distillation column simulation (MESH equations, Newton's method).",
-        epilog="Exit codes: 0 success, 1 check found drift, 2 bad input or infeasible specification, "
+        epilog="Exit codes: 0 success, 1 check found drift or audit raised a flag asked to fail on, 2 bad input or "
+        "infeasible specification, "
         "3 not converged, 4 internal error. Caution: " + CAUTION,
     )
     parser.add_argument("--version", action="version", version=f"traystack {__version__}")

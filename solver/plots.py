@@ -3,8 +3,9 @@
 Profiles against stage number (temperature, internal liquid and vapor flows, liquid
 compositions), for a binary the y-x diagram, and the figure of a parameter sweep. The y-x
 diagram takes extra *layers* (functions that draw on its axes), so that the shortcut design's
-straight operating lines and steps can be laid over the rigorous solution without changing
-this module.
+straight operating lines and steps can be laid over the rigorous solution
+(:func:`shortcut_layer`); :func:`shortcut_yx_diagram` draws a shortcut design alone and
+:func:`cmo_flow_profiles` the internal flows against their constant-molar-overflow values.
 """
 
 from __future__ import annotations
@@ -114,11 +115,13 @@ def _balance_sections(result: Result) -> np.ndarray:
     return np.cumsum(special)[:-1]
 
 
-def yx_diagram(result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = ()) -> Path:
+def yx_diagram(
+    result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True
+) -> Path:
     """The y-x diagram of a binary column: the equilibrium curve at the mean column pressure
     (when ``thermo`` is given), the rigorous stages (x_j, y_j), the rigorous operating curve
-    (x_j, y_j+1) — straight only under constant molar overflow — and the staircase between
-    them; then each of ``layers``."""
+    (x_j, y_j+1) — straight only under constant molar overflow — and (``rigorous_steps``) the
+    staircase between them; then each of ``layers``."""
     if len(result.components) != 2:
         raise ValueError(f"a y-x diagram needs a binary, not {len(result.components)} components")
     light = light_component(result)
@@ -137,7 +140,8 @@ def yx_diagram(result: Result, path: Path, *, thermo=None, layers: Sequence[YXLa
         if j + 1 < result.stage_count:
             steps_x.append(x[j])
             steps_y.append(y[j + 1])
-    ax.plot(steps_x, steps_y, color="0.35", linewidth=0.7, label="rigorous stages (staircase)")
+    if rigorous_steps:
+        ax.plot(steps_x, steps_y, color="0.35", linewidth=0.7, label="rigorous stages (staircase)")
     ax.plot(x[first:], y[first:], "o", color="tab:blue", markersize=3.5, label="stage (x_j, y_j)")
     sections = _balance_sections(result)
     for number, section in enumerate(np.unique(sections)):
@@ -155,6 +159,105 @@ def yx_diagram(result: Result, path: Path, *, thermo=None, layers: Sequence[YXLa
     ax.grid(True, alpha=0.3)
     ax.legend(loc="lower right", fontsize=7)
     ax.set_title(result.title, fontsize=9)
+    return _save(figure, path)
+
+
+def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bool = True, pinch: bool = True,
+                   linestyle: str = "-") -> YXLayer:
+    """A y-x layer of a binary shortcut design (a :class:`~solver.shortcut.BinaryDesign`): its
+    equilibrium curve at the design pressure (``curve``), the q-line, both operating lines
+    (straight for McCabe-Thiele; the curved ones of the enthalpy construction for
+    Ponchon-Savarit), the operating line at minimum reflux through its pinch (``pinch``) and
+    (``steps``) its staircase. Drawn beneath the rigorous points."""
+
+    def draw(ax: plt.Axes, light: int) -> None:
+        method = design.method
+        if curve:
+            ax.plot(design.curve.x, design.curve.y, color="tab:blue", linewidth=1.2, zorder=1.4,
+                    label=f"equilibrium at {design.pressure / 1e5:.4g} bar (shortcut)")
+        x_int, y_int = design.intersection
+        if q_line:
+            ax.plot([design.x_feed, x_int], [design.x_feed, y_int], color="tab:purple", linewidth=1.0, zorder=1.5,
+                    label=f"q-line (q = {design.q:.3g})")
+        if design.rectifying_line is not None:
+            ax.plot([x_int, design.x_distillate], [y_int, design.x_distillate], color="tab:green", linewidth=1.2,
+                    linestyle=linestyle, zorder=1.5, label=f"{method} rectifying line")
+            ax.plot([design.x_bottoms, x_int], [design.x_bottoms, y_int], color="tab:olive", linewidth=1.2,
+                    linestyle=linestyle, zorder=1.5, label=f"{method} stripping line")
+        elif design.enthalpy is not None:
+            e = design.enthalpy
+            ax.plot(e.operating_x, e.rectifying_y, color="tab:green", linewidth=1.2, linestyle=linestyle, zorder=1.5,
+                    label=f"{method} rectifying curve")
+            ax.plot(e.operating_x, e.stripping_y, color="tab:olive", linewidth=1.2, linestyle=linestyle, zorder=1.5,
+                    label=f"{method} stripping curve")
+        if pinch:
+            p = design.minimum_reflux
+            end = design.x_bottoms if p.section == "stripping" else design.x_distillate
+            ax.plot([end, p.x], [end, p.y], color="tab:red", linewidth=0.9, linestyle=":", zorder=1.5,
+                    label=f"{method} at minimum reflux {p.ratio:.3g} ({p.pinch} pinch)")
+            ax.plot([p.x], [p.y], "x", color="tab:red", markersize=6, zorder=1.7)
+        if steps:
+            stairs = np.asarray(design.staircase)
+            ax.plot(stairs[:, 0], stairs[:, 1], color="0.3", linewidth=0.8, linestyle=linestyle, zorder=1.6,
+                    label=f"{method} steps ({design.stages} stages, feed on {design.feed_stage})")
+        for x_mark in (design.x_distillate, design.x_bottoms, design.x_feed):
+            ax.plot([x_mark], [x_mark], "k.", markersize=4, zorder=1.7)
+
+    return draw
+
+
+def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence[YXLayer] = ()) -> Path:
+    """The McCabe-Thiele diagram of a binary shortcut design alone: equilibrium curve,
+    diagonal, q-line, operating lines, steps; then each of ``layers``."""
+    figure, ax = plt.subplots(figsize=(6, 6))
+    ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
+    shortcut_layer(design)(ax, 0)
+    for layer in layers:
+        layer(ax, 0)
+    ax.set_xlabel(f"liquid mole fraction {design.light}")
+    ax.set_ylabel(f"vapor mole fraction {design.light}")
+    ax.set_xlim(0, 1)
+    ax.set_ylim(0, 1)
+    ax.set_aspect("equal")
+    ax.grid(True, alpha=0.3)
+    ax.legend(loc="lower right", fontsize=7)
+    pinch = design.minimum_reflux
+    ax.set_title(
+        (title + "\n" if title else "")
+        + f"R = {design.reflux_ratio:.4g}, R_min = {pinch.ratio:.4g} ({pinch.pinch} pinch), N_min = {design.minimum_stages:.3g}",
+        fontsize=9,
+    )
+    return _save(figure, path)
+
+
+def _stage_steps(values: np.ndarray, stages: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """A value per stage as a step line against stage number: each value held from half a
+    stage above to half a stage below its stage."""
+    return np.repeat(values, 2), np.column_stack([stages - 0.5, stages + 0.5]).ravel()
+
+
+def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarray, path: Path) -> Path:
+    """Liquid and vapor flows leaving each tray (kmol/h), rigorous (markers) against their
+    constant-molar-overflow values (dashed steps); the condenser's and reboiler's slots hold
+    products and are left out."""
+    stages = np.arange(1, result.stage_count + 1)
+    inner = np.ones(result.stage_count, dtype=bool)
+    inner[0] = result.condenser == "none"
+    inner[-1] = result.reboiler == "none"
+    to_kmol_h = 3.6
+    figure, ax = plt.subplots(figsize=(5.5, 6))
+    ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", color="tab:blue", markersize=3,
+            label="liquid L, rigorous")
+    ax.plot(*_stage_steps(np.asarray(liquid_cmo)[inner] * to_kmol_h, stages[inner]), "--", color="tab:blue",
+            linewidth=1.0, label="liquid L, CMO")
+    ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", color="tab:orange", markersize=3,
+            label="vapor V, rigorous")
+    ax.plot(*_stage_steps(np.asarray(vapor_cmo)[inner] * to_kmol_h, stages[inner]), "--", color="tab:orange",
+            linewidth=1.0, label="vapor V, CMO")
+    ax.set_xlabel("flow leaving the stage / kmol/h")
+    _stage_axis(ax, result.stage_count)
+    ax.legend(loc="best", fontsize=8)
+    ax.set_title("internal flows: rigorous against constant molar overflow", fontsize=9)
     return _save(figure, path)
 
 

@@ -28,6 +28,14 @@ from .units import UnitParseError, temperature_scale, unit_factor
 
 __all__ = [
     "CAUTION",
+    "audit_markdown",
+    "audit_tables",
+    "basis_rows",
+    "cmo_rows",
+    "flag_rows",
+    "shortcut_rows",
+    "shortcut_tables",
+    "side_by_side_rows",
     "DisplayUnits",
     "display_units",
     "cautions",
@@ -298,6 +306,258 @@ def _markdown_table(header: Sequence[str], rows: Sequence[Sequence[str]], right:
     return [cells(header), "| " + " | ".join("---:" if r else "---" for r in right) + " |", *[cells(row) for row in rows]]
 
 
+# =======================================================================================
+# Shortcut and audit tables (from the plain records of result.extra)
+# =======================================================================================
+
+
+def _fmt(value, digits: str = ".4g") -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, float) and not np.isfinite(value):
+        return "-"
+    return format(value, digits) if isinstance(value, (int, float)) else str(value)
+
+
+def _pinch_text(pinch: Mapping | None) -> str:
+    if not pinch:
+        return "-"
+    text = f"{pinch['ratio']:.4g} ({pinch['pinch']}"
+    if pinch["pinch"] == "tangent":
+        text += f", {pinch['section']} at x = {pinch['x']:.3f}; feed pinch {pinch['feed_pinch_ratio']:.4g}"
+    return text + ")"
+
+
+def _method_label(design: Mapping) -> str:
+    return "FUGK" if design["method"] == "Fenske-Underwood-Gilliland-Kirkbride" else design["method"]
+
+
+def _is_binary(shortcut: Mapping) -> bool:
+    return "x_feed" in shortcut
+
+
+def _light_fraction(record: Mapping, product: str, components: Sequence[str], light: str) -> str:
+    composition = record.get(f"{product}_composition") or {}
+    return _fmt(composition.get(light), ".6f") if composition else "-"
+
+
+def shortcut_rows(shortcut: Mapping, units: DisplayUnits) -> tuple[list[str], list[list[str]]]:
+    """(header, rows) of the shortcut designs alone: McCabe-Thiele beside Ponchon-Savarit for
+    a binary, Fenske-Underwood-Gilliland-Kirkbride otherwise."""
+    F, Q = units.F, units.Q
+    designs = [shortcut]
+    if _is_binary(shortcut) and shortcut.get("ponchon_savarit"):
+        designs.append(shortcut["ponchon_savarit"])
+    header = ["quantity"] + [_method_label(d) for d in designs]
+    rows = [
+        ["stages (condenser and reboiler included)"] + [str(d["stages"]) for d in designs],
+        ["feed stage"] + [str(d["feed_stage"]) for d in designs],
+        ["equilibrium stages (fractional)"] + [_fmt(d.get("equilibrium_stages"), ".3f") for d in designs],
+        ["minimum stages (total reflux)"] + [_fmt(d["minimum_stages"], ".3f") for d in designs],
+        ["reflux ratio L/D"] + [_fmt(d["reflux_ratio"]) for d in designs],
+    ]
+    if _is_binary(shortcut):
+        rows.append(["minimum reflux ratio (pinch)"] + [_pinch_text(d["minimum_reflux"]) for d in designs])
+        rows.append(["feed q"] + [_fmt(d["q"]) for d in designs])
+        rows.append([f"x {shortcut['light']} distillate / bottoms"]
+                    + [f"{d['x_distillate']:.6f} / {d['x_bottoms']:.6f}" for d in designs])
+    else:
+        rows.append(["minimum reflux ratio (Underwood)"] + [_fmt(shortcut["minimum_reflux"])])
+        rows.append(["keys (light / heavy)"] + [f"{shortcut['light_key']} / {shortcut['heavy_key']}"])
+        rows.append(["distributing components"] + [", ".join(shortcut["distributing_components"])])
+        rows.append(["feed q"] + [_fmt(shortcut["q"])])
+    rows += [
+        [f"distillate / {units.flow}"] + [_fmt(F(d["distillate_flow"]), ".5g") for d in designs],
+        [f"bottoms / {units.flow}"] + [_fmt(F(d["bottoms_flow"]), ".5g") for d in designs],
+        [f"condenser duty / {units.duty}"] + [_fmt(Q(d["condenser_duty"]), ".5g") for d in designs],
+        [f"reboiler duty / {units.duty}"] + [_fmt(Q(d["reboiler_duty"]), ".5g") for d in designs],
+    ]
+    return header, rows
+
+
+def basis_rows(shortcut: Mapping) -> list[list[str]]:
+    """[what, value, where it came from] for the shortcut's targets and reflux."""
+    basis = shortcut.get("basis") or {}
+    sources = basis.get("sources", {})
+    rows = [[f"target {k + 1}", text, sources.get(f"target {k + 1}", "")] for k, text in enumerate(basis.get("targets", []))]
+    if basis.get("reflux_factor"):
+        reflux = f"{basis['reflux_factor']:.4g} x minimum reflux ratio"
+    else:
+        reflux = f"reflux ratio {basis['reflux_ratio']:.6g}" if basis.get("reflux_ratio") else "-"
+    rows.append(["reflux", reflux, sources.get("reflux", "")])
+    return rows
+
+
+#: What the columns of the side-by-side table are.
+SIDE_BY_SIDE_NOTE = (
+    "Rigorous columns: 'at design' has the shortcut's stage count, feed stage, reflux ratio and distillate rate; "
+    "'R needed' its stage count and feed stage with the product targets as specs; 'N needed' its reflux ratio and "
+    "distillate rate with the stage count searched and the feed stage moved; 'the case' is the case as specified. "
+    "Impurity ratio k is the delivered impurity of target k over the specified one (above 1: the target is missed). "
+    "'R for exactly its stages' is the shortcut's own reflux ratio for its integer stage count."
+)
+
+
+def side_by_side_rows(result: Result, units: DisplayUnits) -> tuple[list[str], list[list[str]]]:
+    """(header, rows): the shortcut designs beside the rigorous columns of the audit -- at the
+    shortcut's design, the reflux needed at its stage count, the stages needed at its reflux,
+    and the case as specified when it was solved."""
+    shortcut, audit = result.extra["shortcut"], result.extra["audit"]
+    F, Q = units.F, units.Q
+    components = list(result.components)
+    binary = _is_binary(shortcut)
+    designs = [shortcut] + ([shortcut["ponchon_savarit"]] if binary and shortcut.get("ponchon_savarit") else [])
+    runs = [("rigorous: at design", audit.get("rigorous_at_shortcut_design")),
+            ("rigorous: R needed", audit.get("reflux_at_shortcut_stages")),
+            ("rigorous: N needed", (audit.get("stages_at_shortcut_reflux") or {}).get("run"))]
+    if audit.get("case_as_specified"):
+        runs.append(("rigorous: the case", audit["case_as_specified"]))
+    header = ["quantity"] + [_method_label(d) for d in designs] + [label for label, _ in runs]
+
+    def run_value(run, key, convert=None, digits=".4g"):
+        if not run or not run.get("converged"):
+            return "failed" if run else "-"
+        value = run.get(key)
+        return _fmt(convert(value) if (convert and value is not None) else value, digits)
+
+    rows = [
+        ["stages"] + [str(d["stages"]) for d in designs] + [str(run["stages"]) if run else "-" for _, run in runs],
+        ["feed stage"] + [str(d["feed_stage"]) for d in designs] + [str(run["feed_stage"]) if run else "-" for _, run in runs],
+        ["reflux ratio L/D"] + [_fmt(d["reflux_ratio"]) for d in designs] + [run_value(run, "reflux_ratio") for _, run in runs],
+    ]
+    if audit.get("shortcut_reflux_at_shortcut_stages") is not None:
+        rows.append(["R for exactly its stages", _fmt(audit["shortcut_reflux_at_shortcut_stages"])]
+                    + [""] * (len(header) - 2))
+    rows.append(["minimum reflux ratio"] + [_pinch_text(d["minimum_reflux"]) if binary else _fmt(d["minimum_reflux"])
+                                            for d in designs] + [""] * len(runs))
+    rows.append([f"distillate / {units.flow}"] + [_fmt(F(d["distillate_flow"]), ".5g") for d in designs]
+                + [run_value(run, "distillate_flow", F, ".5g") for _, run in runs])
+    targets = audit.get("basis", {}).get("targets", [])
+    for k, target in enumerate(targets):
+        rows.append([f"impurity ratio {k + 1}"] + ["1" for _ in designs]
+                    + [_fmt(run["impurity_ratios"][k], ".3f") if run and run.get("converged") and run.get("impurity_ratios")
+                       else ("failed" if run else "-") for _, run in runs])
+    if binary:
+        light = shortcut["light"]
+        rows.append([f"x {light} distillate"] + [f"{d['x_distillate']:.6f}" for d in designs]
+                    + [run_value(run, "distillate_composition") if not run or not run.get("converged")
+                       else _light_fraction(run, "distillate", components, light) for _, run in runs])
+        rows.append([f"x {light} bottoms"] + [f"{d['x_bottoms']:.6f}" for d in designs]
+                    + [run_value(run, "bottoms_composition") if not run or not run.get("converged")
+                       else _light_fraction(run, "bottoms", components, light) for _, run in runs])
+    rows.append([f"condenser duty / {units.duty}"] + [_fmt(Q(d["condenser_duty"]), ".5g") for d in designs]
+                + [run_value(run, "condenser_duty", Q, ".5g") for _, run in runs])
+    rows.append([f"reboiler duty / {units.duty}"] + [_fmt(Q(d["reboiler_duty"]), ".5g") for d in designs]
+                + [run_value(run, "reboiler_duty", Q, ".5g") for _, run in runs])
+    return header, rows
+
+
+def cmo_rows(audit: Mapping, units: DisplayUnits) -> tuple[list[str], list[list[str]]]:
+    """(header, rows) of the stage-by-stage CMO audit."""
+    cmo = audit.get("cmo") or {}
+    header = ["stage", f"L / {units.flow}", f"L CMO / {units.flow}", "L dev / %", f"V / {units.flow}",
+              f"V CMO / {units.flow}", "V dev / %", "operating curve - line"]
+    rows = []
+    for stage in cmo.get("stages", []):
+        rows.append([
+            str(stage["stage"]),
+            _fmt(units.F(stage["L"]), ".5g"), _fmt(units.F(stage["L_cmo"]), ".5g"),
+            _fmt(None if stage["liquid_deviation"] is None else 100 * stage["liquid_deviation"], "+.2f"),
+            _fmt(units.F(stage["V"]), ".5g"), _fmt(units.F(stage["V_cmo"]), ".5g"),
+            _fmt(None if stage["vapor_deviation"] is None else 100 * stage["vapor_deviation"], "+.2f"),
+            _fmt(stage.get("line_distance"), "+.5f"),
+        ])
+    return header, rows
+
+
+def flag_rows(audit: Mapping) -> list[list[str]]:
+    return [[flag["severity"], flag["code"], flag["message"]] for flag in audit.get("flags", [])]
+
+
+def _rich(title: str, header: Sequence[str], rows: Sequence[Sequence[str]], left: int = 1) -> Table:
+    table = Table(title=title, header_style="bold")
+    for k, column in enumerate(header):
+        table.add_column(column, justify="left" if k < left else "right", no_wrap=k == 0)
+    for row in rows:
+        table.add_row(*row)
+    return table
+
+
+def shortcut_tables(shortcut: Mapping, units: DisplayUnits, title: str = "") -> list[Table]:
+    """Screen tables of ``traystack shortcut``: the designs and their basis."""
+    header, rows = shortcut_rows(shortcut, units)
+    tables = [_rich(f"shortcut design: {title}" if title else "shortcut design", header, rows)]
+    tables.append(_rich("what the shortcut designs for", ["", "value", "from"], basis_rows(shortcut), left=3))
+    return tables
+
+
+def audit_tables(result: Result, units: DisplayUnits) -> list[Table]:
+    """Screen tables of ``traystack audit``: side by side, the CMO audit, the flags."""
+    audit = result.extra["audit"]
+    header, rows = side_by_side_rows(result, units)
+    tables = [_rich(f"shortcut and rigorous side by side: {result.title}", header, rows)]
+    tables.append(_rich("what the shortcut designs for", ["", "value", "from"], basis_rows(result.extra["shortcut"]), left=3))
+    if audit.get("cmo"):
+        header, rows = cmo_rows(audit, units)
+        tables.append(_rich("CMO audit of the rigorous column at the shortcut's design", header, rows))
+    flags = flag_rows(audit)
+    flag_table = Table(title="audit flags", header_style="bold")
+    for column in ("severity", "code", "message"):
+        flag_table.add_column(column, overflow="fold")
+    styles = {"serious": "bold red", "warning": "yellow", "info": "cyan"}
+    for severity, code, message in flags:
+        flag_table.add_row(f"[{styles.get(severity, '')}]{severity}[/]", code, message)
+    if not flags:
+        flag_table.add_row("-", "-", "no flags: the shortcut and the rigorous column agree within the thresholds")
+    tables.append(flag_table)
+    return tables
+
+
+def audit_markdown(result: Result, units: DisplayUnits) -> list[str]:
+    """The audit's sections of summary.md (empty without an audit)."""
+    audit = result.extra.get("audit")
+    if not audit:
+        return []
+    lines: list[str] = []
+    if audit.get("scope") == "full" and "shortcut" in result.extra:
+        lines += ["## Shortcut and rigorous, side by side", ""]
+        lines.append(SIDE_BY_SIDE_NOTE + " This file's stage table is the column at the shortcut's design.")
+        lines.append("")
+        header, rows = side_by_side_rows(result, units)
+        lines += _markdown_table(header, rows, [False] + [True] * (len(header) - 1))
+        lines += ["", "What the shortcut designs for:", ""]
+        lines += _markdown_table(["", "value", "from"], basis_rows(result.extra["shortcut"]), [False, False, False])
+        lines.append("")
+        notes = audit.get("notes") or []
+        if notes:
+            lines += [f"- {note}" for note in notes] + [""]
+    if audit.get("cmo"):
+        lines += ["## CMO audit", ""]
+        lines.append(
+            "Liquid and vapor leaving each stage against their constant-molar-overflow values at the same reflux "
+            "ratio, distillate rate and feed q; the last column is the vertical distance of the rigorous operating "
+            "curve (x_j, y_j+1) from the straight operating line of its section."
+        )
+        lines.append("")
+        header, rows = cmo_rows(audit, units)
+        lines += _markdown_table(header, rows)
+        lines.append("")
+    if not audit.get("applicable", True):
+        lines += ["## Audit", "", f"Not applicable: {audit.get('reason', '')}", ""]
+        return lines
+    lines += ["## Audit flags", ""]
+    flags = flag_rows(audit)
+    if flags:
+        lines += _markdown_table(["severity", "code", "message"], flags, [False, False, False])
+    else:
+        lines.append("No flags: the shortcut and the rigorous column agree within the thresholds.")
+    thresholds = audit.get("thresholds") or {}
+    if thresholds:
+        lines += ["", "Thresholds: " + ", ".join(f"{key} = {value:g}" for key, value in thresholds.items()) + "."]
+    lines.append("")
+    return lines
+
+
 def summary_markdown(result: Result, units: DisplayUnits, plots: Sequence[str] = ()) -> str:
     """The summary of a run as Markdown: status, specifications, column, feeds, products,
     duties, stage table, convergence and balances, plots (file names relative to the
@@ -399,6 +659,8 @@ def summary_markdown(result: Result, units: DisplayUnits, plots: Sequence[str] =
     lines.append("Independent checks (recomputed from the reported streams): "
                  + ", ".join(f"{key} = {value:.1e}" for key, value in checks.items()) + ".")
     lines.append("")
+
+    lines += audit_markdown(result, units)
 
     if plots:
         lines += ["## Plots", ""]

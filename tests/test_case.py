@@ -1153,3 +1153,43 @@ def test_fewest_stages_depends_on_condenser_and_reboiler(condenser, reboiler, fe
 def test_single_pressure_value_means_no_drop():
     data = mutated(design_data(), "column.pressure", "2 bar")
     assert parse_case(data).column.pressures == (2e5,) * 20
+
+
+# ------------------------------------------------------------------ [audit]
+
+
+def test_audit_table_reads_targets_reflux_and_thresholds():
+    data = mutated(design_data(), "audit", {
+        "distillate": {"Methanol": 0.99}, "bottoms": {"water": "99.5 %"}, "reflux_factor": 1.3,
+        "thresholds": {"cmo_deviation": 0.08, "stage_difference": 2},
+    })
+    case = parse_case(data)
+    audit = case.audit
+    assert [(s.product, s.component, s.value, s.key) for s in audit.products] == [
+        ("distillate", "methanol", 0.99, "audit.distillate.Methanol"),
+        ("bottoms", "water", pytest.approx(0.995), "audit.bottoms.water"),
+    ]
+    assert audit.reflux_factor == 1.3 and audit.reflux_ratio is None
+    assert dict(audit.thresholds) == {"cmo_deviation": 0.08, "stage_difference": 2.0}
+    assert parse_case(design_data()).audit is None
+
+
+@pytest.mark.parametrize(
+    "table, key, words",
+    [
+        ({"reflux_factor": 1.0}, "audit.reflux_factor", "expected a value > 1"),
+        ({"reflux_ratio": 2.0, "reflux_factor": 1.2}, "audit.reflux_factor", "cannot be combined"),
+        ({"reflux_ratio": -1.0}, "audit.reflux_ratio", "expected a value > 0"),
+        ({"distillate": {"methanol": 0.9, "water": 0.1}}, "audit.distillate", "one composition"),
+        ({"distillate": {"ethanol": 0.9}}, "audit.distillate.ethanol", "not a component"),
+        ({"bottoms": {"water": 1.0}}, "audit.bottoms.water", "< 1"),
+        ({"thresholds": {"cmo_deviaton": 0.1}}, "audit.thresholds.cmo_deviaton", "did you mean 'cmo_deviation'"),
+        ({"thresholds": {"duty_difference": 0}}, "audit.thresholds.duty_difference", "expected a value > 0"),
+        ({"thresholds": {"serious_factor": 0.5}}, "audit.thresholds.serious_factor", "expected a value > 1"),
+        ({"reflux_facter": 1.3}, "audit.reflux_facter", "did you mean 'reflux_factor'"),
+    ],
+)
+def test_audit_table_errors_name_the_key(table, key, words):
+    error = case_error(mutated(design_data(), "audit", table))
+    assert error.key == key and error.file == "case.toml"
+    assert words in str(error)

@@ -83,6 +83,8 @@ def runs(tmp_path_factory):
         "sweep": lambda: traystack("sweep", CASES / "naphtha_side_draw.toml", "--vary", "specs.reflux_ratio=3:5:3",
                                    "--vary", "column.side_draws[0].stage=10:40:2", "--jobs", "2", "--out", work / "sweep"),
         "check_sequence": lambda: check_sequence(work / "cases"),
+        "audit": lambda: traystack("audit", CASES / "methanol_water.toml", "--out", work / "audit", "--fail-on", "warning"),
+        "shortcut": lambda: traystack("shortcut", CASES / "benzene_toluene.toml", "--out", work / "shortcut"),
     }
     with ThreadPoolExecutor(max_workers=3) as pool:
         futures = {name: pool.submit(job) for name, job in jobs.items()}
@@ -103,7 +105,7 @@ def in_process(capsys, *args) -> tuple[int, str, str]:
 def test_help_lists_the_commands_and_exit_codes(capsys):
     code, out, _ = in_process(capsys, "--help")
     assert code == 0
-    for word in ("run", "check", "sweep", "components", "Caution", "3 not converged"):
+    for word in ("run", "shortcut", "audit", "check", "sweep", "components", "Caution", "3 not converged"):
         assert word in out
 
 
@@ -201,3 +203,50 @@ def test_check_records_detects_drift_and_updates_only_when_asked(runs):
     assert steps["new_baseline"]["reflux_ratio"] == pytest.approx(4.2)
     kept = "ethanol_water_wankat.expected.json"
     assert steps["stamps_after_update_again"][kept] == steps["stamps_after_update"][kept]  # a passing baseline stays
+
+
+# ------------------------------------------------------------------ shortcut and audit
+
+
+def test_audit_writes_the_audit_and_fails_on_a_warning_when_asked(runs):
+    out, folder = runs["audit"], runs["work"] / "audit"
+    assert out.returncode == 1, out.stderr  # methanol-water raises CMO_DEVIATION and DUTY_DIFFERENCE warnings
+    assert "audit flag(s) at or above warning" in out.stderr and "CMO_DEVIATION" in out.stderr
+    assert "Traceback" not in out.stderr
+    assert "shortcut and rigorous side by side" in out.stdout and "CMO_DEVIATION" in out.stdout
+    document = json.loads((folder / "result.json").read_text())
+    assert document["converged"] is True and document["shortcut"]["method"] == "McCabe-Thiele"
+    assert {flag["code"] for flag in document["audit"]["flags"]} >= {"CMO_DEVIATION", "DUTY_DIFFERENCE"}
+    assert len(document["stages"]) == document["shortcut"]["stages"]  # the shortcut's column
+    for name in ("yx.png", "cmo_flows.png", "temperature.png", "compositions.png"):
+        data = (folder / name).read_bytes()
+        assert data[:8] == PNG and len(data) > 5000, name
+    summary = (folder / "summary.md").read_text()
+    assert "## Shortcut and rigorous, side by side" in summary and "![cmo_flows](cmo_flows.png)" in summary
+
+
+def test_audit_exits_0_when_no_flag_reaches_fail_on(capsys, tmp_path):
+    code, out, err = in_process(capsys, "audit", CASES / "benzene_toluene.toml", "--out", tmp_path, "--fail-on", "serious")
+    assert code == 0, err
+    assert "CMO_DEVIATION" in out and err == ""
+
+
+def test_shortcut_writes_design_and_diagram(runs):
+    out, folder = runs["shortcut"], runs["work"] / "shortcut"
+    assert out.returncode == 0, out.stderr
+    assert "McCabe-Thiele" in out.stdout and "Ponchon-Savarit" in out.stdout and "minimum reflux ratio" in out.stdout
+    assert "rigorous solution of the case as specified" in out.stdout  # x_B is not in the specs
+    document = json.loads((folder / "shortcut.json").read_text())
+    assert document["schema"] == "traystack-shortcut/1" and document["shortcut"]["stages"] == 16
+    assert document["shortcut"]["minimum_reflux"]["pinch"] == "feed"
+    assert (folder / "yx_shortcut.png").read_bytes()[:8] == PNG
+
+
+def test_shortcut_and_audit_refuse_a_purity_beyond_the_azeotrope_with_exit_2(capsys, tmp_path):
+    beyond = tmp_path / "beyond.toml"
+    beyond.write_text((CASES / "ethanol_water_azeotrope.toml").read_text().replace(
+        "distillate = { ethanol = 0.84 }", "distillate = { ethanol = 0.95 }"))
+    for command in ("shortcut", "audit"):
+        code, _, err = in_process(capsys, command, beyond, "--out", tmp_path / command)
+        assert code == 2, err
+        assert "azeotrope" in err and "0.95" in err and "Traceback" not in err

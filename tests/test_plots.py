@@ -112,3 +112,73 @@ def test_sweep_plot_tolerates_failed_points(tmp_path):
     panels = [("duty / kW", [("duty", "reboiler")]), ("mole fraction", [("purity", "distillate")])]
     path = sweep_plot(x, "specs.reflux_ratio", groups, panels, tmp_path / "sweep.png", "test", failed_x=[2.0])
     assert is_png(path)
+
+
+# ------------------------------------------------------------------ the audit's figures
+
+
+@pytest.fixture(scope="module")
+def designs():
+    from solver.shortcut import design_binary, design_ponchon_savarit
+
+    case = methanol_water_case(specs="reflux_ratio = 1.4\ndistillate = { methanol = 0.99 }\nbottoms = { water = 0.995 }")
+    return design_binary(case), design_ponchon_savarit(case)
+
+
+def captured(monkeypatch):
+    """Keep the figures a plot function saves, to look at what it drew."""
+    import solver.plots as plots
+
+    figures = []
+
+    def keep(figure, path):
+        figures.append(figure)
+        path.write_bytes(PNG)
+        return path
+
+    monkeypatch.setattr(plots, "_save", keep)
+    return figures
+
+
+def labels(figure) -> list[str]:
+    return [line.get_label() for line in figure.axes[0].get_lines() if not line.get_label().startswith("_")]
+
+
+def test_shortcut_layer_draws_lines_q_line_pinch_and_steps(designs, monkeypatch, tmp_path):
+    from solver.plots import shortcut_layer, shortcut_yx_diagram
+
+    design, enthalpy = designs
+    figures = captured(monkeypatch)
+    shortcut_yx_diagram(design, tmp_path / "yx.png", title="t",
+                        layers=[shortcut_layer(enthalpy, curve=False, steps=False, q_line=False, linestyle="--")])
+    drawn = labels(figures[0])
+    assert f"McCabe-Thiele steps ({design.stages} stages, feed on {design.feed_stage})" in drawn
+    assert "McCabe-Thiele rectifying line" in drawn and "McCabe-Thiele stripping line" in drawn
+    assert "Ponchon-Savarit rectifying curve" in drawn and sum("q-line" in text for text in drawn) == 1
+    assert any(text.startswith("McCabe-Thiele at minimum reflux") and "feed pinch" in text for text in drawn)
+    steps = next(line for line in figures[0].axes[0].get_lines() if line.get_label().startswith("McCabe-Thiele steps"))
+    assert np.allclose(steps.get_xdata(), design.staircase[:, 0]) and np.allclose(steps.get_ydata(), design.staircase[:, 1])
+
+
+def test_audit_yx_diagram_can_leave_out_the_rigorous_staircase(binary, designs, monkeypatch, tmp_path):
+    from solver.plots import shortcut_layer
+
+    result, _ = binary
+    figures = captured(monkeypatch)
+    yx_diagram(result, tmp_path / "a.png", layers=[shortcut_layer(designs[0])], rigorous_steps=False)
+    yx_diagram(result, tmp_path / "b.png")
+    assert "rigorous stages (staircase)" not in labels(figures[0]) and "rigorous stages (staircase)" in labels(figures[1])
+    assert "rigorous operating curve (x_j, y_j+1)" in labels(figures[0])
+
+
+def test_cmo_flow_profiles_draw_the_cmo_values_as_steps(binary, monkeypatch, tmp_path):
+    from solver.plots import _stage_steps, cmo_flow_profiles
+
+    result, _ = binary
+    x, y = _stage_steps(np.array([1.0, 2.0]), np.array([2, 3]))
+    assert x.tolist() == [1.0, 1.0, 2.0, 2.0] and y.tolist() == [1.5, 2.5, 2.5, 3.5]
+    path = cmo_flow_profiles(result, result.liquid_flow * 1.05, result.vapor_flow * 0.95, tmp_path / "cmo.png")
+    assert is_png(path)
+    figures = captured(monkeypatch)
+    cmo_flow_profiles(result, result.liquid_flow, result.vapor_flow, tmp_path / "cmo2.png")
+    assert labels(figures[0]) == ["liquid L, rigorous", "liquid L, CMO", "vapor V, rigorous", "vapor V, CMO"]

@@ -210,3 +210,21 @@ def test_the_repository_cases_match_their_baselines():
     assert [(c.name, c.status) for c in checks] == [(c.name, PASS) for c in checks], [
         (c.name, c.message, [d.describe() for d in c.deviations[:3]]) for c in checks if c.status != PASS
     ]
+
+
+# ------------------------------------------------------------------ audit flags in baselines
+
+
+def test_solve_case_attaches_the_solution_audit_and_the_baseline_records_its_flags():
+    from solver.regress import audit_flags, solve_case
+
+    result = solve_case(case_from_text(CASE_TEXT))
+    audit = result.extra["audit"]
+    assert audit["scope"] == "solution" and audit["applicable"] is True
+    assert len(audit["cmo_deviation"]) == result.stage_count
+    recorded = baseline_from_result(result, "cases/column.toml")["audit_flags"]
+    assert recorded == audit_flags(result) == sorted({item["code"] for item in audit["flags"]})
+    assert "CMO_DEVIATION" in recorded  # methanol-water with real enthalpies
+    # the same column under constant molar overflow: nothing to flag
+    cmo = solve_case(case_from_text(CASE_TEXT.replace('enthalpy = "rigorous"', 'enthalpy = "cmo"')))
+    assert cmo.extra["audit"]["applicable"] is True and audit_flags(cmo) == []

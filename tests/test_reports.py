@@ -136,3 +136,66 @@ def test_unconverged_summary_says_so_and_has_no_plots_section(unconverged):
 def test_write_summary_writes_the_markdown(result, tmp_path):
     path = write_summary(result, tmp_path / "deep" / "summary.md", display_units())
     assert path.read_text(encoding="utf-8") == summary_markdown(result, display_units())
+
+
+# ------------------------------------------------------------------ the audit's tables
+
+
+@pytest.fixture(scope="module")
+def audited():
+    from solver.audit import audit_case
+
+    return audit_case(methanol_water_case(stages=12, feed_stage=7)).result
+
+
+def test_side_by_side_table_sets_the_shortcut_beside_the_rigorous_columns(audited):
+    from solver.reports import side_by_side_rows
+
+    header, rows = side_by_side_rows(audited, display_units())
+    assert header == ["quantity", "McCabe-Thiele", "Ponchon-Savarit", "rigorous: at design", "rigorous: R needed",
+                      "rigorous: N needed", "rigorous: the case"]
+    by_name = {row[0]: row for row in rows}
+    shortcut, audit = audited.extra["shortcut"], audited.extra["audit"]
+    assert by_name["stages"][1] == str(shortcut["stages"]) == by_name["stages"][3]
+    assert by_name["reflux ratio L/D"][4] == f"{audit['reflux_at_shortcut_stages']['reflux_ratio']:.4g}"
+    assert by_name["reboiler duty / kW"][3] == f"{audited.reboiler_duty / 1e3:.5g}"
+    assert by_name["impurity ratio 2"][3] == f"{audit['rigorous_at_shortcut_design']['impurity_ratios'][1]:.3f}"
+    assert all(len(row) == len(header) for row in rows)
+
+
+def test_audit_sections_of_the_summary_and_screen_tables(audited):
+    from solver.reports import audit_tables
+
+    text = summary_markdown(audited, display_units(), ["yx.png"])
+    headings = [line for line in text.splitlines() if line.startswith("## ")]
+    assert headings[headings.index("## Convergence") + 1:] == [
+        "## Shortcut and rigorous, side by side", "## CMO audit", "## Audit flags", "## Plots", "## Cautions"]
+    cmo_rows = [line for line in text.split("## CMO audit")[1].split("## Audit flags")[0].splitlines() if line.startswith("| ")]
+    assert len(cmo_rows) == 2 + audited.stage_count
+    for item in audited.extra["audit"]["flags"]:
+        assert f"| {item['severity']} | {item['code']} |" in text
+        assert f"[{item['severity']}] {item['code']}" in text  # also among the cautions
+    console = Console(record=True, width=200)
+    for table in audit_tables(audited, display_units()):
+        console.print(table)
+    screen = console.export_text()
+    assert "shortcut and rigorous side by side" in screen and "CMO audit" in screen and "audit flags" in screen
+
+
+def test_a_solution_audit_has_no_side_by_side_section(result):
+    from solver.audit import audit_solution
+
+    case = methanol_water_case(stages=10, feed_stage=6)
+    text = summary_markdown(audit_solution(case, result), display_units())
+    assert "## CMO audit" in text and "## Audit flags" in text and "side by side" not in text
+
+
+def test_shortcut_tables_show_both_binary_designs_and_where_the_targets_came_from(audited):
+    from solver.reports import basis_rows, shortcut_rows
+
+    header, rows = shortcut_rows(audited.extra["shortcut"], display_units())
+    assert header == ["quantity", "McCabe-Thiele", "Ponchon-Savarit"]
+    assert any(row[0] == "minimum reflux ratio (pinch)" and "(feed)" in row[1] for row in rows)
+    basis = basis_rows(audited.extra["shortcut"])
+    assert [row[0] for row in basis] == ["target 1", "target 2", "reflux"]
+    assert basis[0][2] == "rigorous solution of the case as specified" and basis[2][2] == "case specs (reflux_ratio)"

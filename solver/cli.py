@@ -151,7 +151,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
     from .reports import display_units, shortcut_tables
-    from .results import UNITS, _json_safe, write_atomic
+    from .results import UNITS, json_safe, write_atomic
 
     console = _console(args.quiet)
     case_path = Path(args.case)
@@ -164,7 +164,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
         "schema": SHORTCUT_SCHEMA, "title": case.title, "case": case_summary(case),
         "components": list(case.component_names), "units": dict(UNITS), "shortcut": record,
     }
-    written = [write_atomic(out / "shortcut.json", json.dumps(_json_safe(document), indent=2, allow_nan=False) + "\n")]
+    written = [write_atomic(out / "shortcut.json", json.dumps(json_safe(document), indent=2, allow_nan=False) + "\n")]
     if report.is_binary:
         layers = [shortcut_layer(report.enthalpy_design, curve=False, steps=False, q_line=False, pinch=False,
                                  linestyle="--")] if report.enthalpy_design else []

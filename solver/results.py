@@ -224,7 +224,7 @@ class Result:
         return products
 
     def to_dict(self) -> dict[str, Any]:
-        return _json_safe(
+        return json_safe(
             {
                 "schema": SCHEMA,
                 "title": self.title,
@@ -287,14 +287,14 @@ def _replace(result: Result, **changes: Any) -> Result:
     return dataclasses.replace(result, **changes)
 
 
-def _json_safe(value: Any) -> Any:
+def json_safe(value: Any) -> Any:
     """Plain JSON types; NaN and infinity become None (the schema never holds them)."""
     if isinstance(value, Mapping):
-        return {str(key): _json_safe(item) for key, item in value.items()}
+        return {str(key): json_safe(item) for key, item in value.items()}
     if isinstance(value, (list, tuple)):
-        return [_json_safe(item) for item in value]
+        return [json_safe(item) for item in value]
     if isinstance(value, np.ndarray):
-        return _json_safe(value.tolist())
+        return json_safe(value.tolist())
     if isinstance(value, (np.floating, float)):
         number = float(value)
         return number if math.isfinite(number) else None

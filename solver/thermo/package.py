@@ -233,11 +233,12 @@ class ThermoPackage:
         """Modified Raoult's law K-values at ``temperature (n,)`` K, ``pressure (n,)`` Pa and
         liquid composition ``x (n,c)``."""
         temperature = np.asarray(temperature, dtype=float)
-        pressure = np.asarray(pressure, dtype=float)
-        ln_psat, d_ln_psat_dT = self.pure.ln_vapor_pressure(temperature)
         act = self.activity.evaluate(temperature, x, derivatives=derivatives)
-        ln_k = act.ln_gamma + ln_psat - np.log(pressure)[:, None]
-        K = np.exp(ln_k)
+        return self._k_values(temperature, np.asarray(pressure, dtype=float), act, derivatives)
+
+    def _k_values(self, temperature: np.ndarray, pressure: np.ndarray, act, derivatives: bool) -> KValues:
+        ln_psat, d_ln_psat_dT = self.pure.ln_vapor_pressure(temperature)
+        K = np.exp(act.ln_gamma + ln_psat - np.log(pressure)[:, None])
         if not derivatives:
             return KValues(K, None, None)
         return KValues(K, act.d_ln_gamma_dT + d_ln_psat_dT, act.d_ln_gamma_dx)
@@ -249,12 +250,12 @@ class ThermoPackage:
     def vapor_enthalpy(self, temperature: np.ndarray, y: np.ndarray, model: str | None = None) -> PhaseEnthalpy:
         """Ideal-gas mixture enthalpy (J/mol) of vapor of composition ``y (n,c)``; ``model``
         overrides the package's enthalpy model ("rigorous" | "cmo")."""
-        temperature = np.asarray(temperature, dtype=float)
-        y = np.asarray(y, dtype=float)
-        n = temperature.shape[0]
-        zero = np.zeros(n)
-        if (model or self.enthalpy_model) == "cmo":
-            pure = np.full((n, self.component_count), self.cmo_latent_heat)
+        return self._vapor_phase(np.asarray(temperature, dtype=float), np.asarray(y, dtype=float), model or self.enthalpy_model)
+
+    def _vapor_phase(self, temperature: np.ndarray, y: np.ndarray, model: str) -> PhaseEnthalpy:
+        zero = np.zeros(temperature.shape[0])
+        if model == "cmo":
+            pure = np.full((temperature.shape[0], self.component_count), self.cmo_latent_heat)
             return PhaseEnthalpy(np.einsum("nc,nc->n", y, pure), zero, pure, pure, zero)
         h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
         return PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
@@ -264,20 +265,26 @@ class ThermoPackage:
         excess enthalpy of the activity model; ``model`` overrides the enthalpy model."""
         temperature = np.asarray(temperature, dtype=float)
         x = np.asarray(x, dtype=float)
+        model = model or self.enthalpy_model
+        act = self.activity.evaluate(temperature, x, derivatives=True) if model != "cmo" else None
+        return self._liquid_phase(temperature, x, act, model)
+
+    def _liquid_phase(self, temperature: np.ndarray, x: np.ndarray, act, model: str) -> PhaseEnthalpy:
         n = temperature.shape[0]
-        zero = np.zeros(n)
-        if (model or self.enthalpy_model) == "cmo":
+        if model == "cmo":
+            zero = np.zeros(n)
             pure = np.zeros((n, self.component_count))
             return PhaseEnthalpy(zero, zero, pure, pure, zero)
         h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
         dh_vap, d_dh_vap_dT = self.pure.heat_of_vaporization(temperature)
         pure = h_ig - dh_vap
-        d_pure_dT = cp - d_dh_vap_dT
-        act = self.activity.evaluate(temperature, x, derivatives=True)
-        molar = np.einsum("nc,nc->n", x, pure) + act.excess_enthalpy
-        d_dT = np.einsum("nc,nc->n", x, d_pure_dT) + act.d_excess_enthalpy_dT
-        d_dx = pure + act.d_excess_enthalpy_dx
-        return PhaseEnthalpy(molar, d_dT, d_dx, pure, act.excess_enthalpy)
+        return PhaseEnthalpy(
+            np.einsum("nc,nc->n", x, pure) + act.excess_enthalpy,
+            np.einsum("nc,nc->n", x, cp - d_dh_vap_dT) + act.d_excess_enthalpy_dT,
+            pure + act.d_excess_enthalpy_dx,
+            pure,
+            act.excess_enthalpy,
+        )
 
     def rigorous_enthalpies(self, temperature: np.ndarray, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(h_L, h_V) with the rigorous model whatever ``enthalpy`` is set to: the thermal
@@ -294,31 +301,13 @@ class ThermoPackage:
         """K-values, liquid and vapor enthalpies and all their derivatives at once (the activity
         model is evaluated a single time). Shapes: ``temperature, pressure (n,)``, ``x, y (n,c)``."""
         temperature = np.asarray(temperature, dtype=float)
-        pressure = np.asarray(pressure, dtype=float)
-        n = temperature.shape[0]
-        zero = np.zeros(n)
-        ln_psat, d_ln_psat_dT = self.pure.ln_vapor_pressure(temperature)
+        x = np.asarray(x, dtype=float)
         act = self.activity.evaluate(temperature, x, derivatives=True)
-        K = np.exp(act.ln_gamma + ln_psat - np.log(pressure)[:, None])
-        k_values = KValues(K, act.d_ln_gamma_dT + d_ln_psat_dT, act.d_ln_gamma_dx)
-        if self.enthalpy_model == "cmo":
-            vapor_pure = np.full((n, self.component_count), self.cmo_latent_heat)
-            liquid_pure = np.zeros((n, self.component_count))
-            vapor = PhaseEnthalpy(y @ vapor_pure[0], zero, vapor_pure, vapor_pure, zero)
-            liquid = PhaseEnthalpy(zero, zero, liquid_pure, liquid_pure, zero)
-            return StageProperties(k_values, liquid, vapor)
-        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
-        dh_vap, d_dh_vap_dT = self.pure.heat_of_vaporization(temperature)
-        vapor = PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
-        liquid_pure = h_ig - dh_vap
-        liquid = PhaseEnthalpy(
-            np.einsum("nc,nc->n", x, liquid_pure) + act.excess_enthalpy,
-            np.einsum("nc,nc->n", x, cp - d_dh_vap_dT) + act.d_excess_enthalpy_dT,
-            liquid_pure + act.d_excess_enthalpy_dx,
-            liquid_pure,
-            act.excess_enthalpy,
+        return StageProperties(
+            self._k_values(temperature, np.asarray(pressure, dtype=float), act, True),
+            self._liquid_phase(temperature, x, act, self.enthalpy_model),
+            self._vapor_phase(temperature, np.asarray(y, dtype=float), self.enthalpy_model),
         )
-        return StageProperties(k_values, liquid, vapor)
 
 
 @dataclass(frozen=True)

@@ -93,7 +93,7 @@ def test_bubble_points_match_the_chemicals_antoine_function(computed):
             chemicals_pressure.Antoine(T, toluene[0] + 5.0, toluene[1], toluene[2]),
         )
 
-    # our transcription of the equation agrees with the independent one ...
+    # our own coding of the equation agrees with the independent one ...
     for T in (340.0, 360.0, 380.0):
         np.testing.assert_allclose(vapor_pressure(T), _nist(T), rtol=1e-12)
     T, y1 = computed

@@ -5,7 +5,7 @@ below says where it comes from:
 
 * "verified in <where>": read in a stored copy of a public page;
 * "from memory": recalled from the textbook, not re-read; used with a loose tolerance;
-* "computed here": an independent calculation (a different algorithm or transcription), not a
+* "computed here": an independent calculation (a different algorithm or an independent coding), not a
   published number.
 
 Sources quoted:
@@ -32,7 +32,7 @@ Sources quoted:
        verified in the stored page (a web calculator's example, not a textbook).
 [MOL]  Molokanov, Korablina, Mazurina & Nikiforov, Int. Chem. Eng. 12 (1972) 209: the equation
        as given in the research notes; check values computed there by a separate script
-       (independent transcription, "computed here").
+       (coded independently, "computed here").
 [EDU]  Eduljee, Hydrocarbon Processing 54(9) (1975) 120: Y = 0.75 (1 - X^0.5668), another fit
        of Gilliland's chart -- from memory.
 """

@@ -45,7 +45,6 @@ import re
 import tomllib
 from dataclasses import dataclass, field, replace
 from functools import lru_cache
-from pathlib import Path
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NoReturn
 

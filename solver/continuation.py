@@ -16,7 +16,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from .initial import initial_estimate
-from .mesh import CondenserSetting, FeedData, MeshSystem
+from .mesh import FeedData, MeshSystem
 from .newton import NewtonOptions, NewtonResult, solve
 from .thermo.homotopy import HomotopyThermo
 

@@ -15,7 +15,7 @@ from typing import Any
 import numpy as np
 
 from .case import Case
-from .errors import ConvergenceError, ThermoError
+from .errors import ThermoError
 from .continuation import continue_to_real_model
 from .feasibility import check_binary_limits, check_specifications
 from .initial import initial_estimate
@@ -23,14 +23,7 @@ from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
 from .newton import NewtonOptions, solve
 from .results import Result, StageFeed
-from .thermo.flash import (
-    FeedState,
-    bubble_temperature,
-    dew_temperature,
-    feed_state,
-    flash_p_vapor_fraction,
-    flash_tp,
-)
+from .thermo.flash import feed_state, feed_state_by_phase
 from .thermo.package import ThermoPackage
 
 POST_CHECK_TOLERANCE = 1e-7
@@ -75,7 +68,10 @@ def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[Fee
         except ThermoError:
             if thermo.enthalpy_model != "cmo":
                 raise
-            state = _cmo_feed_state(thermo, feed, pressure)
+            state = feed_state_by_phase(
+                thermo, np.asarray(feed.composition), pressure,
+                temperature=feed.temperature, vapor_fraction=feed.vapor_fraction,
+            )
         if thermo.enthalpy_model == "cmo":
             enthalpy = (1.0 - state.q) * thermo.cmo_latent_heat
         else:
@@ -91,36 +87,6 @@ def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[Fee
             )
         )
     return FeedData(component_flows, enthalpy_flows), details, tuple(tuple(s) for s in per_stage)
-
-
-def _cmo_feed_state(thermo: ThermoPackage, feed, pressure: float) -> FeedState:
-    """Without real enthalpies (a user component lacking heat-capacity or latent-heat data)
-    the ``cmo`` model can still take a feed: its thermal condition is its liquid fraction,
-    q = 1 - vapor fraction (a subcooled liquid counts as saturated, a superheated vapor as
-    saturated vapor)."""
-    z = np.atleast_2d(np.asarray(feed.composition, dtype=float))
-    p = np.array([float(pressure)])
-    bubble, _ = bubble_temperature(thermo, p, z)
-    dew, _ = dew_temperature(thermo, p, z)
-    if feed.vapor_fraction is not None:
-        flash = flash_p_vapor_fraction(thermo, p, z, np.array([feed.vapor_fraction]))
-    elif feed.temperature <= bubble[0]:
-        flash = None
-        beta = 0.0
-    elif feed.temperature >= dew[0]:
-        flash = None
-        beta = 1.0
-    else:
-        flash = flash_tp(thermo, np.array([feed.temperature]), p, z)
-    if flash is not None:
-        beta = float(flash.vapor_fraction[0])
-    temperature = float(flash.temperature[0]) if flash is not None else float(feed.temperature)
-    return FeedState(
-        temperature=temperature, pressure=float(pressure), vapor_fraction=beta,
-        x=z[0] if flash is None else flash.x[0], y=z[0] if flash is None else flash.y[0],
-        enthalpy=(beta) * thermo.cmo_latent_heat, q=1.0 - beta,
-        bubble_temperature=float(bubble[0]), dew_temperature=float(dew[0]),
-    )
 
 
 def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict[str, float]:

@@ -63,7 +63,7 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
     scaled), the estimated overhead component flows, and whether D may still be moved to meet
     a composition spec."""
     feed = system.total_feed_by_component
-    F_net = float(feed.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
+    F_net = system.net_feed
     vapor_in_feeds = float(np.sum((1.0 - np.clip(q_values, -1.0, 2.0)) * feed_totals))
     latent = system.energy_scale  # the energy scale is a mean molar latent heat
     exponent = float(np.clip(0.45 * system.N, 2.0, 60.0))
@@ -150,18 +150,14 @@ def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.
     walking a single chain of stages from the top."""
     N = system.N
     U, W = system.liquid_draws, system.vapor_draws
-    F_net = float(system.total_feed_by_component.sum() - U.sum() - W.sum())
-    L = np.zeros(N)
-    V = np.zeros(N)
+    F_net = system.net_feed
     reflux = V_top - D if system.graph.condenser != "none" else 0.0
-    liquid_above = reflux
-    for j in range(N):
-        L[j] = liquid_above + stage_q[j] * stage_feed_totals[j] - U[j] if j > 0 else reflux + stage_q[0] * stage_feed_totals[0] - U[0]
-        liquid_above = L[j]
+    # liquid gains q F and loses the liquid draw going down; vapor follows from the balance
+    # around the stages above
+    L = reflux + np.cumsum(stage_q * stage_feed_totals - U)
+    V = np.empty(N)
     V[0] = D
-    cumulative = np.cumsum(stage_feed_totals - U - W)
-    for j in range(1, N):
-        V[j] = L[j - 1] + D - cumulative[j - 1]
+    V[1:] = L[:-1] + D - np.cumsum(stage_feed_totals - U - W)[:-1]
     L[N - 1] = F_net - D
     floor = 1e-3 * F_net
     return np.maximum(L, floor), np.maximum(V, floor)
@@ -170,9 +166,9 @@ def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.
 def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, feed_stage_index: np.ndarray) -> np.ndarray:
     """Starting vector X for :class:`~solver.mesh.MeshSystem` from the specs alone."""
     thermo = system.thermo
-    N, c = system.N, system.c
+    N = system.N
     fs = system.flow_scale
-    feed_totals = np.array([state_flow for state_flow in (s["flow"] for s in feed_states)]) / fs
+    feed_totals = np.array([s["flow"] for s in feed_states]) / fs
     q_values = np.array([s["q"] for s in feed_states])
     z_total = system.total_feed_by_component / system.total_feed_by_component.sum()
     mean_pressure = float(np.mean(system.pressures))
@@ -215,7 +211,7 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
         return L, V, T, x, l, stripping
 
     profile_specs = [spec for spec in specs if spec.kind in _PROFILE_SPECS]
-    F_net = float(system.total_feed_by_component.sum() - system.liquid_draws.sum() - system.vapor_draws.sum())
+    F_net = system.net_feed
     if adjustable and profile_specs:
         first = profile_specs[0]
         second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None

@@ -159,6 +159,8 @@ class MeshSystem:
         self.vapor_draws = graph.vapor_draws / self.flow_scale
         self.fixed_duties = graph.fixed_duties / (self.flow_scale * self.energy_scale)
         self.total_feed_by_component = self.feed_flows.sum(axis=0)
+        # feeds less side draws: what leaves as distillate and bottoms (scaled)
+        self.net_feed = float(self.total_feed_by_component.sum() - self.liquid_draws.sum() - self.vapor_draws.sum())
         self.top = graph.top_stage
         self.bottom = graph.bottom_stage
         self.total_condenser = graph.condenser == "total"
@@ -234,7 +236,7 @@ class MeshSystem:
         hL, hV = props.liquid.molar.copy(), props.vapor.molar.copy()
         dhL_dT, dhV_dT = props.liquid.d_dT.copy(), props.vapor.d_dT.copy()
         gL, gV = props.liquid.d_dx.copy(), props.vapor.d_dx.copy()
-        t, b = self.top, self.bottom
+        t = self.top
         if self.total_condenser:
             distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1])
             hV[t], dhV_dT[t], gV[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]

@@ -189,7 +189,7 @@ def cautions(result: Result) -> list[str]:
     found: list[str] = []
     if not result.converged:
         found.append(f"NOT CONVERGED: {result.message}. Do not use these numbers.")
-    top, bottom = float(np.min(result.pressure)), float(np.max(result.pressure))
+    bottom = float(np.max(result.pressure))
     if bottom > ELEVATED_PRESSURE:
         found.append(
             f"Column pressure up to {bottom / 1e5:.3g} bar: K-values assume an ideal vapor (no fugacity "

@@ -232,6 +232,44 @@ class FeedState:
     dew_temperature: float
 
 
+def _feed_phases(thermo, composition, pressure: float, temperature: float | None, vapor_fraction: float | None):
+    """(z, p, flash, bubble, dew) of a feed given by its temperature or its vapor fraction."""
+    z = np.atleast_2d(np.asarray(composition, dtype=float))
+    z = z / z.sum()
+    p = np.array([float(pressure)])
+    bubble, y_bubble = bubble_temperature(thermo, p, z)
+    dew, x_dew = dew_temperature(thermo, p, z)
+    if (temperature is None) == (vapor_fraction is None):
+        raise ValueError("give exactly one of temperature and vapor_fraction")
+    if temperature is not None:
+        t = np.array([float(temperature)])
+        if t[0] <= bubble[0]:
+            flash = FlashResult(t, p, np.zeros(1), z.copy(), y_bubble)
+        elif t[0] >= dew[0]:
+            flash = FlashResult(t, p, np.ones(1), x_dew, z.copy())
+        else:
+            flash = flash_tp(thermo, t, p, z)
+    else:
+        flash = flash_p_vapor_fraction(thermo, p, z, np.array([float(vapor_fraction)]))
+    return z, p, flash, bubble, dew
+
+
+def feed_state_by_phase(
+    thermo, composition, pressure: float, *, temperature: float | None = None, vapor_fraction: float | None = None
+) -> FeedState:
+    """A feed's state without real enthalpies (a component lacking heat-capacity or latent-heat
+    data), for the ``cmo`` model: its thermal condition is its liquid fraction, ``q = 1 - vapor
+    fraction`` (a subcooled liquid counts as saturated liquid, a superheated vapor as saturated
+    vapor), and ``enthalpy`` is the vapor fraction times the constant molar latent heat."""
+    _, _, flash, bubble, dew = _feed_phases(thermo, composition, pressure, temperature, vapor_fraction)
+    beta = float(flash.vapor_fraction[0])
+    return FeedState(
+        temperature=float(flash.temperature[0]), pressure=float(pressure), vapor_fraction=beta,
+        x=flash.x[0], y=flash.y[0], enthalpy=beta * thermo.cmo_latent_heat, q=1.0 - beta,
+        bubble_temperature=float(bubble[0]), dew_temperature=float(dew[0]),
+    )
+
+
 def feed_state(
     thermo,
     composition,
@@ -245,23 +283,7 @@ def feed_state(
     temperature or its vapor fraction at ``pressure``. ``q`` is judged against saturated
     liquid and vapor of the feed composition at ``reference_pressure`` (the pressure of the
     stage it enters; default ``pressure``): the feed's enthalpy is kept across the valve."""
-    z = np.atleast_2d(np.asarray(composition, dtype=float))
-    z = z / z.sum()
-    p = np.array([float(pressure)])
-    bubble, _ = bubble_temperature(thermo, p, z)
-    dew, _ = dew_temperature(thermo, p, z)
-    if (temperature is None) == (vapor_fraction is None):
-        raise ValueError("give exactly one of temperature and vapor_fraction")
-    if temperature is not None:
-        t = np.array([float(temperature)])
-        if t[0] <= bubble[0]:
-            flash = FlashResult(t, p, np.zeros(1), z.copy(), bubble_temperature(thermo, p, z)[1])
-        elif t[0] >= dew[0]:
-            flash = FlashResult(t, p, np.ones(1), dew_temperature(thermo, p, z)[1], z.copy())
-        else:
-            flash = flash_tp(thermo, t, p, z)
-    else:
-        flash = flash_p_vapor_fraction(thermo, p, z, np.array([float(vapor_fraction)]))
+    z, p, flash, bubble, dew = _feed_phases(thermo, composition, pressure, temperature, vapor_fraction)
     h_liquid, h_vapor = thermo.rigorous_enthalpies(flash.temperature, flash.x, flash.y)
     beta = float(flash.vapor_fraction[0])
     enthalpy = (1.0 - beta) * float(h_liquid[0]) + beta * float(h_vapor[0])

@@ -14,10 +14,10 @@ sys.path.insert(0, str(HERE.parent))
 from solver.case import loads_case  # noqa: E402
 from solver.results import write_atomic  # noqa: E402
 
-IDEAL_FOUR = """
-title = "ideal four-component benchmark column ({stages} stages)"
+IDEAL_COLUMN = """
+title = "ideal {count}-component benchmark column ({stages} stages)"
 [components]
-names = ["benzene", "toluene", "ethylbenzene", "o-xylene"]
+names = [{names}]
 [thermo]
 liquid = "ideal"
 [column]
@@ -29,29 +29,7 @@ pressure.drop_per_stage = "{drop} Pa"
 [[feeds]]
 stage = {feed}
 flow = "100 kmol/h"
-composition = {{ benzene = 0.3, toluene = 0.3, ethylbenzene = 0.2, "o-xylene" = 0.2 }}
-vapor_fraction = 0.0
-[specs]
-reflux_ratio = 2.5
-distillate_rate = "{distillate} kmol/h"
-"""
-
-FIVE = """
-title = "ideal five-component benchmark column ({stages} stages)"
-[components]
-names = ["benzene", "toluene", "ethylbenzene", "o-xylene", "n-nonane"]
-[thermo]
-liquid = "ideal"
-[column]
-stages = {stages}
-condenser = "total"
-reboiler = "partial"
-pressure.top = "101.325 kPa"
-pressure.drop_per_stage = "{drop} Pa"
-[[feeds]]
-stage = {feed}
-flow = "100 kmol/h"
-composition = {{ benzene = 0.3, toluene = 0.25, ethylbenzene = 0.15, "o-xylene" = 0.15, "n-nonane" = 0.15 }}
+composition = {{ {composition} }}
 vapor_fraction = 0.0
 [specs]
 reflux_ratio = 2.5
@@ -59,16 +37,28 @@ distillate_rate = "45 kmol/h"
 """
 
 
-def ideal_four_case(stages: int):
-    # a fixed total pressure drop of 20 kPa over the column, whatever the stage count
-    return loads_case(
-        IDEAL_FOUR.format(stages=stages, drop=20000.0 / stages, feed=stages // 2, distillate=45.0),
-        source_file=f"<benchmark N={stages}>",
+def ideal_column_case(stages: int, feed: dict[str, float]):
+    """A saturated-liquid feed of 100 kmol/h on the middle stage, reflux ratio 2.5, distillate
+    45 kmol/h, and a fixed total pressure drop of 20 kPa whatever the stage count."""
+    text = IDEAL_COLUMN.format(
+        count=len(feed),
+        names=", ".join(f'"{name}"' for name in feed),
+        composition=", ".join(f'"{name}" = {fraction}' for name, fraction in feed.items()),
+        stages=stages,
+        drop=20000.0 / stages,
+        feed=stages // 2,
     )
+    return loads_case(text, source_file=f"<benchmark N={stages}>")
+
+
+def ideal_four_case(stages: int):
+    return ideal_column_case(stages, {"benzene": 0.3, "toluene": 0.3, "ethylbenzene": 0.2, "o-xylene": 0.2})
 
 
 def five_component_case(stages: int):
-    return loads_case(FIVE.format(stages=stages, drop=20000.0 / stages, feed=stages // 2), source_file="<benchmark>")
+    return ideal_column_case(
+        stages, {"benzene": 0.3, "toluene": 0.25, "ethylbenzene": 0.15, "o-xylene": 0.15, "n-nonane": 0.15}
+    )
 
 
 def best_of(function, repeats: int) -> float:

@@ -278,13 +278,7 @@ class Result:
         return buffer.getvalue()
 
     def with_extra(self, **items: Any) -> "Result":
-        merged = dict(self.extra)
-        merged.update(items)
-        return _replace(self, extra=merged)
-
-
-def _replace(result: Result, **changes: Any) -> Result:
-    return dataclasses.replace(result, **changes)
+        return dataclasses.replace(self, extra={**self.extra, **items})
 
 
 def json_safe(value: Any) -> Any:

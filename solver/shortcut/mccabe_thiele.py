@@ -559,6 +559,28 @@ def _staircase(steps: _Steps, x_distillate: float, condenser: str) -> np.ndarray
     return np.array(points)
 
 
+def stepping_fields(curve: EquilibriumCurve, steps: _Steps, optimal: _Steps, x_distillate: float, x_bottoms: float,
+                    condenser: str) -> dict:
+    """The BinaryDesign fields that follow from a stage stepping, the same for every binary
+    construction: stage counts (traystack numbering and equilibrium stages), the minimum at
+    total reflux, feed stages, the stage compositions and temperatures, the staircase."""
+    minimum = total_reflux_stages(curve, x_distillate, x_bottoms, condenser)
+    offset = 1.0 if condenser == "total" else 0.0
+    return dict(
+        minimum_stages=minimum,
+        minimum_equilibrium_stages=minimum - offset,
+        stages=steps.x.size,
+        fractional_stages=steps.fractional_stages,
+        equilibrium_stages=steps.fractional_stages - offset,
+        feed_stage=steps.feed_stage,
+        optimal_feed_stage=optimal.feed_stage,
+        stage_x=steps.x,
+        stage_y=steps.y,
+        stage_temperature=curve.temperature_of_x(steps.x),
+        staircase=_staircase(steps, x_distillate, condenser),
+    )
+
+
 def _check_products(curve: EquilibriumCurve, x_distillate: float, x_bottoms: float, x_feed: float) -> None:
     """Product purities inside the feed's distillation region, x_B < x_F < x_D."""
     if not (0.0 < x_bottoms < x_feed < x_distillate < 1.0):
@@ -639,10 +661,8 @@ def mccabe_thiele(
     optimal = steps if feed_stage is None else _step_stages(
         curve, x_distillate, x_bottoms, top, bottom, condenser=condenser, feed_stage=None, x_switch=x_int, what=what
     )
-    minimum = total_reflux_stages(curve, x_distillate, x_bottoms, condenser)
     N = steps.x.size
     f = steps.feed_stage
-    offset = 1.0 if condenser == "total" else 0.0
     numbers = np.arange(1, N + 1)
     liquid = np.where(numbers < f, L, L_strip)
     vapor = np.where(numbers <= f, V, V_strip)
@@ -671,25 +691,15 @@ def mccabe_thiele(
         reflux_ratio=float(reflux_ratio),
         boilup_ratio=V_strip / B,
         minimum_reflux=pinch,
-        minimum_stages=minimum,
-        minimum_equilibrium_stages=minimum - offset,
-        stages=N,
-        fractional_stages=steps.fractional_stages,
-        equilibrium_stages=steps.fractional_stages - offset,
-        feed_stage=f,
-        optimal_feed_stage=optimal.feed_stage,
-        stage_x=steps.x,
-        stage_y=steps.y,
-        stage_temperature=curve.temperature_of_x(steps.x),
         liquid_flow=liquid,
         vapor_flow=vapor,
-        staircase=_staircase(steps, x_distillate, condenser),
         rectifying_line=top,
         stripping_line=bottom,
         intersection=intersection,
         condenser_duty=float(condenser_duty),
         reboiler_duty=float(reboiler_duty),
         notes=tuple(notes),
+        **stepping_fields(curve, steps, optimal, x_distillate, x_bottoms, condenser),
     )
 
 

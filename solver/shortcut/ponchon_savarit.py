@@ -53,10 +53,9 @@ from .mccabe_thiele import (
     MinimumReflux,
     _check_products,
     _refine_extremum,
-    _staircase,
     _step_stages,
     binary_problem,
-    total_reflux_stages,
+    stepping_fields,
 )
 
 __all__ = [
@@ -358,9 +357,6 @@ def ponchon_savarit(
     liquid[-1] = B
     vapor[1:] = vapor_below
     vapor[0] = 0.0 if condenser == "total" else D
-    minimum = total_reflux_stages(curve, x_distillate, x_bottoms, condenser)
-    offset = 1.0 if condenser == "total" else 0.0
-
     grid = np.linspace(x_bottoms, x_distillate, 201)
     inner = grid[1:-1]
     h_inner = enthalpies.liquid_of_x(inner)
@@ -402,19 +398,8 @@ def ponchon_savarit(
         reflux_ratio=float(reflux_ratio),
         boilup_ratio=float(vapor[-1] / B),
         minimum_reflux=pinch,
-        minimum_stages=minimum,
-        minimum_equilibrium_stages=minimum - offset,
-        stages=N,
-        fractional_stages=steps.fractional_stages,
-        equilibrium_stages=steps.fractional_stages - offset,
-        feed_stage=f,
-        optimal_feed_stage=optimal.feed_stage,
-        stage_x=steps.x,
-        stage_y=steps.y,
-        stage_temperature=curve.temperature_of_x(steps.x),
         liquid_flow=liquid,
         vapor_flow=vapor,
-        staircase=_staircase(steps, x_distillate, condenser),
         rectifying_line=None,
         stripping_line=None,
         intersection=(x_switch, top(x_switch)),
@@ -422,6 +407,7 @@ def ponchon_savarit(
         reboiler_duty=float(reboiler_duty),
         enthalpy=construction,
         notes=tuple(notes),
+        **stepping_fields(curve, steps, optimal, x_distillate, x_bottoms, condenser),
     )
 
 

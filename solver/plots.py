@@ -115,6 +115,17 @@ def _balance_sections(result: Result) -> np.ndarray:
     return np.cumsum(special)[:-1]
 
 
+def _yx_frame(ax, name: str) -> None:
+    """Axes, limits, grid and legend of a y-x diagram in the light component ``name``."""
+    ax.set_xlabel(f"liquid mole fraction {name}")
+    ax.set_ylabel(f"vapor mole fraction {name}")
+    ax.set_xlim(0, 1)
+    ax.set_ylim(0, 1)
+    ax.set_aspect("equal")
+    ax.grid(True, alpha=0.3)
+    ax.legend(loc="lower right", fontsize=7)
+
+
 def yx_diagram(
     result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True
 ) -> Path:
@@ -150,14 +161,7 @@ def yx_diagram(
                 label="rigorous operating curve (x_j, y_j+1)" if number == 0 else None)
     for layer in layers:
         layer(ax, light)
-    name = result.components[light]
-    ax.set_xlabel(f"liquid mole fraction {name}")
-    ax.set_ylabel(f"vapor mole fraction {name}")
-    ax.set_xlim(0, 1)
-    ax.set_ylim(0, 1)
-    ax.set_aspect("equal")
-    ax.grid(True, alpha=0.3)
-    ax.legend(loc="lower right", fontsize=7)
+    _yx_frame(ax, result.components[light])
     ax.set_title(result.title, fontsize=9)
     return _save(figure, path)
 
@@ -214,13 +218,7 @@ def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence
     shortcut_layer(design)(ax, 0)
     for layer in layers:
         layer(ax, 0)
-    ax.set_xlabel(f"liquid mole fraction {design.light}")
-    ax.set_ylabel(f"vapor mole fraction {design.light}")
-    ax.set_xlim(0, 1)
-    ax.set_ylim(0, 1)
-    ax.set_aspect("equal")
-    ax.grid(True, alpha=0.3)
-    ax.legend(loc="lower right", fontsize=7)
+    _yx_frame(ax, design.light)
     pinch = design.minimum_reflux
     ax.set_title(
         (title + "\n" if title else "")

@@ -44,7 +44,6 @@ import os
 import re
 import tomllib
 from dataclasses import dataclass, field, replace
-from functools import lru_cache
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NoReturn
 
@@ -417,8 +416,13 @@ def molar_mass_of(name: str) -> float:
     Raises :class:`CaseError` (without a file) when CoolProp has no such fluid."""
     if not isinstance(name, str):
         raise CaseError("a component name is needed", value=name)
-    names = _coolprop_names()
-    fluid = names.get(name.strip().lower())
+    from solver.fluids import name_index, coolprop_name
+
+    try:
+        fluid = coolprop_name(name)
+        names = name_index()[0]
+    except Exception as exc:  # CoolProp not importable or not answering
+        raise CaseError(f"CoolProp is not usable here ({exc})") from None
     if fluid is None:
         close = difflib.get_close_matches(name.strip().lower(), list(names), n=3, cutoff=0.7)
         hint = f" (did you mean {', '.join(repr(names[c]) for c in close)}?)" if close else ""
@@ -430,31 +434,6 @@ def molar_mass_of(name: str) -> float:
     except Exception as exc:  # CoolProp reports its failures as ValueError or RuntimeError
         raise CaseError(f"CoolProp cannot give the molar mass of {fluid!r} ({exc})", value=name) from None
     return molar_mass
-
-
-@lru_cache(maxsize=1)
-def _coolprop_names() -> Mapping[str, str]:
-    """lower-case name or unambiguous alias -> CoolProp fluid name."""
-    try:
-        import CoolProp.CoolProp as coolprop
-
-        fluids = [f for f in coolprop.get_global_param_string("FluidsList").split(",") if f]
-        alias_lists = {f: coolprop.get_fluid_param_string(f, "aliases") for f in fluids}
-    except Exception as exc:
-        raise CaseError(f"CoolProp is not usable here ({exc})") from None
-    names = {fluid.lower(): fluid for fluid in fluids}
-    owners: dict[str, set[str]] = {}
-    for fluid, aliases in alias_lists.items():
-        # aliases are comma-separated and some chemical names hold commas: keep only the
-        # pieces that point to one fluid
-        for alias in aliases.split(","):
-            alias = alias.strip().lower()
-            if alias and alias not in names:
-                owners.setdefault(alias, set()).add(fluid)
-    for alias, fluids_named in owners.items():
-        if len(fluids_named) == 1:
-            names[alias] = next(iter(fluids_named))
-    return MappingProxyType(names)
 
 
 # ---------------------------------------------------------------------------------------

@@ -16,7 +16,6 @@ from __future__ import annotations
 import difflib
 import fnmatch
 import math
-import re
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Mapping
@@ -26,6 +25,7 @@ import CoolProp.CoolProp as CP
 
 from solver.case import ComponentData
 from solver.errors import CaseError
+from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter, loose_key, name_index
 
 ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
 
@@ -43,16 +43,6 @@ class ComponentInfo:
     backend: str  # "coolprop" | "user"
     coolprop_name: str | None
     source: str
-
-
-def coolprop_name(name: str) -> str | None:
-    """CoolProp's name of the fluid called ``name`` (a CoolProp name or alias, any case,
-    spaces, hyphens and underscores optional), or None if CoolProp has no such fluid."""
-    key = name.strip().lower()
-    exact, loose = _coolprop_index()
-    if key in exact:
-        return exact[key]
-    return loose.get(_loose_key(key))
 
 
 def component_info(name: str, user_data: Mapping[str, ComponentData] | None = None) -> ComponentInfo:
@@ -92,7 +82,7 @@ def list_components(pattern: str | None = None) -> list[ComponentInfo]:
     glob = any(ch in text for ch in "*?[")
     chosen = []
     for info in infos:
-        names = [info.name, *(_aliases(info.coolprop_name))]
+        names = [info.name, *(fluid_aliases(info.coolprop_name))]
         names = [n.lower() for n in names]
         if glob:
             hit = any(fnmatch.fnmatchcase(n, text) for n in names)
@@ -106,9 +96,9 @@ def list_components(pattern: str | None = None) -> list[ComponentInfo]:
 def coolprop_source(fluid: str) -> str:
     """The source line for a CoolProp fluid: version and the BibTeX keys CoolProp gives for the
     fluid's reference equation of state and ideal-gas heat capacity."""
-    eos = _fluid_param(fluid, "BibTeX-EOS") or "reference not stated by CoolProp"
+    eos = fluid_parameter(fluid, "BibTeX-EOS") or "reference not stated by CoolProp"
     text = f"CoolProp {CoolProp.__version__} (reference EOS of {fluid}: {eos}"
-    cp0 = _fluid_param(fluid, "BibTeX-CP0")
+    cp0 = fluid_parameter(fluid, "BibTeX-CP0")
     if cp0 and cp0 != eos:
         text += f"; ideal-gas heat capacity: {cp0}"
     return text + ")"
@@ -117,53 +107,9 @@ def coolprop_source(fluid: str) -> str:
 # --- helpers -----------------------------------------------------------------------------------
 
 
-def _loose_key(text: str) -> str:
-    return re.sub(r"[\s_\-]", "", text.lower())
-
-
-@lru_cache(maxsize=1)
-def _fluid_names() -> tuple[str, ...]:
-    return tuple(CP.get_global_param_string("FluidsList").split(","))
-
-
-@lru_cache(maxsize=None)
-def _aliases(fluid: str) -> tuple[str, ...]:
-    text = _fluid_param(fluid, "aliases")
-    return tuple(a.strip() for a in text.split(",") if a.strip()) if text else ()
-
-
-def _fluid_param(fluid: str, key: str) -> str:
-    try:
-        return CP.get_fluid_param_string(fluid, key).strip()
-    except Exception:  # CoolProp raises ValueError for keys a fluid lacks
-        return ""
-
-
-@lru_cache(maxsize=1)
-def _coolprop_index() -> tuple[dict[str, str], dict[str, str]]:
-    """(exact lower-case name or alias -> CoolProp name, loose key -> CoolProp name). A loose
-    key (spaces, hyphens and underscores removed) that two fluids share is dropped."""
-    exact: dict[str, str] = {}
-    for fluid in _fluid_names():
-        exact.setdefault(fluid.lower(), fluid)
-    for fluid in _fluid_names():
-        for alias in _aliases(fluid):
-            exact.setdefault(alias.lower(), fluid)
-    loose: dict[str, str] = {}
-    clashes: set[str] = set()
-    for key, fluid in exact.items():
-        lk = _loose_key(key)
-        if lk in loose and loose[lk] != fluid:
-            clashes.add(lk)
-        loose.setdefault(lk, fluid)
-    for lk in clashes:
-        del loose[lk]
-    return exact, loose
-
-
 @lru_cache(maxsize=None)
 def _unusable_reason(fluid: str) -> str | None:
-    if _fluid_param(fluid, "pure") != "true":
+    if fluid_parameter(fluid, "pure") != "true":
         return "CoolProp models it as a pseudo-pure mixture, without a vapor-liquid saturation curve of its own"
     try:
         state = CP.AbstractState("HEOS", fluid)
@@ -218,7 +164,7 @@ def _coolprop_info(fluid: str, name: str) -> ComponentInfo:
 def _all_coolprop_infos() -> tuple[ComponentInfo, ...]:
     infos = [
         _coolprop_info(fluid, fluid.lower())
-        for fluid in _fluid_names()
+        for fluid in fluid_names()
         if _unusable_reason(fluid) is None
     ]
     return tuple(sorted(infos, key=lambda i: i.name))
@@ -249,7 +195,7 @@ def _user_info(name: str, data: ComponentData) -> ComponentInfo:
 
 
 def _suggestion(name: str, user_data: Mapping[str, ComponentData] | None) -> str:
-    exact, _ = _coolprop_index()
+    exact, _ = name_index()
     candidates: dict[str, str] = {}
     for key, fluid in exact.items():
         if _unusable_reason(fluid) is None:
@@ -259,7 +205,7 @@ def _suggestion(name: str, user_data: Mapping[str, ComponentData] | None) -> str
     key = name.strip().lower()
     matches = difflib.get_close_matches(key, candidates, n=6, cutoff=0.6)
     if not matches:
-        matches = difflib.get_close_matches(_loose_key(key), candidates, n=6, cutoff=0.6)
+        matches = difflib.get_close_matches(loose_key(key), candidates, n=6, cutoff=0.6)
     names: list[str] = []
     for match in matches:
         canonical = candidates[match]

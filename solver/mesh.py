@@ -233,13 +233,9 @@ class MeshSystem:
         K = props.k_values.K
         dlnK_dT = props.k_values.d_ln_K_dT
         dlnK_dx = props.k_values.d_ln_K_dx
-        hL, hV = props.liquid.molar.copy(), props.vapor.molar.copy()
-        dhL_dT, dhV_dT = props.liquid.d_dT.copy(), props.vapor.d_dT.copy()
-        gL, gV = props.liquid.d_dx.copy(), props.vapor.d_dx.copy()
+        hL, dhL_dT, gL = props.liquid.molar, props.liquid.d_dT, props.liquid.d_dx
+        hV, dhV_dT, gV = self._vapor_slot(T, y, props.vapor)
         t = self.top
-        if self.total_condenser:
-            distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1])
-            hV[t], dhV_dT[t], gV[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]
 
         U, W = self.liquid_draws, self.vapor_draws
         rU, rW = U / L_safe, W / V_safe
@@ -410,12 +406,18 @@ class MeshSystem:
         x = l / np.maximum(l.sum(axis=1), 1e-300)[:, None]
         y = v / np.maximum(v.sum(axis=1), 1e-300)[:, None]
         hL = self.thermo.liquid_enthalpy(T, x).molar
-        hV = self.thermo.vapor_enthalpy(T, y).molar
-        if self.total_condenser:
-            t = self.top
-            hV = hV.copy()
-            hV[t] = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1]).molar[0]
-        return hL, hV
+        return hL, self._vapor_slot(T, y, self.thermo.vapor_enthalpy(T, y))[0]
+
+    def _vapor_slot(self, T: np.ndarray, y: np.ndarray, vapor) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """(h, dh/dT, dh/dy) of the stream in each stage's vapor slot: the vapor's, except on a
+        total condenser, whose vapor slot holds the liquid distillate."""
+        if not self.total_condenser:
+            return vapor.molar, vapor.d_dT, vapor.d_dx
+        h, dh_dT, g = vapor.molar.copy(), vapor.d_dT.copy(), vapor.d_dx.copy()
+        t = self.top
+        distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1])
+        h[t], dh_dT[t], g[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]
+        return h, dh_dT, g
 
     def stage_duties(self, X: np.ndarray) -> np.ndarray:
         """Heat added to each stage (W) from its enthalpy balance; on stages other than the

@@ -25,7 +25,7 @@ from scipy.special import expit
 
 from .case import Spec
 from .errors import ThermoError
-from .mesh import MeshSystem
+from .mesh import TEMPERATURE_SCALE, MeshSystem
 from .thermo.flash import bubble_temperature
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
@@ -50,12 +50,11 @@ def fenske_split(feed_flows: np.ndarray, ln_alpha: np.ndarray, distillate, expon
 
 
 def _spec_error(spec: Spec, top: np.ndarray, bottom: np.ndarray, feed: np.ndarray, names) -> float:
+    """Distance from a product mole fraction or recovery spec, given product component flows."""
     i = list(names).index(spec.component)
-    if spec.kind == "mole_fraction":
-        product = top if spec.product == "distillate" else bottom
-        return float(product[i] / max(product.sum(), 1e-300) - spec.value)
     product = top if spec.product == "distillate" else bottom
-    return float(product[i] / max(feed[i], 1e-300) - spec.value)
+    basis = product.sum() if spec.kind == "mole_fraction" else feed[i]
+    return float(product[i] / max(basis, 1e-300) - spec.value)
 
 
 def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.ndarray, feed_totals: np.ndarray, ln_alpha: np.ndarray):
@@ -321,7 +320,7 @@ def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float
     """How far a CMO profile is from meeting a composition, recovery or temperature spec."""
     L, V, T, x, l, stripping = profile_result
     if spec.kind == "stage_temperature":
-        return float(T[spec.stage - 1] - spec.value) / 10.0
+        return float(T[spec.stage - 1] - spec.value) / TEMPERATURE_SCALE
     top = stripping[system.top] * l[system.top]
     bottom = l[system.bottom]
     return _spec_error(spec, top, bottom, system.total_feed_by_component, system.component_names)

@@ -15,7 +15,7 @@ from typing import Any
 import numpy as np
 
 from .case import Case
-from .errors import ThermoError
+from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
 from .feasibility import check_binary_limits, check_specifications
 from .initial import initial_estimate
@@ -23,6 +23,7 @@ from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
 from .newton import NewtonOptions, solve
 from .results import Result, StageFeed
+from .shortening import MIN_STAGES, shortened_case, stretched_start
 from .thermo.flash import feed_state, feed_state_by_phase
 from .thermo.package import ThermoPackage
 
@@ -238,6 +239,7 @@ def simulate(
     thermo: ThermoPackage | None = None,
     start: np.ndarray | None = None,
     continuation: bool = True,
+    shortening: int = 2,
 ) -> Result:
     """Solve the column of ``case`` rigorously. Always returns a Result; ``converged`` tells
     whether it may be used.
@@ -245,9 +247,13 @@ def simulate(
     The fallback chain: (1) damped Newton from the default start (backtracking line search,
     then the dogleg path when no step length lowers the residuals); (2) if that fails,
     homotopy continuation from ideal K-values and CMO enthalpies to the real model
-    (:mod:`solver.continuation`). ``Result.strategy`` records the rung that solved it. Raises :class:`ConvergenceError` only for NaN/inf (naming the
-    stage and variable), and :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for
-    bad input."""
+    (:mod:`solver.continuation`); (3) for a column of at least
+    :data:`~solver.shortening.MIN_STAGES` stages, the same separation with the runs of plain
+    stages halved is solved first (by this same chain, nested at most ``shortening`` deep) and
+    Newton starts the full column from its profile stretched over the stages
+    (:mod:`solver.shortening`). ``Result.strategy`` records the rung that solved it. Raises
+    :class:`ConvergenceError` only for NaN/inf (naming the stage and variable), and
+    :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for bad input."""
     thermo, graph, system, details, stage_feeds = build_system(case, thermo)
     options = options or NewtonOptions()
     X0 = start if start is not None else initial_estimate(system, case.specs, details, graph.feed_stages)
@@ -280,7 +286,17 @@ def simulate(
             strategy["rung"] = "homotopy"
         else:
             strategy["rung"] = None
-    strategy["chain"] = "damped Newton (line search, dogleg) from the default start; then homotopy from ideal K-values and CMO enthalpies"
+    if not newton.converged and start is None and shortening > 0 and case.column.stages >= MIN_STAGES:
+        stretched, record = _solve_from_shorter_column(case, thermo, system, options, continuation, shortening)
+        if record is not None:
+            strategy["shortened_column"] = record
+        if stretched is not None and stretched.converged:
+            newton = stretched
+            strategy["rung"] = "shorter column"
+    strategy["chain"] = (
+        "damped Newton (line search, dogleg) from the default start; then homotopy from ideal K-values and CMO "
+        "enthalpies; then, for a long column, the start stretched from a shortened column's solution"
+    )
     result = result_from_solution(case, thermo, graph, system, stage_feeds, newton.X, newton)
     check = post_check(result, thermo, graph)
     message = result.message
@@ -309,3 +325,35 @@ def simulate(
             converged = False
             message = f"solution outside the property models' range: {exc}"
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)
+
+
+def _solve_from_shorter_column(
+    case: Case, thermo: ThermoPackage, system: MeshSystem, options: NewtonOptions, continuation: bool, depth: int
+):
+    """Rung 3 of the fallback chain: solve the case with its runs of plain stages halved, then
+    Newton on the full column from that profile stretched. Returns (Newton result or None, the
+    record for ``Result.strategy``, or None when the shortened column is no shorter)."""
+    short_case, positions = shortened_case(case, 0.5)
+    if short_case.column.stages >= case.column.stages - 2:
+        return None, None
+    record: dict[str, Any] = {"stages": short_case.column.stages}
+    try:
+        short = simulate(short_case, options=options, thermo=thermo, continuation=continuation, shortening=depth - 1)
+    except (CaseError, SpecError, ThermoError, ConvergenceError) as exc:
+        record.update(converged=False, message=str(exc))
+        return None, record
+    record.update(converged=bool(short.converged), rung=short.strategy.get("rung"))
+    if not short.converged:
+        record["message"] = short.message
+        return None, record
+    X0 = stretched_start(short, positions, system.N, system.flow_scale)
+    try:
+        newton = solve(
+            system.evaluate, X0, system.temperature_index(), system.flow_mask(), options,
+            describe_variable=system.variable_name, describe_equation=system.equation_name,
+        )
+    except ConvergenceError as exc:
+        record["message"] = str(exc)
+        return None, record
+    record["newton_iterations"] = newton.iterations
+    return newton, record

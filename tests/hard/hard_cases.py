@@ -152,6 +152,10 @@ HARD_CASES: dict[str, str] = {
     "alkanes-murphree-0.5": case_text("five alkanes, Murphree efficiency 0.5", ["n-pentane", "n-hexane", "n-heptane", "n-octane", "n-nonane"],
         {"n-pentane": 0.2, "n-hexane": 0.2, "n-heptane": 0.2, "n-octane": 0.2, "n-nonane": 0.2},
         'reflux_ratio = 2.0\ndistillate_rate = "40 kmol/h"', stages=40, feed_stage=20, efficiency="0.5"),
+    "alkanes-200-distributing": case_text("five alkanes, 200 stages, n-hexane/n-octane at 99.9 % with n-heptane distributing "
+        "(long pinch zones near minimum reflux)", ["n-pentane", "n-hexane", "n-heptane", "n-octane", "n-nonane"],
+        {"n-pentane": 0.2, "n-hexane": 0.2, "n-heptane": 0.2, "n-octane": 0.2, "n-nonane": 0.2},
+        "recovery = { n-hexane = { distillate = 0.999 }, n-octane = { bottoms = 0.999 } }", stages=200, feed_stage=100),
     # --- pressure
     "bt-vacuum": case_text("benzene/toluene under vacuum (15 kPa top)", BT, {"benzene": 0.5, "toluene": 0.5},
         "reflux_ratio = 2.5\ndistillate = { benzene = 0.99 }", stages=30, feed_stage=15, pressure="15 kPa", drop="300 Pa"),

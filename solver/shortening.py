@@ -1,0 +1,116 @@
+"""A shorter column first: the start of a long column from the solution of a shortened one.
+
+A long column (a hundred stages or more, sharp splits near minimum reflux) has long pinch zones
+in which compositions hardly change from stage to stage. Newton's method from the default start
+can wander off on such a column while the same separation with fewer stages in every section
+solves readily, and its profile -- the same pinch zones, only shorter -- stretched over the
+full stage count is a start from which Newton converges in a few iterations. This is
+continuation in the stage count, a standard device for long columns (e.g. Seader & Henley,
+*Separation Process Principles*, 2nd ed., 2006, sec. 10.4 on initial estimates; Kister,
+*Distillation Design*, 1992, ch. 4).
+
+What is kept: every stage that carries something -- the condenser and reboiler, each feed,
+side draw, side heater or cooler, each stage named by a stage-temperature spec -- and its two
+neighbours ("anchor" stages) map one to one; the runs of plain stages between anchors are
+shortened by ``ratio`` (runs of two or fewer stay as they are). The shortened column keeps the
+top and bottom pressures (the profile is interpolated at the kept stages' positions) and the
+Murphree efficiencies of the stages it keeps.
+
+Positions: every stage of the shortened column has a position on the full column's stage
+numbering (anchors at their own numbers, the shortened runs evenly spread between them); the
+start of the full column interpolates the shortened solution's temperatures and the logarithms
+of its component flows at the full column's stage numbers.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+
+from .case import Case
+from .results import Result
+
+__all__ = ["MIN_STAGES", "anchor_stages", "shortened_case", "stretched_start"]
+
+#: Columns with fewer stages are not shortened.
+MIN_STAGES = 30
+
+
+def anchor_stages(case: Case) -> list[int]:
+    """The stage numbers (1-based, sorted) that map one to one between the full and the
+    shortened column: ends, stages with a feed, draw, side duty or stage spec, and their
+    neighbours."""
+    N = case.column.stages
+    special = {1, N}
+    special.update(feed.stage for feed in case.feeds)
+    special.update(draw.stage for draw in case.column.side_draws)
+    special.update(duty.stage for duty in case.column.stage_duties)
+    special.update(spec.stage for spec in case.specs if spec.stage is not None)
+    anchors = set()
+    for stage in special:
+        anchors.update(s for s in (stage - 1, stage, stage + 1) if 1 <= s <= N)
+    return sorted(anchors)
+
+
+def shortened_case(case: Case, ratio: float = 0.5) -> tuple[Case, np.ndarray]:
+    """The case with every run of plain stages between anchors shortened by ``ratio`` (0 < ratio
+    < 1), and the position of each of its stages on the full column's numbering (float array,
+    increasing, anchors exact)."""
+    if not 0.0 < ratio < 1.0:
+        raise ValueError(f"a shortening ratio lies between 0 and 1, not {ratio}")
+    anchors = anchor_stages(case)
+    positions: list[float] = [float(anchors[0])]
+    for a, b in zip(anchors[:-1], anchors[1:]):
+        interior = b - a - 1
+        kept = interior if interior <= 2 else max(2, int(round(interior * ratio)))
+        positions.extend(a + (b - a) * (i + 1) / (kept + 1) for i in range(kept))
+        positions.append(float(b))
+    positions_array = np.array(positions)
+    new_number = {old: int(np.flatnonzero(positions_array == old)[0]) + 1 for old in anchors}
+
+    column = case.column
+    full = np.arange(1, column.stages + 1, dtype=float)
+    pressures = tuple(float(p) for p in np.interp(positions_array, full, np.asarray(column.pressures)))
+    nearest = np.rint(positions_array).astype(int) - 1
+    efficiencies = tuple(float(column.efficiencies[k]) for k in nearest)
+    short_column = dataclasses.replace(
+        column,
+        stages=len(positions),
+        pressures=pressures,
+        efficiencies=efficiencies,
+        side_draws=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.side_draws),
+        stage_duties=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.stage_duties),
+    )
+    short = dataclasses.replace(
+        case,
+        title=f"{case.title} (shortened to {len(positions)} stages)",
+        column=short_column,
+        feeds=tuple(dataclasses.replace(f, stage=new_number[f.stage]) for f in case.feeds),
+        specs=tuple(
+            dataclasses.replace(s, stage=new_number[s.stage]) if s.stage is not None else s for s in case.specs
+        ),
+    )
+    return short, positions_array
+
+
+def stretched_start(short: Result, positions: np.ndarray, stages: int, flow_scale: float) -> np.ndarray:
+    """Scaled unknowns of the full column (``stages`` stages; flows over ``flow_scale`` mol/s,
+    the engine's scaling) from the solution ``short`` of the shortened column whose stages sit
+    at ``positions`` on the full numbering: temperatures interpolated linearly, component flows
+    in their logarithms (a flow that is zero at both neighbours, such as the vapor of a total
+    condenser, stays zero)."""
+    numbers = np.arange(1, stages + 1, dtype=float)
+    T = np.interp(numbers, positions, short.temperature)
+
+    def stretch(flows: np.ndarray) -> np.ndarray:
+        columns = []
+        for k in range(flows.shape[1]):
+            logs = np.interp(numbers, positions, np.log(np.maximum(flows[:, k], 1e-300)))
+            zero = np.interp(numbers, positions, (flows[:, k] <= 0.0).astype(float)) >= 1.0
+            columns.append(np.where(zero, 0.0, np.exp(logs)))
+        return np.column_stack(columns)
+
+    liquid = stretch(short.liquid_flow[:, None] * short.x / flow_scale)
+    vapor = stretch(short.vapor_flow[:, None] * short.y / flow_scale)
+    return np.concatenate([T[:, None], liquid, vapor], axis=1).ravel()

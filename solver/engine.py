@@ -342,7 +342,11 @@ def _solve_from_shorter_column(
     except (CaseError, SpecError, ThermoError, ConvergenceError) as exc:
         record.update(converged=False, message=str(exc))
         return None, record
-    record.update(converged=bool(short.converged), rung=short.strategy.get("rung"))
+    record.update(
+        converged=bool(short.converged),
+        rung=short.strategy.get("rung"),
+        strategy={k: v for k, v in short.strategy.items() if k != "chain"},
+    )
     if not short.converged:
         record["message"] = short.message
         return None, record

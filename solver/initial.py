@@ -8,8 +8,10 @@
    latent heat) and each feed's thermal condition ``q``.
 3. Compositions and temperatures by sweeps of the bubble-point method (Wang & Henke 1966,
    Hydrocarbon Processing 45(8):155): for fixed flows, each component's balances over all
-   stages form one sparse linear system in its liquid flows; temperatures then move to the
-   bubble points of the new liquid compositions.
+   stages form one sparse linear system in its liquid flows; for a column with two products
+   the split is corrected by Holland's theta method so that the overhead total is the rate
+   the flows were built for; temperatures then move to the bubble points of the new liquid
+   compositions.
 
 The sweeps use the stage graph's inflow matrices; the CMO flow estimate walks the stages top
 to bottom and so assumes one vertical chain (a plain column).
@@ -298,12 +300,19 @@ def wang_henke_sweeps(
             factors[t] = V[t] / L[t]
         return factors
 
+    two_products = (
+        system.graph.condenser != "none" and system.graph.has_reboiler
+        and not np.any(system.liquid_draws) and not np.any(system.vapor_draws)
+    )
     for _ in range(max_sweeps):
         stripping = stripping_factors(T, x)
         # natural ordering keeps the elimination in stage order, where the column-wise
         # diagonal dominance of these matrices makes it stable
         solution = spla.spsolve(component_balance_matrix(system, L, V, stripping), rhs, permc_spec="NATURAL")
-        l = np.maximum(solution.reshape(c, N).T, 1e-30)
+        raw = np.maximum(solution.reshape(c, N).T, 1e-30)
+        l = raw
+        if two_products:
+            l = theta_correction(raw, stripping[t] * raw[t], raw[system.bottom], system.total_feed_by_component, V[t])
         x = l / l.sum(axis=1, keepdims=True)
         try:
             T_new, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
@@ -313,7 +322,22 @@ def wang_henke_sweeps(
         T = T_new
         if moved < tolerance:
             break
-    return T, x, l, stripping_factors(T, x)
+    return T, x, raw, stripping_factors(T, x)
+
+
+def theta_correction(l: np.ndarray, top: np.ndarray, bottom: np.ndarray, feed: np.ndarray, distillate: float) -> np.ndarray:
+    """Holland's theta method of convergence (Holland, *Fundamentals of Multicomponent
+    Distillation*, 1981, ch. 2): the product split of a sweep, ``top`` and ``bottom`` component
+    flows, is corrected to ``d_i = f_i / (1 + theta b_i / d_i)`` with the one theta that makes
+    the overhead total ``distillate``, and every stage's liquid flow of component i is scaled
+    by ``d_i,corrected / d_i``. The sweeps alone leave the overhead total free, and it can
+    drift far from the overhead rate the flows were built for. ``d_i = f_i expit(ln(d_i/b_i) -
+    ln theta)`` is the form of :func:`fenske_split` with exponent 1."""
+    if not 0.0 < distillate < float(np.sum(feed)):
+        return l
+    top, bottom = np.maximum(top, 1e-300), np.maximum(bottom, 1e-300)
+    corrected = fenske_split(feed, np.log(top) - np.log(bottom), distillate, 1.0)
+    return l * (corrected / top)[None, :]
 
 
 def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float:

@@ -119,3 +119,31 @@ def test_a_short_column_is_not_shortened():
     case = methanol_water_case(stages=12, feed_stage=7)
     short, positions = shortened_case(case, 0.5)
     assert short.column.stages == len(positions) <= 12
+
+
+def test_the_engine_falls_back_to_the_shorter_column(make_case, monkeypatch):
+    """Rung 3: with the default start spoiled for the full column only (and no homotopy), the
+    engine solves the shortened column, stretches its profile and converges on the full one."""
+    import solver.engine as engine
+
+    case = make_case(ALKANES)
+    thermo = ThermoPackage.from_case(case)
+    reference = simulate(case, thermo=thermo)
+    real_start = engine.initial_estimate
+
+    def spoiled(system, specs, details, feed_stages):
+        X = real_start(system, specs, details, feed_stages)
+        if system.N == case.column.stages:
+            T, l, v = system.unpack(X)
+            X = system.pack(T[::-1].copy(), l[::-1].copy(), v[::-1].copy())  # the column upside down
+        return X
+
+    monkeypatch.setattr(engine, "initial_estimate", spoiled)
+    result = simulate(case, thermo=thermo, continuation=False)
+    assert result.converged, result.message
+    assert result.strategy["rung"] == "shorter column"
+    record = result.strategy["shortened_column"]
+    assert record["converged"] and record["stages"] < case.column.stages
+    assert result.reflux_ratio == pytest.approx(reference.reflux_ratio, rel=1e-8)
+    # without the rung the spoiled start does not converge: the test above is not vacuous
+    assert not simulate(case, thermo=thermo, continuation=False, shortening=0).converged

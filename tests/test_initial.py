@@ -1,0 +1,87 @@
+"""The default start: the Fenske split, CMO flows, the bubble-point sweeps with Holland's theta
+correction, and the root walking that moves the overhead rate to meet composition specs."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from solver.case import load_case
+from solver.engine import build_system, simulate
+from solver.initial import _root_by_walking, cmo_flows, fenske_split, theta_correction
+
+CASES = Path(__file__).resolve().parent.parent / "cases"
+
+
+@given(
+    d=st.lists(st.floats(min_value=1e-12, max_value=10.0), min_size=2, max_size=8),
+    b=st.lists(st.floats(min_value=1e-12, max_value=10.0), min_size=2, max_size=8),
+    share=st.floats(min_value=0.01, max_value=0.99),
+)
+@settings(max_examples=200, deadline=None)
+def test_theta_correction_meets_the_overhead_rate_and_keeps_the_order(d, b, share):
+    n = min(len(d), len(b))
+    top, bottom = np.array(d[:n]), np.array(b[:n])
+    feed = top + bottom
+    D = share * feed.sum()
+    stages = np.vstack([top, (top + bottom) / 2, bottom])  # any liquid profile; the top row stands for the overhead
+    corrected = theta_correction(stages, top, bottom, feed, D)
+    corrected_top = corrected[0] / stages[0] * top
+    assert corrected_top.sum() == pytest.approx(D, rel=1e-9)
+    assert np.all(corrected_top <= feed * (1 + 1e-12))
+    # one theta for all: the recovery order of the components is kept
+    recovery_before, recovery_after = top / feed, corrected_top / feed
+    order = np.argsort(recovery_before)
+    assert np.all(np.diff(recovery_after[order]) >= -1e-12)
+    # every stage of a component is scaled by the same factor
+    np.testing.assert_allclose(corrected / stages, np.broadcast_to(corrected[0] / stages[0], stages.shape), rtol=1e-12)
+
+
+def test_theta_correction_leaves_a_consistent_split_alone():
+    top, bottom = np.array([3.0, 1.0]), np.array([1.0, 5.0])
+    stages = np.vstack([top, bottom])
+    np.testing.assert_allclose(theta_correction(stages, top, bottom, top + bottom, top.sum()), stages, rtol=1e-10)
+    # an impossible overhead rate (nothing or everything) changes nothing
+    np.testing.assert_array_equal(theta_correction(stages, top, bottom, top + bottom, 0.0), stages)
+
+
+def test_fenske_split_moves_with_the_overhead_rate():
+    feed = np.array([0.3, 0.4, 0.3])
+    ln_alpha = np.log(np.array([4.0, 1.0, 0.25]))
+    tops = fenske_split(feed, ln_alpha, np.array([0.2, 0.5, 0.8]), 10.0)
+    np.testing.assert_allclose(tops.sum(axis=1), [0.2, 0.5, 0.8], rtol=1e-9)
+    assert np.all(np.diff(tops, axis=0) >= 0)  # more overhead, more of every component
+    assert tops[1, 0] / feed[0] > tops[1, 1] / feed[1] > tops[1, 2] / feed[2]
+
+
+def test_root_walking_finds_a_root_away_from_the_start_and_gives_up_without_one():
+    assert _root_by_walking(lambda x: x - 0.73, 0.2, 0.01, 0.99, 1e-10) == pytest.approx(0.73, abs=1e-8)
+    assert _root_by_walking(lambda x: 0.3 - x, 0.9, 0.01, 0.99, 1e-10) == pytest.approx(0.3, abs=1e-8)
+    assert _root_by_walking(lambda x: 1.0 + x, 0.5, 0.01, 0.99, 1e-10) == 0.5  # no sign change: the start
+
+
+def test_cmo_flows_of_a_simple_column():
+    case = load_case(CASES / "benzene_toluene.toml")
+    _, graph, system, details, _ = build_system(case)
+    N = system.N
+    totals = np.zeros(N)
+    np.add.at(totals, graph.feed_stages, [d["flow"] / system.flow_scale for d in details])
+    q = np.ones(N)
+    L, V = cmo_flows(system, 0.4, 1.2, totals, q)
+    f = graph.feed_stages[0]
+    assert V[0] == pytest.approx(0.4) and L[0] == pytest.approx(0.8)  # overhead and reflux
+    assert L[f] - L[f - 1] == pytest.approx(totals[f])  # a boiling-liquid feed joins the liquid
+    assert L[-1] == pytest.approx(system.net_feed - 0.4)  # the bottoms
+
+
+def test_the_default_start_solves_subcooled_feed_and_reflux_without_homotopy():
+    """With the theta correction the sweeps keep the overhead rate they were built for, and the
+    start meets the bottoms spec closely enough for Newton alone (before it, this case needed the
+    homotopy rung)."""
+    result = simulate(load_case(CASES / "acetone_subcooled_reflux.toml"), continuation=False, shortening=0)
+    assert result.converged, result.message
+    assert result.strategy["rung"] in ("newton", "damped newton")

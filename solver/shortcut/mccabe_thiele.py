@@ -746,15 +746,20 @@ def check_simple_column(case: Case, method: str) -> list[str]:
     """The shortcuts treat one feed, a condenser and a partial reboiler, no side draws; side
     heaters are left out with a note (returned)."""
     column = case.column
+    where = case.source_file or "<case>"
+    rigorous = "; `traystack run` solves such a column rigorously, the shortcut comparison needs a simple one"
     if len(case.feeds) != 1:
-        raise SpecError(f"the {method} shortcut handles one feed; this case has {len(case.feeds)}")
+        raise SpecError(f"{where}: feeds: the {method} shortcut handles one feed; this case has {len(case.feeds)}{rigorous}")
     if column.condenser not in ("total", "partial") or column.reboiler != "partial":
         raise SpecError(
-            f"the {method} shortcut needs a condenser (total or partial) and a partial reboiler; this column has "
-            f"condenser = {column.condenser!r}, reboiler = {column.reboiler!r}"
+            f"{where}: column: the {method} shortcut needs a condenser (total or partial) and a partial reboiler; "
+            f"this column has condenser = {column.condenser!r}, reboiler = {column.reboiler!r}{rigorous}"
         )
     if column.side_draws:
-        raise SpecError(f"the {method} shortcut handles no side draws; this column has {len(column.side_draws)}")
+        raise SpecError(
+            f"{where}: column.side_draws: the {method} shortcut handles no side draws; this column has "
+            f"{len(column.side_draws)}{rigorous}"
+        )
     notes = []
     if column.stage_duties:
         notes.append(f"{len(column.stage_duties)} side heater(s)/cooler(s) of the case are not in the shortcut")

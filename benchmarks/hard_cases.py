@@ -21,6 +21,7 @@ def iterations_in_all(strategy: dict, final: int) -> int:
     """Newton iterations of every rung tried: the first solve, the homotopy points, and the
     shortened column's own chain with the full column's solve from its stretched profile."""
     count = strategy.get("newton_iterations", final) + sum(p["iterations"] for p in strategy.get("homotopy_path", []))
+    count += strategy.get("second_start", {}).get("newton_iterations", 0)
     short = strategy.get("shortened_column")
     if short:
         if "strategy" in short:
@@ -46,7 +47,7 @@ def main() -> None:
               f"{iterations:4d} Newton iterations in all  {seconds:6.2f} s")
     converged = [r for r in rows if r["converged"]]
     counts = [r["newton_iterations"] for r in converged]
-    rungs = {rung: sum(1 for r in converged if r["rung"] == rung) for rung in ("newton", "damped newton", "homotopy", "shorter column")}
+    rungs = {rung: sum(1 for r in converged if r["rung"] == rung) for rung in ("newton", "damped newton", "second start", "homotopy", "shorter column")}
     summary = {
         "cases": len(rows), "converged": len(converged), "rungs": rungs,
         "newton_iterations_median": statistics.median(counts) if counts else None,

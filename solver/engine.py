@@ -18,7 +18,7 @@ from .case import Case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
 from .feasibility import check_binary_limits, check_specifications
-from .initial import initial_estimate
+from .initial import initial_estimate, theta_correction_applies
 from .mesh import CondenserSetting, FeedData, MeshSystem
 from .network import StageGraph, build_stage_graph
 from .newton import NewtonOptions, solve
@@ -245,8 +245,9 @@ def simulate(
     whether it may be used.
 
     The fallback chain: (1) damped Newton from the default start (backtracking line search,
-    then the dogleg path when no step length lowers the residuals); (2) if that fails,
-    homotopy continuation from ideal K-values and CMO enthalpies to the real model
+    then the dogleg path when no step length lowers the residuals), then from the start of the
+    sweeps without the theta correction ("second start"); (2) if that fails, homotopy
+    continuation from ideal K-values and CMO enthalpies to the real model
     (:mod:`solver.continuation`); (3) for a column of at least
     :data:`~solver.shortening.MIN_STAGES` stages, the same separation with the runs of plain
     stages halved is solved first (by this same chain, nested at most ``shortening`` deep) and
@@ -257,20 +258,21 @@ def simulate(
     thermo, graph, system, details, stage_feeds = build_system(case, thermo)
     options = options or NewtonOptions()
     X0 = start if start is not None else initial_estimate(system, case.specs, details, graph.feed_stages)
-    newton = solve(
-        system.evaluate,
-        X0,
-        system.temperature_index(),
-        system.flow_mask(),
-        options,
-        describe_variable=system.variable_name,
-        describe_equation=system.equation_name,
-    )
+    newton = _newton(system, X0, options)
     full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
     strategy: dict[str, Any] = {
         "rung": ("newton" if full_steps else "damped newton") if newton.converged else None,
         "newton_iterations": newton.iterations,
     }
+    if not newton.converged and start is None and theta_correction_applies(system):
+        # the sweeps without the theta correction: their own product split, which near an
+        # azeotrope can be the better guess (the correction holds the overhead rate of a
+        # split that ignores the azeotrope)
+        plain = _newton(system, initial_estimate(system, case.specs, details, graph.feed_stages, theta=False), options)
+        strategy["second_start"] = {"converged": bool(plain.converged), "newton_iterations": plain.iterations}
+        if plain.converged:
+            newton = plain
+            strategy["rung"] = "second start"
     if not newton.converged and start is None and continuation:
         cmo_flows = np.zeros(graph.stage_count)
         np.add.at(
@@ -294,8 +296,9 @@ def simulate(
             newton = stretched
             strategy["rung"] = "shorter column"
     strategy["chain"] = (
-        "damped Newton (line search, dogleg) from the default start; then homotopy from ideal K-values and CMO "
-        "enthalpies; then, for a long column, the start stretched from a shortened column's solution"
+        "damped Newton (line search, dogleg) from the default start; then from the sweeps' start without the theta "
+        "correction; then homotopy from ideal K-values and CMO enthalpies; then, for a long column, the start "
+        "stretched from a shortened column's solution"
     )
     result = result_from_solution(case, thermo, graph, system, stage_feeds, newton.X, newton)
     check = post_check(result, thermo, graph)
@@ -352,12 +355,16 @@ def _solve_from_shorter_column(
         return None, record
     X0 = stretched_start(short, positions, system.N, system.flow_scale)
     try:
-        newton = solve(
-            system.evaluate, X0, system.temperature_index(), system.flow_mask(), options,
-            describe_variable=system.variable_name, describe_equation=system.equation_name,
-        )
+        newton = _newton(system, X0, options)
     except ConvergenceError as exc:
         record["message"] = str(exc)
         return None, record
     record["newton_iterations"] = newton.iterations
     return newton, record
+
+
+def _newton(system: MeshSystem, X0: np.ndarray, options: NewtonOptions):
+    return solve(
+        system.evaluate, X0, system.temperature_index(), system.flow_mask(), options,
+        describe_variable=system.variable_name, describe_equation=system.equation_name,
+    )

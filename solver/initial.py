@@ -165,7 +165,9 @@ def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.
     return np.maximum(L, floor), np.maximum(V, floor)
 
 
-def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, feed_stage_index: np.ndarray) -> np.ndarray:
+def initial_estimate(
+    system: MeshSystem, specs: tuple[Spec, ...], feed_states, feed_stage_index: np.ndarray, *, theta: bool = True
+) -> np.ndarray:
     """Starting vector X for :class:`~solver.mesh.MeshSystem` from the specs alone."""
     thermo = system.thermo
     N = system.N
@@ -208,7 +210,7 @@ def initial_estimate(system: MeshSystem, specs: tuple[Spec, ...], feed_states, f
 
     def profile(D: float, V_top: float | None = None):
         L, V = cmo_flows(system, D, vapor_for(D) if V_top is None else V_top, stage_feed_totals, stage_q)
-        T, x, l, stripping = wang_henke_sweeps(system, L, V, state["T"], state["x"])
+        T, x, l, stripping = wang_henke_sweeps(system, L, V, state["T"], state["x"], theta=theta)
         state["T"], state["x"] = T, x
         return L, V, T, x, l, stripping
 
@@ -284,6 +286,7 @@ def wang_henke_sweeps(
     *,
     tolerance: float = 1e-3,
     max_sweeps: int = _WANG_HENKE_SWEEPS,
+    theta: bool = True,
 ):
     """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K.
     Returns (T, x, component liquid flows l, stripping factors S with v = S l)."""
@@ -300,10 +303,7 @@ def wang_henke_sweeps(
             factors[t] = V[t] / L[t]
         return factors
 
-    two_products = (
-        system.graph.condenser != "none" and system.graph.has_reboiler
-        and not np.any(system.liquid_draws) and not np.any(system.vapor_draws)
-    )
+    two_products = theta and theta_correction_applies(system)
     for _ in range(max_sweeps):
         stripping = stripping_factors(T, x)
         # natural ordering keeps the elimination in stage order, where the column-wise
@@ -323,6 +323,15 @@ def wang_henke_sweeps(
         if moved < tolerance:
             break
     return T, x, raw, stripping_factors(T, x)
+
+
+def theta_correction_applies(system: MeshSystem) -> bool:
+    """The sweeps correct the product split of a column with exactly two products: a condenser
+    and a reboiler, no side draws."""
+    return (
+        system.graph.condenser != "none" and system.graph.has_reboiler
+        and not np.any(system.liquid_draws) and not np.any(system.vapor_draws)
+    )
 
 
 def theta_correction(l: np.ndarray, top: np.ndarray, bottom: np.ndarray, feed: np.ndarray, distillate: float) -> np.ndarray:

@@ -268,3 +268,31 @@ def test_a_dry_column_is_not_reported_as_converged():
     result = simulate(case)
     assert not result.converged
     assert "almost" in result.message or "no convergence" in result.message
+
+
+def test_the_second_start_is_the_sweeps_without_the_theta_correction(monkeypatch):
+    """Rung 1b: when Newton fails from the default start (here made to fail), the engine tries
+    the sweeps' start without Holland's correction before the homotopy, and records it."""
+    import solver.engine as engine
+
+    case = methanol_water_case(stages=12, feed_stage=7)
+    reference = simulate(case)
+    real_start, real_newton = engine.initial_estimate, engine._newton
+    asked, calls = [], []
+
+    def recording_start(system, specs, details, feed_stages, *, theta=True):
+        asked.append(theta)
+        return real_start(system, specs, details, feed_stages, theta=theta)
+
+    def first_fails(system, X0, options):
+        calls.append(1)
+        result = real_newton(system, X0, options)
+        return dataclasses.replace(result, converged=False) if len(calls) == 1 else result
+
+    monkeypatch.setattr(engine, "initial_estimate", recording_start)
+    monkeypatch.setattr(engine, "_newton", first_fails)
+    result = simulate(case, continuation=False)
+    assert asked == [True, False]
+    assert result.converged and result.strategy["rung"] == "second start"
+    assert result.strategy["second_start"] == {"converged": True, "newton_iterations": result.iterations}
+    np.testing.assert_allclose(result.temperature, reference.temperature, atol=1e-6)

@@ -131,8 +131,8 @@ def test_the_engine_falls_back_to_the_shorter_column(make_case, monkeypatch):
     reference = simulate(case, thermo=thermo)
     real_start = engine.initial_estimate
 
-    def spoiled(system, specs, details, feed_stages):
-        X = real_start(system, specs, details, feed_stages)
+    def spoiled(system, specs, details, feed_stages, *, theta=True):
+        X = real_start(system, specs, details, feed_stages, theta=theta)
         if system.N == case.column.stages:
             T, l, v = system.unpack(X)
             X = system.pack(T[::-1].copy(), l[::-1].copy(), v[::-1].copy())  # the column upside down

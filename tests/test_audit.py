@@ -350,3 +350,26 @@ def test_flags_at_the_shortcut_design_when_the_shortcut_misleads_badly():
     assert under.numbers["shortcut_stages"] + 1 < bound <= under.numbers["rigorous_stages"]
     with pytest.raises(ValueError, match="at least 3"):
         audit_case(load_case(CASES / "lpg_splitter.toml"), max_solves=2)
+
+
+def test_a_shortcut_column_that_does_not_converge_is_a_serious_flag(monkeypatch):
+    """SOLVE_FAILED: every rigorous solve after the case as specified is made to fail; the
+    audit says so, with the column it tried, instead of comparing against a non-answer."""
+    import dataclasses as dc
+
+    import solver.audit as audit_module
+
+    real = audit_module.simulate
+    calls = []
+
+    def failing_after_the_first(case, **kwargs):
+        calls.append(case.column.stages)
+        result = real(case, **kwargs)
+        return result if len(calls) == 1 else dc.replace(result, converged=False, message="made to fail by the test")
+
+    monkeypatch.setattr(audit_module, "simulate", failing_after_the_first)
+    report = audit_case(load_case(CASES / "methanol_water.toml"))
+    failed = flag(report, "SOLVE_FAILED")
+    assert failed.severity == "serious" and "made to fail by the test" in failed.message
+    assert failed.numbers["stages"] == report.shortcut.design.stages
+    assert not any(f.code in ("CMO_DEVIATION", "PURITY_SHORTFALL") for f in report.flags)  # nothing read off a failed solve

@@ -47,6 +47,7 @@ from .case import Case, Spec
 from .engine import simulate
 from .errors import ConvergenceError, SpecError, ThermoError
 from .results import Result
+from .shortening import profile_unknowns
 from .shortcut import BinaryDesign, MulticomponentDesign, design_binary, design_multicomponent, design_ponchon_savarit
 from .shortcut.fug import gilliland_stages
 from .shortcut.mccabe_thiele import binary_problem, check_simple_column, mccabe_thiele, minimum_reflux
@@ -658,17 +659,9 @@ def warm_start(previous: Result, stages: int, feed_stage: int, old_feed_stage: i
     """Scaled unknowns (T, liquid and vapor component flows over the total feed, per stage) for
     a column of ``stages`` stages with the feed on ``feed_stage``, from the profiles of
     ``previous`` stretched section by section."""
-    old = np.arange(1, previous.stage_count + 1, dtype=float)
     where = _section_positions(stages, feed_stage, previous.stage_count, old_feed_stage)
     total = sum(f.flow for feeds in previous.stage_feeds for f in feeds)
-    liquid = previous.liquid_flow[:, None] * previous.x / total
-    vapor = previous.vapor_flow[:, None] * previous.y / total
-
-    def stretch(values: np.ndarray) -> np.ndarray:
-        return np.column_stack([np.interp(where, old, values[:, k]) for k in range(values.shape[1])])
-
-    T = np.interp(where, old, previous.temperature)
-    return np.concatenate([T[:, None], stretch(liquid), stretch(vapor)], axis=1).ravel()
+    return profile_unknowns(previous, where, total)
 
 
 class _BudgetSpent(Exception):

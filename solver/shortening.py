@@ -31,7 +31,7 @@ import numpy as np
 from .case import Case
 from .results import Result
 
-__all__ = ["MIN_STAGES", "anchor_stages", "shortened_case", "stretched_start"]
+__all__ = ["MIN_STAGES", "anchor_stages", "profile_unknowns", "shortened_case", "stretched_start"]
 
 #: Columns with fewer stages are not shortened.
 MIN_STAGES = 30
@@ -94,23 +94,31 @@ def shortened_case(case: Case, ratio: float = 0.5) -> tuple[Case, np.ndarray]:
     return short, positions_array
 
 
-def stretched_start(short: Result, positions: np.ndarray, stages: int, flow_scale: float) -> np.ndarray:
-    """Scaled unknowns of the full column (``stages`` stages; flows over ``flow_scale`` mol/s,
-    the engine's scaling) from the solution ``short`` of the shortened column whose stages sit
-    at ``positions`` on the full numbering: temperatures interpolated linearly, component flows
-    in their logarithms (a flow that is zero at both neighbours, such as the vapor of a total
-    condenser, stays zero)."""
-    numbers = np.arange(1, stages + 1, dtype=float)
-    T = np.interp(numbers, positions, short.temperature)
+def profile_unknowns(solution: Result, at: np.ndarray, flow_scale: float) -> np.ndarray:
+    """Scaled unknowns (T, liquid and vapor component flows over ``flow_scale`` mol/s, the
+    engine's scaling, stage by stage) of a column whose stages sit at the fractional stage
+    numbers ``at`` (1-based) of ``solution``'s column: temperatures interpolated linearly,
+    component flows in their logarithms (a flow that is zero at both neighbours, such as the
+    vapor of a total condenser, stays zero)."""
+    numbers = np.arange(1, solution.stage_count + 1, dtype=float)
+    T = np.interp(at, numbers, solution.temperature)
 
     def stretch(flows: np.ndarray) -> np.ndarray:
         columns = []
         for k in range(flows.shape[1]):
-            logs = np.interp(numbers, positions, np.log(np.maximum(flows[:, k], 1e-300)))
-            zero = np.interp(numbers, positions, (flows[:, k] <= 0.0).astype(float)) >= 1.0
+            logs = np.interp(at, numbers, np.log(np.maximum(flows[:, k], 1e-300)))
+            zero = np.interp(at, numbers, (flows[:, k] <= 0.0).astype(float)) >= 1.0
             columns.append(np.where(zero, 0.0, np.exp(logs)))
         return np.column_stack(columns)
 
-    liquid = stretch(short.liquid_flow[:, None] * short.x / flow_scale)
-    vapor = stretch(short.vapor_flow[:, None] * short.y / flow_scale)
+    liquid = stretch(solution.liquid_flow[:, None] * solution.x / flow_scale)
+    vapor = stretch(solution.vapor_flow[:, None] * solution.y / flow_scale)
     return np.concatenate([T[:, None], liquid, vapor], axis=1).ravel()
+
+
+def stretched_start(short: Result, positions: np.ndarray, stages: int, flow_scale: float) -> np.ndarray:
+    """Scaled unknowns of the full column (``stages`` stages) from the solution ``short`` of
+    the shortened column whose stages sit at ``positions`` on the full numbering (see
+    :func:`profile_unknowns`)."""
+    at = np.interp(np.arange(1, stages + 1, dtype=float), positions, np.arange(1, len(positions) + 1, dtype=float))
+    return profile_unknowns(short, at, flow_scale)

@@ -46,7 +46,7 @@ from ..case import Case, Spec
 from ..errors import SpecError
 from ..thermo.flash import bubble_temperature, dew_temperature
 from ..thermo.package import ThermoPackage
-from .mccabe_thiele import _describe_spec, check_simple_column, feed_condition
+from .simple_column import check_simple_column, describe_spec, feed_condition
 
 __all__ = [
     "KIRKBRIDE_EXPONENT",
@@ -405,12 +405,12 @@ def _fenske_split(specs, names, feed_flows, alpha_h, light, heavy, start):
     if not np.all(np.isfinite(residuals)) or np.max(np.abs(residuals)) > 1e-9:
         raise SpecError(
             "the product specifications cannot be met by a Fenske split of this feed: "
-            + "; ".join(_describe_spec(s_) for s_ in specs)
+            + "; ".join(describe_spec(s_) for s_ in specs)
         )
     if not n_min > 0.0:
         raise SpecError(
             "the product specifications ask for no separation of the keys (Fenske minimum stages "
-            f"{n_min:.4g}): " + "; ".join(_describe_spec(s_) for s_ in specs)
+            f"{n_min:.4g}): " + "; ".join(describe_spec(s_) for s_ in specs)
         )
     return solution.x, n_min, feed_flows * expit(s), feed_flows * expit(-s)
 
@@ -452,22 +452,22 @@ def design_multicomponent(
     energy_specs = [s for s in case.specs if s.kind in _ENERGY_KINDS]
     ignored = [s for s in case.specs if s.kind not in _SPLIT_KINDS + _ENERGY_KINDS]
     if ignored:
-        notes.append("not used by the shortcut: " + "; ".join(_describe_spec(s) for s in ignored))
+        notes.append("not used by the shortcut: " + "; ".join(describe_spec(s) for s in ignored))
     if len(split_specs) != 2:
         raise SpecError(
             "the multicomponent shortcut needs two product specifications (mole fractions, recoveries or product "
             f"rates) to fix the split; the case gives {len(split_specs)}: "
-            + ("; ".join(_describe_spec(s) for s in split_specs) or "none")
+            + ("; ".join(describe_spec(s) for s in split_specs) or "none")
         )
     override = reflux_ratio is not None or reflux_factor is not None
     if override and energy_specs:
-        notes.append("the case's " + "; ".join(_describe_spec(s) for s in energy_specs) + " replaced by the reflux given")
+        notes.append("the case's " + "; ".join(describe_spec(s) for s in energy_specs) + " replaced by the reflux given")
         energy_specs = []
     if not override and len(energy_specs) != 1:
         raise SpecError(
             "the multicomponent shortcut needs one reflux specification (reflux_ratio, boilup_ratio or a duty), or "
             f"reflux_ratio=/reflux_factor= here; the case gives {len(energy_specs)}: "
-            + ("; ".join(_describe_spec(s) for s in energy_specs) or "none")
+            + ("; ".join(describe_spec(s) for s in energy_specs) or "none")
         )
 
     bubble_feed, _ = bubble_temperature(thermo, np.array([mean_pressure]), z[None, :])
@@ -527,7 +527,7 @@ def design_multicomponent(
             else:
                 V = spec.value / latent_bottom + (1.0 - q) * F
             R = V / D - 1.0
-            notes.append(f"reflux ratio {R:.6g} from {_describe_spec(spec)} by the CMO balances")
+            notes.append(f"reflux ratio {R:.6g} from {describe_spec(spec)} by the CMO balances")
     if not R > 0.0:
         raise SpecError(f"the reflux specification gives a reflux ratio of {R:.6g}; it must be positive")
     N = gilliland_stages(n_min, R_min, R)

@@ -47,16 +47,11 @@ from scipy.optimize import brentq
 from ..case import Case
 from ..errors import SpecError
 from ..thermo.package import ThermoPackage
-from .mccabe_thiele import (
-    BinaryDesign,
-    EquilibriumCurve,
-    MinimumReflux,
-    _check_products,
-    _refine_extremum,
-    _step_stages,
-    binary_problem,
-    stepping_fields,
-)
+from .binary_case import binary_problem
+from .equilibrium_curve import EquilibriumCurve, check_product_purities
+from .mccabe_thiele import BinaryDesign
+from .pinches import MinimumReflux, refine_extremum
+from .stepping import step_stages, stepping_fields
 
 __all__ = [
     "EnthalpyConstruction",
@@ -234,7 +229,7 @@ def enthalpy_minimum_reflux(
         grid = np.linspace(lower, x_distillate, _PINCH_GRID)[:-1]
         k = int(np.argmax(extended_to_top(grid)))
         if k > 0:
-            x_t, value = _refine_extremum(extended_to_top, grid, k, maximize=True)
+            x_t, value = refine_extremum(extended_to_top, grid, k, maximize=True)
             if value > best_value + _TANGENT_MARGIN * abs(best_value) + 1e-9:
                 best_value, section, x_pinch = value, "rectifying", x_t
     upper = max(min(x_p, x_distillate), x_bottoms)
@@ -242,7 +237,7 @@ def enthalpy_minimum_reflux(
         grid = np.linspace(x_bottoms, upper, _PINCH_GRID)[1:]
         k = int(np.argmin(extended_to_bottom(grid)))
         if k < grid.size - 1:
-            x_t, bottom_value = _refine_extremum(extended_to_bottom, grid, k, maximize=False)
+            x_t, bottom_value = refine_extremum(extended_to_bottom, grid, k, maximize=False)
             value = F_over_D * feed_enthalpy - B_over_D * bottom_value
             if value > best_value + _TANGENT_MARGIN * abs(best_value) + 1e-9:
                 best_value, section, x_pinch = value, "stripping", x_t
@@ -293,7 +288,7 @@ def ponchon_savarit(
     :class:`EnthalpyConstruction` in ``enthalpy``."""
     if condenser not in ("total", "partial"):
         raise SpecError(f"the binary design needs a total or partial condenser, not {condenser!r}")
-    _check_products(curve, x_distillate, x_bottoms, x_feed)
+    check_product_purities(curve, x_distillate, x_bottoms, x_feed)
     F = float(feed_flow)
     D = F * (x_feed - x_bottoms) / (x_distillate - x_bottoms)
     B = F - D
@@ -333,11 +328,11 @@ def ponchon_savarit(
         return float(_vapor_on_line(enthalpies, x_bottoms, h_bottom, x, enthalpies.liquid_of_x(x), 1.0)[0])
 
     what = f"Ponchon-Savarit at R = {reflux_ratio:.6g}"
-    steps = _step_stages(
+    steps = step_stages(
         curve, x_distillate, x_bottoms, _nan_is_pinch(top, what), _nan_is_pinch(bottom, what),
         condenser=condenser, feed_stage=feed_stage, x_switch=x_switch, what=what,
     )
-    optimal = steps if feed_stage is None else _step_stages(
+    optimal = steps if feed_stage is None else step_stages(
         curve, x_distillate, x_bottoms, _nan_is_pinch(top, what), _nan_is_pinch(bottom, what),
         condenser=condenser, feed_stage=None, x_switch=x_switch, what=what,
     )
@@ -465,7 +460,7 @@ def design_ponchon_savarit(
         notes.append(f"reflux returned at {problem.reflux_temperature:.2f} K")
     R = problem.reflux_ratio
     if R is None:
-        _check_products(problem.curve, problem.x_distillate, problem.x_bottoms, problem.x_feed)
+        check_product_purities(problem.curve, problem.x_distillate, problem.x_bottoms, problem.x_feed)
         pinch, _ = enthalpy_minimum_reflux(
             problem.curve, enthalpies, x_distillate=problem.x_distillate, x_bottoms=problem.x_bottoms,
             x_feed=problem.x_feed, feed_enthalpy=problem.feed_enthalpy, condenser=problem.condenser,

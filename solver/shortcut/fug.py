@@ -325,7 +325,7 @@ def design_multicomponent(
         thermo, split_specs, names, feed_flows, K_feed / K_feed[heavy], light, heavy, top_pressure, bottom_pressure, notes
     )
     alpha = ends.relative_volatility
-    _, n_min, d, b = fenske_split(split_specs, names, feed_flows, alpha, light, heavy, ends.key_ln_ratios)
+    _, N_min, d, b = fenske_split(split_specs, names, feed_flows, alpha, light, heavy, ends.key_ln_ratios)
     D, B = float(d.sum()), float(b.sum())
     x_D, x_B = d / D, b / B
     latent_top = _latent_heat(thermo, x_D, top_pressure)
@@ -337,7 +337,7 @@ def design_multicomponent(
         reflux_ratio, reflux_factor, energy_specs, R_min, q=q, feed_flow=F, distillate_flow=D, bottoms_flow=B,
         latent_top=latent_top, latent_bottom=latent_bottom, condenser=column.condenser, notes=notes,
     )
-    N = gilliland_stages(n_min, R_min, R)
+    N = gilliland_stages(N_min, R_min, R)
     X = (R - R_min) / (R + 1.0)
     Y = float(gilliland_molokanov(X))
     ratio = kirkbride_ratio(B / D, z[heavy], z[light], x_B[light], x_D[heavy])
@@ -375,8 +375,8 @@ def design_multicomponent(
         relative_volatility_top=ends.relative_volatility_top,
         relative_volatility_bottom=ends.relative_volatility_bottom,
         relative_volatility=alpha,
-        minimum_equilibrium_stages=float(n_min),
-        minimum_stages=float(n_min) + offset,
+        minimum_equilibrium_stages=float(N_min),
+        minimum_stages=float(N_min) + offset,
         underwood_roots=underwood.roots,
         distributing_components=tuple(names[i] for i in underwood.distributing),
         minimum_reflux=float(R_min),

@@ -86,10 +86,10 @@ def feed_pinch(
 def refine_extremum(function, grid: np.ndarray, k: int, *, maximize: bool) -> tuple[float, float]:
     """Refine a grid extremum at index k by a bounded scalar search (Brent) between its
     neighbours."""
-    a = float(grid[max(k - 1, 0)])
-    b = float(grid[min(k + 1, grid.size - 1)])
+    left = float(grid[max(k - 1, 0)])
+    right = float(grid[min(k + 1, grid.size - 1)])
     sign = -1.0 if maximize else 1.0
-    found = minimize_scalar(lambda v: sign * float(function(v)), bounds=(a, b), method="bounded", options={"xatol": 1e-13})
+    found = minimize_scalar(lambda v: sign * float(function(v)), bounds=(left, right), method="bounded", options={"xatol": 1e-13})
     x_best, value = float(found.x), float(function(found.x))
     grid_value = float(function(grid[k]))
     if (maximize and grid_value > value) or (not maximize and grid_value < value):

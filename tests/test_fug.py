@@ -1,4 +1,5 @@
-"""Fenske-Underwood-Gilliland-Kirkbride design (solver/shortcut/fug.py).
+"""Fenske-Underwood-Gilliland-Kirkbride design (solver/shortcut/fug.py, fenske.py, underwood.py,
+gilliland_kirkbride.py).
 
 Checks: Fenske's equation and distribution (exact statements for constant relative
 volatility), Underwood's roots bracketed and both Underwood equations satisfied at every root,

@@ -1,4 +1,5 @@
-"""McCabe-Thiele design (solver/shortcut/mccabe_thiele.py).
+"""McCabe-Thiele design (solver/shortcut/mccabe_thiele.py and the equilibrium_curve, binary_case,
+operating_lines, pinches and stepping modules it is built from).
 
 Checks: the stepping against Smoker's analytical solution for constant relative volatility
 (Smoker, Trans. AIChE 34 (1938) 165; the closed form is written out below and checked against

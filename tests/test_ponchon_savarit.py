@@ -1,4 +1,5 @@
-"""Ponchon-Savarit design (solver/shortcut/ponchon_savarit.py).
+"""Ponchon-Savarit design (solver/shortcut/ponchon_savarit.py, enthalpy_diagram.py,
+enthalpy_pinches.py).
 
 Checks: with equal molar latent heats and no sensible heat the construction is McCabe-Thiele's
 (stage by stage); the lever-rule flows close every stage's component and energy balance and the

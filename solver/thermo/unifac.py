@@ -40,7 +40,7 @@ import numpy as np
 
 from solver.errors import CaseError, ThermoError
 from solver.fluids import loose_key
-from solver.thermo.activity import GAS_CONSTANT, ActivityResult
+from solver.thermo.activity import GAS_CONSTANT, ActivityResult, _states
 from solver.thermo.unifac_tables import builtin_groups, builtin_source, load_tables
 
 __all__ = ["UNIFAC", "DortmundUNIFAC"]
@@ -169,22 +169,6 @@ class UNIFAC:
 
     # ----------------------------------------------------------------------------------------
 
-    def _states(self, temperature, x) -> tuple[np.ndarray, np.ndarray]:
-        temperature = np.asarray(temperature, dtype=float)
-        x = np.asarray(x, dtype=float)
-        if x.ndim == 1:
-            x = x[None, :]
-        if temperature.ndim == 0:
-            temperature = np.full(x.shape[0], float(temperature))
-        if x.ndim != 2 or x.shape[1] != self.component_count or temperature.shape != (x.shape[0],):
-            raise ThermoError(
-                f"{self.name} activity model: temperature must have shape (n,) and x shape (n, {self.component_count}); "
-                f"got temperature {temperature.shape} and x {x.shape}"
-            )
-        if not np.all(temperature > 0.0):
-            raise ThermoError(f"{self.name} activity model: temperature must be positive, got {temperature.min()!r} K")
-        return temperature, x
-
     def _psi(self, temperature: np.ndarray, derivatives: bool):
         """Psi (n, g, g) and its first and second temperature derivatives."""
         inverse = (1.0 / temperature)[:, None, None]
@@ -204,7 +188,7 @@ class UNIFAC:
     def evaluate(self, temperature: np.ndarray, x: np.ndarray, derivatives: bool = True) -> ActivityResult:
         """ln gamma and derivatives for temperature (n,) [K] and x (n, c); a single state may be
         a scalar temperature and x of shape (c,)."""
-        temperature, x = self._states(temperature, x)
+        temperature, x = _states(self.name, self.component_count, temperature, x)
         r, q, weights_v = self.r, self.q, self._volume_weights
         area_weights = self._area_weights  # (c, g)
 

@@ -93,8 +93,9 @@ EXCLUDED: tuple[tuple[str, str], ...] = (
     ("Misc/heos_constants.tsv (method HEOS)", "constants of CoolProp/REFPROP reference equations of state: CoolProp "
      "is used directly for its own fluids, and the handbook must stay independent of it (its vapor pressures are "
      "checked against CoolProp)"),
-    ("Critical Properties/DIPPRPinaMartines.tsv (method PINAMARTINES)", "values of a commercial property data bank "
-     "passed on in a paper's supplement as pseudo-experimental data, without a primary source per value"),
+    ("Critical Properties/DIPPRPinaMartines.tsv (method PINAMARTINES)", "critical constants copied from a property "
+     "data bank into a paper's supplement (Pina-Martinez et al., AIChE J. 2022) as pseudo-experimental data, "
+     "without a primary source per value"),
     ("Critical Properties/Yaws Collection.tsv, Phase Change/Yaws Boiling Points.tsv (method YAWS)",
      "a compilation that names no source for its values"),
     ("Misc/joback_predictions.tsv, wilson_jasperson_*, fedors_*, omega_Psat_Tc_predictions.tsv",
@@ -102,7 +103,8 @@ EXCLUDED: tuple[tuple[str, str], ...] = (
     ("Misc/wikidata_properties.tsv, common_chemistry_data.tsv, webbook_constants.tsv",
      "web databases without an evaluation per value; the CRC tables cover the library's compounds"),
     ("Phase Change/Alibakhshi one-coefficient enthalpy of vaporization.tsv",
-     "a one-constant fit over a narrow range (100 K below Tc, 50 K below Tb) of a commercial data bank's values"),
+     "a one-constant regression of a data bank's values, valid only from 50 K below Tb to 100 K below Tc; "
+     "Perry's Table 2-150 gives a full-range correlation"),
     ("Density/COSTALD Parameters.tsv (Z_RA column)", "the source of its Rackett parameters is not stated; the Rackett "
      "equation uses the critical compressibility of the critical table instead"),
 )

@@ -20,8 +20,8 @@ from solver.engine import build_system
 
 def main() -> None:
     case = five_component_case(200)
-    thermo, graph, system, details, _ = build_system(case)
-    X0 = initial_estimate(system, case.specs, details, graph.feed_stages)
+    system = build_system(case)
+    X0 = initial_estimate(system)
     solve(system.evaluate, X0, system.temperature_index(), system.flow_mask(), NewtonOptions())  # warm up
     best = float("inf")
     for _ in range(3):

@@ -31,8 +31,8 @@ def main() -> None:
             result = simulate(case)
             best = min(best, time.perf_counter() - start)
         assert result.converged, result.message
-        thermo, graph, system, details, _ = build_system(case)
-        X0 = initial_estimate(system, case.specs, details, graph.feed_stages)
+        system = build_system(case)
+        X0 = initial_estimate(system)
         newton_best = float("inf")
         for _ in range(3):
             start = time.perf_counter()

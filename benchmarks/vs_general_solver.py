@@ -30,8 +30,8 @@ def main() -> None:
     figures = {}
     for stages in (30, 60):
         case = ideal_four_case(stages)
-        thermo, graph, system, details, _ = build_system(case)
-        X0 = initial_estimate(system, case.specs, details, graph.feed_stages)
+        system = build_system(case)
+        X0 = initial_estimate(system)
 
         ours_seconds = float("inf")
         for _ in range(REPEATS_OURS):

@@ -44,14 +44,15 @@ from typing import Any, Callable, Mapping, Sequence
 import numpy as np
 
 from .case import Case, Spec
-from .engine import simulate
+from .engine import simulate, stage_profile
 from .errors import ConvergenceError, SpecError, ThermoError
 from .results import Result
-from .shortening import profile_unknowns
+from .shortening import stretch_profile
 from .shortcut import BinaryDesign, MulticomponentDesign, design_binary, design_multicomponent, design_ponchon_savarit
 from .shortcut.fug import gilliland_stages
 from .shortcut.mccabe_thiele import binary_problem, check_simple_column, mccabe_thiele, minimum_reflux
 from .shortcut.ponchon_savarit import SaturatedEnthalpies, enthalpy_minimum_reflux
+from .streams import StageProfile
 from .thermo.flash import bubble_temperature, dew_temperature
 from .thermo.package import ThermoPackage
 
@@ -655,13 +656,11 @@ def _section_positions(stages: int, feed_stage: int, old_stages: int, old_feed: 
     return position
 
 
-def warm_start(previous: Result, stages: int, feed_stage: int, old_feed_stage: int) -> np.ndarray:
-    """Scaled unknowns (T, liquid and vapor component flows over the total feed, per stage) for
-    a column of ``stages`` stages with the feed on ``feed_stage``, from the profiles of
-    ``previous`` stretched section by section."""
+def warm_start(previous: Result, stages: int, feed_stage: int, old_feed_stage: int) -> StageProfile:
+    """The start profile of a column of ``stages`` stages with the feed on ``feed_stage``, from
+    the profiles of ``previous`` stretched section by section."""
     where = _section_positions(stages, feed_stage, previous.stage_count, old_feed_stage)
-    total = sum(f.flow for feeds in previous.stage_feeds for f in feeds)
-    return profile_unknowns(previous, where, total)
+    return stretch_profile(stage_profile(previous), where)
 
 
 class _BudgetSpent(Exception):
@@ -686,7 +685,7 @@ class RigorousColumns:
     def spent(self) -> bool:
         return self.count >= self.budget
 
-    def _simulate(self, case: Case, start: np.ndarray | None) -> Result:
+    def _simulate(self, case: Case, start: StageProfile | None) -> Result:
         self.count += 1
         return simulate(case, thermo=self.thermo, start=start)
 

@@ -11,14 +11,18 @@ returned for the record.
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from .initial import initial_estimate
-from .mesh import FeedData, MeshSystem
-from .newton import NewtonOptions, NewtonResult, solve
+from .mesh import MeshSystem
+from .newton import NewtonOptions, NewtonResult, solve_system
+from .streams import FlashedFeed
 from .thermo.homotopy import HomotopyThermo
+
+__all__ = ["MIN_STEP", "ContinuationResult", "PathPoint", "blended_feeds", "continue_to_real_model"]
 
 MIN_STEP = 1.0 / 256.0
 
@@ -45,15 +49,16 @@ class ContinuationResult:
         return self.newton is not None and self.newton.converged
 
 
-def blended_feeds(real: FeedData, cmo_enthalpy_flows: np.ndarray, t: float) -> FeedData:
-    return FeedData(real.component_flows, t * real.enthalpy_flows + (1.0 - t) * cmo_enthalpy_flows, real.states)
+def blended_feeds(feeds: tuple[FlashedFeed, ...], latent_heat: float, t: float) -> tuple[FlashedFeed, ...]:
+    """The feeds with each enthalpy ``t h + (1 - t) (1 - q) lambda``: the real enthalpy at
+    t = 1, the CMO model's (a feed's vapor fraction times one latent heat) at t = 0."""
+    return tuple(
+        dataclasses.replace(feed, h=t * feed.h + (1.0 - t) * ((1.0 - feed.q) * latent_heat)) for feed in feeds
+    )
 
 
 def continue_to_real_model(
     real_system: MeshSystem,
-    specs,
-    feed_details: list[dict],
-    cmo_enthalpy_flows: np.ndarray,
     options: NewtonOptions,
     first_step: float = 0.25,
     max_points: int = 60,
@@ -68,24 +73,17 @@ def continue_to_real_model(
         return MeshSystem(
             graph,
             HomotopyThermo(base, t),
-            blended_feeds(real_system.feeds, cmo_enthalpy_flows, t),
-            [row.spec for row in real_system.spec_rows],
+            blended_feeds(real_system.feeds, base.cmo_latent_heat, t),
+            real_system.specs,
             real_system.component_names,
             condenser_setting=real_system.condenser_setting,
             flow_scale=real_system.flow_scale,
             energy_scale=real_system.energy_scale,
         )
 
-    def newton(system: MeshSystem, X: np.ndarray) -> NewtonResult:
-        return solve(
-            system.evaluate, X, system.temperature_index(), system.flow_mask(), options,
-            describe_variable=system.variable_name, describe_equation=system.equation_name,
-        )
-
     path: list[PathPoint] = []
     start_system = system_at(0.0)
-    X = initial_estimate(start_system, tuple(specs), feed_details, graph.feed_stages)
-    result = newton(start_system, X)
+    result = solve_system(start_system, initial_estimate(start_system), options)
     path.append(PathPoint(0.0, result.converged, result.iterations, result.residual_norm))
     if not result.converged:
         return ContinuationResult(None, tuple(path), 0.0)
@@ -93,7 +91,7 @@ def continue_to_real_model(
     last = None
     while len(path) < max_points:
         target = min(1.0, t + step)
-        result = newton(system_at(target), X)
+        result = solve_system(system_at(target), X, options)
         path.append(PathPoint(target, result.converged, result.iterations, result.residual_norm))
         if result.converged:
             X, t = result.X, target

@@ -19,13 +19,27 @@ from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
 from .feasibility import check_binary_limits, check_specifications
 from .initial import initial_estimate, theta_correction_applies
-from .mesh import CondenserSetting, FeedData, MeshSystem
+from .mesh import CondenserSetting, MeshSystem, feed_sums_by_stage
 from .network import StageGraph, build_stage_graph
-from .newton import NewtonOptions, solve
-from .results import Result, StageFeed
+from .newton import NewtonOptions, NewtonResult, solve_system
+from .results import Result
 from .shortening import MIN_STAGES, shortened_case, stretched_start
+from .streams import FlashedFeed, StageProfile
 from .thermo.flash import feed_state, feed_state_by_phase
 from .thermo.package import ThermoPackage
+
+__all__ = [
+    "FALLBACK_CHAIN",
+    "POST_CHECK_TOLERANCE",
+    "VANISHING_FLOW",
+    "build_system",
+    "case_summary",
+    "flash_feeds",
+    "post_check",
+    "result_from_solution",
+    "simulate",
+    "stage_profile",
+]
 
 POST_CHECK_TOLERANCE = 1e-7
 
@@ -45,17 +59,13 @@ def case_summary(case: Case) -> dict[str, Any]:
     return plain(case)
 
 
-def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[FeedData, list[dict], tuple]:
-    """Flash each feed at its own temperature (or vapor fraction) and pressure; the energy
-    balance takes its rigorous enthalpy, or ``(1 - q) lambda`` under the ``cmo`` model."""
-    N, c = graph.stage_count, len(case.component_names)
-    component_flows = np.zeros((N, c))
-    enthalpy_flows = np.zeros(N)
-    details: list[dict] = []
-    per_stage: list[list[StageFeed]] = [[] for _ in range(N)]
+def flash_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[FlashedFeed, ...]:
+    """Flash each feed at its own temperature (or vapor fraction) and pressure, q judged at its
+    stage's pressure; the energy balance takes its rigorous enthalpy, or ``(1 - q) lambda``
+    under the ``cmo`` model. In the case's order."""
+    flashed = []
     for feed in case.feeds:
-        stage = feed.stage - 1
-        stage_pressure = float(graph.pressures[stage])
+        stage_pressure = float(graph.pressures[feed.stage - 1])
         pressure = feed.pressure if feed.pressure is not None else stage_pressure
         try:
             state = feed_state(
@@ -77,17 +87,21 @@ def feed_data(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[Fee
             enthalpy = (1.0 - state.q) * thermo.cmo_latent_heat
         else:
             enthalpy = state.enthalpy
-        z = np.asarray(feed.composition, dtype=float)
-        component_flows[stage] += feed.flow * z
-        enthalpy_flows[stage] += feed.flow * enthalpy
-        details.append({"flow": feed.flow, "q": state.q})
-        per_stage[stage].append(
-            StageFeed(
-                flow=feed.flow, z=tuple(z.tolist()), h=enthalpy, name=feed.name,
-                temperature=state.temperature, pressure=pressure, vapor_fraction=state.vapor_fraction, q=state.q,
+        flashed.append(
+            FlashedFeed(
+                stage=feed.stage, flow=feed.flow, z=tuple(np.asarray(feed.composition, dtype=float).tolist()), h=enthalpy,
+                q=state.q, name=feed.name, temperature=state.temperature, pressure=pressure,
+                vapor_fraction=state.vapor_fraction,
             )
         )
-    return FeedData(component_flows, enthalpy_flows), details, tuple(tuple(s) for s in per_stage)
+    return tuple(flashed)
+
+
+def stage_profile(result: Result) -> StageProfile:
+    """The stage profile of a result (a start for another solve, see :func:`simulate`)."""
+    return StageProfile(
+        result.temperature, result.pressure, result.liquid_flow, result.vapor_flow, result.x, result.y
+    )
 
 
 def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict[str, float]:
@@ -155,18 +169,21 @@ def _vanishing_streams(result: Result) -> list[str]:
     return found
 
 
-def build_system(case: Case, thermo: ThermoPackage | None = None):
-    """Everything up to the equations: (thermo, graph, system, per-feed details, stage feeds)."""
+def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
+    """Everything up to the equations: the thermo package (``thermo``, or one built from the
+    case), the stage graph, the flashed feeds and the feasibility checks, and the MESH system
+    (which holds all of them)."""
     thermo = thermo or ThermoPackage.from_case(case)
     graph = build_stage_graph(case)
-    feeds, details, stage_feeds = feed_data(case, thermo, graph)
+    feeds = flash_feeds(case, thermo, graph)
+    feed_component_flows, _ = feed_sums_by_stage(feeds, graph.stage_count, len(case.component_names))
     check_specifications(
         case.specs,
         case.component_names,
-        feeds.component_flows.sum(axis=0),
+        feed_component_flows.sum(axis=0),
         float(graph.liquid_draws.sum() + graph.vapor_draws.sum()),
-        [d["q"] for d in details],
-        [d["flow"] for d in details],
+        [feed.q for feed in feeds],
+        [feed.flow for feed in feeds],
         thermo.cmo_latent_heat,
     )
     if len(case.component_names) == 2 and len(case.feeds) == 1 and not case.column.side_draws:
@@ -177,11 +194,11 @@ def build_system(case: Case, thermo: ThermoPackage | None = None):
             thermo,
             float(np.mean(graph.pressures)),
             np.asarray(case.feeds[0].composition),
-            details[0]["q"],
+            feeds[0].q,
             float(graph.stage_count) if all_equilibrium else None,
             graph.condenser,
         )
-    system = MeshSystem(
+    return MeshSystem(
         graph,
         thermo,
         feeds,
@@ -189,18 +206,16 @@ def build_system(case: Case, thermo: ThermoPackage | None = None):
         case.component_names,
         condenser_setting=CondenserSetting(case.column.reflux_temperature, case.column.reflux_subcooling),
     )
-    return thermo, graph, system, details, stage_feeds
 
 
-def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) -> Result:
-    T, l, v = system.unpack(X)
-    fs = system.flow_scale
-    L, V = l.sum(axis=1), v.sum(axis=1)
-    x = l / np.maximum(L, 1e-300)[:, None]
-    y = v / np.maximum(V, 1e-300)[:, None]
-    K = thermo.k_values(T, graph.pressures, x, derivatives=False).K
-    h_L, h_V = system.stage_enthalpies(X)
-    duties = system.stage_duties(X)
+def result_from_solution(case: Case, system: MeshSystem, newton: NewtonResult) -> Result:
+    """The Result of Newton's last point on ``system`` (converged or not, as Newton says; the
+    post-check comes after)."""
+    thermo, graph = system.thermo, system.graph
+    profile = system.profile(newton.X)
+    K = thermo.k_values(profile.temperature, graph.pressures, profile.x, derivatives=False).K
+    h_L, h_V = system.stage_enthalpies(newton.X)
+    duties = system.stage_duties(newton.X)
     return Result(
         title=case.title,
         case=case_summary(case),
@@ -210,12 +225,12 @@ def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) ->
         message=newton.message,
         components=tuple(case.component_names),
         roles=graph.roles,
-        temperature=T.copy(),
-        pressure=graph.pressures.copy(),
-        liquid_flow=L * fs,
-        vapor_flow=V * fs,
-        x=x,
-        y=y,
+        temperature=profile.temperature,
+        pressure=profile.pressure,
+        liquid_flow=profile.liquid_flow,
+        vapor_flow=profile.vapor_flow,
+        x=profile.x,
+        y=profile.y,
         K=K,
         h_liquid=h_L,
         h_vapor=h_V,
@@ -223,7 +238,7 @@ def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) ->
         liquid_draw=graph.liquid_draws.copy(),
         vapor_draw=graph.vapor_draws.copy(),
         duty=duties,
-        stage_feeds=stage_feeds,
+        stage_feeds=tuple(tuple(feed for feed in system.feeds if feed.stage == j + 1) for j in range(system.N)),
         condenser=graph.condenser,
         reboiler="partial" if graph.has_reboiler else "none",
         thermo=thermo.describe(),
@@ -232,76 +247,141 @@ def result_from_solution(case, thermo, graph, system, stage_feeds, X, newton) ->
     )
 
 
+#: The rungs in order, as recorded in ``Result.strategy["chain"]``.
+FALLBACK_CHAIN = (
+    "damped Newton (line search, dogleg) from the default start; then from the sweeps' start without the theta "
+    "correction; then homotopy from ideal K-values and CMO enthalpies; then, for a long column, the start "
+    "stretched from a shortened column's solution"
+)
+
+
 def simulate(
     case: Case,
     *,
     options: NewtonOptions | None = None,
     thermo: ThermoPackage | None = None,
-    start: np.ndarray | None = None,
+    start: StageProfile | None = None,
     continuation: bool = True,
     shortening: int = 2,
 ) -> Result:
     """Solve the column of ``case`` rigorously. Always returns a Result; ``converged`` tells
     whether it may be used.
 
-    The fallback chain: (1) damped Newton from the default start (backtracking line search,
-    then the dogleg path when no step length lowers the residuals), then from the start of the
-    sweeps without the theta correction ("second start"); (2) if that fails, homotopy
-    continuation from ideal K-values and CMO enthalpies to the real model
-    (:mod:`solver.continuation`); (3) for a column of at least
-    :data:`~solver.shortening.MIN_STAGES` stages, the same separation with the runs of plain
-    stages halved is solved first (by this same chain, nested at most ``shortening`` deep) and
-    Newton starts the full column from its profile stretched over the stages
-    (:mod:`solver.shortening`). ``Result.strategy`` records the rung that solved it. Raises
-    :class:`ConvergenceError` only for NaN/inf (naming the stage and variable), and
+    With ``start`` (a profile of this column's stages, e.g. :func:`stage_profile` of a
+    result) Newton starts from it, and nothing else is tried. Without it, the fallback chain:
+    (1) damped Newton from the default start (backtracking line search, then the dogleg path
+    when no step length lowers the residuals), then from the start of the sweeps without the
+    theta correction ("second start"); (2) if that fails, homotopy continuation from ideal
+    K-values and CMO enthalpies to the real model (:mod:`solver.continuation`); (3) for a
+    column of at least :data:`~solver.shortening.MIN_STAGES` stages, the same separation with
+    the runs of plain stages halved is solved first (by this same chain, nested at most
+    ``shortening`` deep) and Newton starts the full column from its profile stretched over the
+    stages (:mod:`solver.shortening`). ``Result.strategy`` records the rung that solved it.
+    Raises :class:`ConvergenceError` only for NaN/inf (naming the stage and variable), and
     :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for bad input."""
-    thermo, graph, system, details, stage_feeds = build_system(case, thermo)
+    system = build_system(case, thermo)
     options = options or NewtonOptions()
-    X0 = start if start is not None else initial_estimate(system, case.specs, details, graph.feed_stages)
-    newton = _newton(system, X0, options)
+    if start is not None:
+        newton = solve_system(system, system.unknowns(start), options)
+        strategy = _first_rung_record(newton)
+    else:
+        newton, strategy = _fallback_chain(case, system, options, continuation, shortening)
+    strategy["chain"] = FALLBACK_CHAIN
+    return _judged(result_from_solution(case, system, newton), system, strategy)
+
+
+def _first_rung_record(newton: NewtonResult) -> dict[str, Any]:
     full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
-    strategy: dict[str, Any] = {
+    return {
         "rung": ("newton" if full_steps else "damped newton") if newton.converged else None,
         "newton_iterations": newton.iterations,
     }
-    if not newton.converged and start is None and theta_correction_applies(system):
-        # the sweeps without the theta correction: their own product split, which near an
-        # azeotrope can be the better guess (the correction holds the overhead rate of a
-        # split that ignores the azeotrope)
-        plain = _newton(system, initial_estimate(system, case.specs, details, graph.feed_stages, theta=False), options)
-        strategy["second_start"] = {"converged": bool(plain.converged), "newton_iterations": plain.iterations}
-        if plain.converged:
-            newton = plain
-            strategy["rung"] = "second start"
-    if not newton.converged and start is None and continuation:
-        cmo_flows = np.zeros(graph.stage_count)
-        np.add.at(
-            cmo_flows,
-            graph.feed_stages,
-            [d["flow"] * (1.0 - d["q"]) * thermo.cmo_latent_heat for d in details],
-        )
-        path = continue_to_real_model(system, case.specs, details, cmo_flows, options)
-        strategy["homotopy_path"] = [point.as_dict() for point in path.path]
-        strategy["homotopy_reached"] = path.reached
-        if path.converged:
-            newton = path.newton
-            strategy["rung"] = "homotopy"
-        else:
-            strategy["rung"] = None
-    if not newton.converged and start is None and shortening > 0 and case.column.stages >= MIN_STAGES:
-        stretched, record = _solve_from_shorter_column(case, thermo, system, options, continuation, shortening)
-        if record is not None:
-            strategy["shortened_column"] = record
-        if stretched is not None and stretched.converged:
-            newton = stretched
-            strategy["rung"] = "shorter column"
-    strategy["chain"] = (
-        "damped Newton (line search, dogleg) from the default start; then from the sweeps' start without the theta "
-        "correction; then homotopy from ideal K-values and CMO enthalpies; then, for a long column, the start "
-        "stretched from a shortened column's solution"
+
+
+def _fallback_chain(
+    case: Case, system: MeshSystem, options: NewtonOptions, continuation: bool, shortening: int
+) -> tuple[NewtonResult, dict[str, Any]]:
+    """Newton from the default start, then each later rung in turn until one converges: the
+    last Newton result and the record for ``Result.strategy``."""
+    newton = solve_system(system, initial_estimate(system), options)
+    strategy = _first_rung_record(newton)
+    later_rungs = (
+        ("second start", lambda: _from_second_start(system, options)),
+        ("homotopy", lambda: _by_homotopy(system, options, continuation)),
+        ("shorter column", lambda: _from_shorter_column(case, system, options, continuation, shortening)),
     )
-    result = result_from_solution(case, thermo, graph, system, stage_feeds, newton.X, newton)
-    check = post_check(result, thermo, graph)
+    for name, rung in later_rungs:
+        if newton.converged:
+            break
+        found, record = rung()
+        strategy.update(record)
+        if found is not None and found.converged:
+            newton, strategy["rung"] = found, name
+    return newton, strategy
+
+
+def _from_second_start(system: MeshSystem, options: NewtonOptions) -> tuple[NewtonResult | None, dict[str, Any]]:
+    """Rung 1b, on a column with two products: Newton from the sweeps without the theta
+    correction, whose own product split near an azeotrope can be the better guess (the
+    correction holds the overhead rate of a split that ignores the azeotrope)."""
+    if not theta_correction_applies(system):
+        return None, {}
+    newton = solve_system(system, initial_estimate(system, correct_split=False), options)
+    return newton, {"second_start": {"converged": bool(newton.converged), "newton_iterations": newton.iterations}}
+
+
+def _by_homotopy(system: MeshSystem, options: NewtonOptions, enabled: bool) -> tuple[NewtonResult | None, dict[str, Any]]:
+    """Rung 2 (unless not ``enabled``): continuation from ideal K-values and CMO enthalpies to
+    the real model."""
+    if not enabled:
+        return None, {}
+    path = continue_to_real_model(system, options)
+    record = {"homotopy_path": [point.as_dict() for point in path.path], "homotopy_reached": path.reached}
+    return path.newton, record
+
+
+def _from_shorter_column(
+    case: Case, system: MeshSystem, options: NewtonOptions, continuation: bool, depth: int
+) -> tuple[NewtonResult | None, dict[str, Any]]:
+    """Rung 3, for a long column: solve the case with its runs of plain stages halved (by the
+    whole chain, ``depth - 1`` deep), then Newton on the full column from that profile
+    stretched. Returns (Newton result or None, the record for ``Result.strategy``)."""
+    if depth <= 0 or case.column.stages < MIN_STAGES:
+        return None, {}
+    short_case, positions = shortened_case(case, 0.5)
+    if short_case.column.stages >= case.column.stages - 2:
+        return None, {}
+    record: dict[str, Any] = {"stages": short_case.column.stages}
+    outcome = {"shortened_column": record}
+    try:
+        short = simulate(short_case, options=options, thermo=system.thermo, continuation=continuation, shortening=depth - 1)
+    except (CaseError, SpecError, ThermoError, ConvergenceError) as exc:
+        record.update(converged=False, message=str(exc))
+        return None, outcome
+    record.update(
+        converged=bool(short.converged),
+        rung=short.strategy.get("rung"),
+        strategy={k: v for k, v in short.strategy.items() if k != "chain"},
+    )
+    if not short.converged:
+        record["message"] = short.message
+        return None, outcome
+    start = stretched_start(stage_profile(short), positions, system.N)
+    try:
+        newton = solve_system(system, system.unknowns(start), options)
+    except ConvergenceError as exc:
+        record["message"] = str(exc)
+        return None, outcome
+    record["newton_iterations"] = newton.iterations
+    return newton, outcome
+
+
+def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Result:
+    """The result with the post-check, the strategy record and the final verdict: converged
+    only if Newton met its tolerance, the post-check passed, no product or internal flow
+    vanished and every temperature lies within the property models' range."""
+    thermo = system.thermo
+    check = post_check(result, thermo, system.graph)
     message = result.message
     converged = result.converged
     if converged:
@@ -328,43 +408,3 @@ def simulate(
             converged = False
             message = f"solution outside the property models' range: {exc}"
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)
-
-
-def _solve_from_shorter_column(
-    case: Case, thermo: ThermoPackage, system: MeshSystem, options: NewtonOptions, continuation: bool, depth: int
-):
-    """Rung 3 of the fallback chain: solve the case with its runs of plain stages halved, then
-    Newton on the full column from that profile stretched. Returns (Newton result or None, the
-    record for ``Result.strategy``, or None when the shortened column is no shorter)."""
-    short_case, positions = shortened_case(case, 0.5)
-    if short_case.column.stages >= case.column.stages - 2:
-        return None, None
-    record: dict[str, Any] = {"stages": short_case.column.stages}
-    try:
-        short = simulate(short_case, options=options, thermo=thermo, continuation=continuation, shortening=depth - 1)
-    except (CaseError, SpecError, ThermoError, ConvergenceError) as exc:
-        record.update(converged=False, message=str(exc))
-        return None, record
-    record.update(
-        converged=bool(short.converged),
-        rung=short.strategy.get("rung"),
-        strategy={k: v for k, v in short.strategy.items() if k != "chain"},
-    )
-    if not short.converged:
-        record["message"] = short.message
-        return None, record
-    X0 = stretched_start(short, positions, system.N, system.flow_scale)
-    try:
-        newton = _newton(system, X0, options)
-    except ConvergenceError as exc:
-        record["message"] = str(exc)
-        return None, record
-    record["newton_iterations"] = newton.iterations
-    return newton, record
-
-
-def _newton(system: MeshSystem, X0: np.ndarray, options: NewtonOptions):
-    return solve(
-        system.evaluate, X0, system.temperature_index(), system.flow_mask(), options,
-        describe_variable=system.variable_name, describe_equation=system.equation_name,
-    )

@@ -24,6 +24,8 @@ import numpy as np
 from .case import Spec
 from .errors import SpecError
 
+__all__ = ["check_binary_limits", "check_specifications"]
+
 
 def check_specifications(
     specs: Sequence[Spec],
@@ -35,50 +37,69 @@ def check_specifications(
     latent_heat: float,
 ) -> None:
     """Raise :class:`SpecError` for a spec set that the overall balances already rule out.
-    ``feed_flows (c,)`` mol/s of each component in all feeds together."""
-    names = list(component_names)
+    ``feed_flows (c,)`` mol/s of each component in all feeds together; ``feed_q`` and
+    ``feed_totals`` (mol/s) per feed; ``latent_heat`` a mean molar latent heat (J/mol)."""
     F = float(np.sum(feed_flows))
     F_net = F - side_draw_total
-    kinds = [s.kind for s in specs]
-
-    def label(spec: Spec) -> str:
-        return spec.key or spec.kind
-
     rates = {s.kind: s for s in specs if s.kind in ("distillate_rate", "bottoms_rate")}
+    _check_product_rates(rates, F, F_net, side_draw_total)
+    _check_fractions_and_recoveries(specs, len(component_names))
+    _check_purity_bounds(specs, list(component_names), rates, feed_flows, F_net)
+    _check_reboiler_duty(specs, feed_q, feed_totals, latent_heat)
+
+
+def _label(spec: Spec) -> str:
+    return spec.key or spec.kind
+
+
+def _check_product_rates(rates: dict[str, Spec], F: float, F_net: float, side_draw_total: float) -> None:
+    """Both product rates given (D + B = F), or a rate outside (0, net feed)."""
     if len(rates) == 2:
         D, B = rates["distillate_rate"], rates["bottoms_rate"]
         raise SpecError(
-            f"{label(D)} and {label(B)} fix one degree of freedom twice: D + B must equal the net feed "
+            f"{_label(D)} and {_label(B)} fix one degree of freedom twice: D + B must equal the net feed "
             f"({F_net * 3.6:.6g} kmol/h); give one of them and a second, independent spec"
         )
     for spec in rates.values():
         if not 0.0 < spec.value < F_net:
             raise SpecError(
-                f"{label(spec)} = {spec.value * 3.6:.6g} kmol/h is impossible: a product rate must lie between 0 and "
+                f"{_label(spec)} = {spec.value * 3.6:.6g} kmol/h is impossible: a product rate must lie between 0 and "
                 f"the net feed, {F_net * 3.6:.6g} kmol/h (feeds {F * 3.6:.6g} kmol/h less side draws "
                 f"{side_draw_total * 3.6:.6g} kmol/h)"
             )
+
+
+def _check_fractions_and_recoveries(specs: Sequence[Spec], component_count: int) -> None:
+    """A mole fraction given twice, both mole fractions of a binary product, a recovery outside
+    (0, 1], or one component's recovery to both products."""
     for product in ("distillate", "bottoms"):
         fractions = [s for s in specs if s.kind == "mole_fraction" and s.product == product]
         if len({s.component for s in fractions}) < len(fractions):
-            raise SpecError(f"{', '.join(label(s) for s in fractions)}: the same mole fraction is given twice")
-        if len(names) == 2 and len(fractions) == 2:
+            raise SpecError(f"{', '.join(_label(s) for s in fractions)}: the same mole fraction is given twice")
+        if component_count == 2 and len(fractions) == 2:
             raise SpecError(
-                f"{label(fractions[0])} and {label(fractions[1])} fix the same thing twice: the two mole fractions of "
+                f"{_label(fractions[0])} and {_label(fractions[1])} fix the same thing twice: the two mole fractions of "
                 f"a binary {product} sum to one"
             )
     recoveries: dict[str, list[Spec]] = {}
     for spec in specs:
         if spec.kind == "recovery":
             if not 0.0 < spec.value <= 1.0:
-                raise SpecError(f"{label(spec)} = {spec.value:g}: a recovery must lie in (0, 1]")
+                raise SpecError(f"{_label(spec)} = {spec.value:g}: a recovery must lie in (0, 1]")
             recoveries.setdefault(spec.component, []).append(spec)
     for component, given in recoveries.items():
         if len(given) > 1:
             raise SpecError(
-                f"{', '.join(label(s) for s in given)}: the recoveries of {component} to the two products sum to one, "
+                f"{', '.join(_label(s) for s in given)}: the recoveries of {component} to the two products sum to one, "
                 "so they fix the same thing twice"
             )
+
+
+def _check_purity_bounds(
+    specs: Sequence[Spec], names: list[str], rates: dict[str, Spec], feed_flows: np.ndarray, F_net: float
+) -> None:
+    """A product mole fraction above what the component balance allows with a given product
+    rate: ``x_D,i <= F_i / D`` (and the same with the other product's rate given)."""
     for spec in specs:
         if spec.kind != "mole_fraction":
             continue
@@ -88,7 +109,7 @@ def check_specifications(
             bound = float(feed_flows[i]) / rate.value
             if spec.value > bound:
                 raise SpecError(
-                    f"{label(spec)} = {spec.value:g} cannot be met with {label(rate)} = {rate.value * 3.6:.6g} kmol/h: "
+                    f"{_label(spec)} = {spec.value:g} cannot be met with {_label(rate)} = {rate.value * 3.6:.6g} kmol/h: "
                     f"even all of the {component_label(spec)} fed ({feed_flows[i] * 3.6:.6g} kmol/h) would give at most "
                     f"{bound:.6g}"
                 )
@@ -98,18 +119,23 @@ def check_specifications(
             bound = float(feed_flows[i]) / product_rate
             if spec.value > bound:
                 raise SpecError(
-                    f"{label(spec)} = {spec.value:g} cannot be met with {label(other)} = {other.value * 3.6:.6g} kmol/h "
+                    f"{_label(spec)} = {spec.value:g} cannot be met with {_label(other)} = {other.value * 3.6:.6g} kmol/h "
                     f"(so {spec.product} {product_rate * 3.6:.6g} kmol/h): at most {bound:.6g}"
                 )
-    if "reboiler_duty" in kinds:
-        spec = next(s for s in specs if s.kind == "reboiler_duty")
-        needed = sum(max(q - 1.0, 0.0) * flow for q, flow in zip(feed_q, feed_totals)) * latent_heat
-        if spec.value <= needed:
-            raise SpecError(
-                f"{label(spec)} = {spec.value / 1e3:.6g} kW is too small to boil anything: the subcooled feed alone "
-                f"needs about {needed / 1e3:.6g} kW to reach its boiling point (q - 1 times its flow and a mean latent "
-                f"heat of {latent_heat / 1e3:.4g} kJ/mol)"
-            )
+
+
+def _check_reboiler_duty(specs: Sequence[Spec], feed_q: Sequence[float], feed_totals: Sequence[float], latent_heat: float) -> None:
+    """A reboiler duty that does not bring the subcooled feeds to their boiling point."""
+    spec = next((s for s in specs if s.kind == "reboiler_duty"), None)
+    if spec is None:
+        return
+    needed = sum(max(q - 1.0, 0.0) * flow for q, flow in zip(feed_q, feed_totals)) * latent_heat
+    if spec.value <= needed:
+        raise SpecError(
+            f"{_label(spec)} = {spec.value / 1e3:.6g} kW is too small to boil anything: the subcooled feed alone "
+            f"needs about {needed / 1e3:.6g} kW to reach its boiling point (q - 1 times its flow and a mean latent "
+            f"heat of {latent_heat / 1e3:.4g} kJ/mol)"
+        )
 
 
 def component_label(spec: Spec) -> str:

@@ -15,6 +15,11 @@
 
 The sweeps use the stage graph's inflow matrices; the CMO flow estimate walks the stages top
 to bottom and so assumes one vertical chain (a plain column).
+
+Everything here works in the system's scaled flows (fractions of the total feed), and the start
+is handed over as the system's scaled unknowns: a detour through a profile in SI units would
+move the start by rounding (a few units in the last place), and some long, pinched columns
+follow a different Newton path from a start that differs by so little.
 """
 
 from __future__ import annotations
@@ -29,6 +34,17 @@ from .case import Spec
 from .errors import ThermoError
 from .mesh import TEMPERATURE_SCALE, MeshSystem
 from .thermo.flash import bubble_temperature
+
+__all__ = [
+    "cmo_flows",
+    "component_balance_matrix",
+    "estimate_split",
+    "fenske_split",
+    "initial_estimate",
+    "theta_correction",
+    "theta_correction_applies",
+    "wang_henke_sweeps",
+]
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
 _PROFILE_SPECS = ("mole_fraction", "recovery", "stage_temperature")  # met by moving D on the CMO profile
@@ -174,92 +190,125 @@ def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.
     return np.maximum(L, floor), np.maximum(V, floor)
 
 
-def initial_estimate(
-    system: MeshSystem, specs: tuple[Spec, ...], feed_states, feed_stage_index: np.ndarray, *, theta: bool = True
-) -> np.ndarray:
-    """Starting vector X for :class:`~solver.mesh.MeshSystem` from the specs alone."""
+def initial_estimate(system: MeshSystem, *, correct_split: bool = True) -> np.ndarray:
+    """The default start of ``system`` from its feeds and specs alone (steps 1-3 of the module
+    docstring), as the system's scaled unknowns (:meth:`~solver.mesh.MeshSystem.pack`; see
+    the module docstring for why not a profile in SI). ``correct_split=False`` leaves out
+    Holland's theta correction of the product split in the sweeps (the engine's second
+    start)."""
+    feed_totals = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
+    q_values = np.array([feed.q for feed in system.feeds])
+    D, top_vapor, top, adjustable = estimate_split(system, system.specs, q_values, feed_totals, _feed_volatilities(system))
+    T, x = _profile_between_products(system, top)
+    profiles = _CmoProfiles(system, top_vapor, feed_totals, q_values, T, x, correct_split)
+    if adjustable:
+        D = _meet_profile_specs(system, profiles, D)
+    L, V, T, x, l, stripping = profiles.at(D)
+    liquid, vapor = _start_component_flows(L, V, x, l, stripping)
+    if system.total_condenser:
+        t = system.top
+        setting = system.condenser_setting
+        if setting.reflux_temperature is not None:
+            T[t] = setting.reflux_temperature
+        elif setting.reflux_subcooling:
+            T[t] = T[t] - setting.reflux_subcooling
+    return system.pack(T, liquid, vapor)
+
+
+def _feed_volatilities(system: MeshSystem) -> np.ndarray:
+    """ln of each component's K-value relative to the feed's mean, at the bubble point of all
+    the feeds together at the column's mean pressure."""
     thermo = system.thermo
-    N = system.N
-    fs = system.flow_scale
-    feed_totals = np.array([s["flow"] for s in feed_states]) / fs
-    q_values = np.array([s["q"] for s in feed_states])
     z_total = system.total_feed_by_component / system.total_feed_by_component.sum()
     mean_pressure = float(np.mean(system.pressures))
     t_feed, _ = bubble_temperature(thermo, np.array([mean_pressure]), z_total[None, :])
     K_feed = thermo.k_values(t_feed, np.array([mean_pressure]), z_total[None, :], derivatives=False).K[0]
-    ln_alpha = np.log(K_feed) - np.log(np.exp(np.sum(z_total * np.log(K_feed))))
+    return np.log(K_feed) - np.log(np.exp(np.sum(z_total * np.log(K_feed))))
 
-    D, top_vapor, top, adjustable = estimate_split(system, specs, q_values, feed_totals, ln_alpha)
+
+def _profile_between_products(system: MeshSystem, top: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Liquid compositions linear between the estimated products (overhead component flows
+    ``top``, scaled) and temperatures at their bubble points, stage by stage."""
+    thermo = system.thermo
     bottom = system.total_feed_by_component - top
-    stage_feed_totals = np.zeros(N)
-    stage_vapor = np.zeros(N)
-    np.add.at(stage_feed_totals, feed_stage_index, feed_totals)
-    np.add.at(stage_vapor, feed_stage_index, feed_totals * (1.0 - np.clip(q_values, -1.0, 2.0)))
-    stage_q = np.where(stage_feed_totals > 0, 1.0 - stage_vapor / np.maximum(stage_feed_totals, 1e-300), 1.0)
-
-    # temperatures between the bubble points of the estimated products
     x_top = top / top.sum()
     x_bottom = bottom / bottom.sum()
-    ends = np.array([x_top, x_bottom])
-    t_ends, _ = bubble_temperature(thermo, system.pressures[[0, -1]], ends)
-    weights = np.linspace(0.0, 1.0, N)[:, None]
+    t_ends, _ = bubble_temperature(thermo, system.pressures[[0, -1]], np.array([x_top, x_bottom]))
+    weights = np.linspace(0.0, 1.0, system.N)[:, None]
     x = (1 - weights) * x_top + weights * x_bottom
     T = (1 - weights[:, 0]) * t_ends[0] + weights[:, 0] * t_ends[1]
     try:
         T, _ = bubble_temperature(thermo, system.pressures, x, guess=T)
     except ThermoError:
         pass
+    return T, x
 
-    state = {"T": T, "x": x, "reflux_factor": None}
 
-    def vapor_for(D: float) -> float:
-        if state["reflux_factor"] is not None:
-            return state["reflux_factor"] * D
-        return top_vapor(D)
+class _CmoProfiles:
+    """CMO flows and the bubble-point sweeps on them for a trial overhead rate D (scaled), each
+    trial's sweeps started from the temperatures and compositions the last one left."""
 
-    def profile(D: float, V_top: float | None = None):
-        L, V = cmo_flows(system, D, vapor_for(D) if V_top is None else V_top, stage_feed_totals, stage_q)
-        T, x, l, stripping = wang_henke_sweeps(system, L, V, state["T"], state["x"], theta=theta)
-        state["T"], state["x"] = T, x
+    def __init__(self, system: MeshSystem, top_vapor, feed_totals, q_values, T, x, correct_split: bool) -> None:
+        self.system = system
+        self.top_vapor = top_vapor
+        self.correct_split = correct_split
+        self.T, self.x = T, x
+        self.reflux_factor: float | None = None  # V_top / D = R + 1, once moved to meet a second spec
+        self.stage_feed_totals = np.zeros(system.N)
+        stage_vapor = np.zeros(system.N)
+        feed_stages = system.graph.feed_stages
+        np.add.at(self.stage_feed_totals, feed_stages, feed_totals)
+        np.add.at(stage_vapor, feed_stages, feed_totals * (1.0 - np.clip(q_values, -1.0, 2.0)))
+        self.stage_q = np.where(
+            self.stage_feed_totals > 0, 1.0 - stage_vapor / np.maximum(self.stage_feed_totals, 1e-300), 1.0
+        )
+
+    def vapor_for(self, D: float) -> float:
+        if self.reflux_factor is not None:
+            return self.reflux_factor * D
+        return self.top_vapor(D)
+
+    def at(self, D: float, V_top: float | None = None):
+        """(L, V, T, x, l, S) of the sweeps on the CMO flows for D (and V_top, if given)."""
+        L, V = cmo_flows(self.system, D, self.vapor_for(D) if V_top is None else V_top, self.stage_feed_totals, self.stage_q)
+        T, x, l, stripping = wang_henke_sweeps(self.system, L, V, self.T, self.x, correct_split=self.correct_split)
+        self.T, self.x = T, x
         return L, V, T, x, l, stripping
 
-    profile_specs = [spec for spec in specs if spec.kind in _PROFILE_SPECS]
-    F_net = system.net_feed
-    if adjustable and profile_specs:
-        first = profile_specs[0]
-        second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None
-        for _ in range(2 if second is not None else 1):
-            D = _root_by_walking(
-                lambda trial: _profile_spec_error(system, first, profile(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-5 * F_net
-            )
-            if second is None:
-                break
-            factor = vapor_for(D) / D  # V_top / D = R + 1
-            factor = _root_by_walking(
-                lambda trial: _profile_spec_error(system, second, profile(D, trial * D)), factor, 1.05, 200.0, 1e-4
-            )
-            state["reflux_factor"] = factor
-    L, V, T, x, l, stripping = profile(D)
 
-    t = system.top
+def _meet_profile_specs(system: MeshSystem, profiles: _CmoProfiles, D: float) -> float:
+    """Move D until the CMO profile meets the first composition, recovery or temperature spec;
+    with a condenser and a second such spec, move the reflux for it in turn (twice)."""
+    profile_specs = [spec for spec in system.specs if spec.kind in _PROFILE_SPECS]
+    if not profile_specs:
+        return D
+    F_net = system.net_feed
+    first = profile_specs[0]
+    second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None
+    for _ in range(2 if second is not None else 1):
+        D = _root_by_walking(
+            lambda trial: _profile_spec_error(system, first, profiles.at(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-5 * F_net
+        )
+        if second is None:
+            break
+        factor = profiles.vapor_for(D) / D  # V_top / D = R + 1
+        factor = _root_by_walking(
+            lambda trial: _profile_spec_error(system, second, profiles.at(D, trial * D)), factor, 1.05, 200.0, 1e-4
+        )
+        profiles.reflux_factor = factor
+    return D
+
+
+def _start_component_flows(L, V, x, l, stripping) -> tuple[np.ndarray, np.ndarray]:
+    """Liquid and vapor component flows (scaled) of the start from the last sweep."""
     if np.all(l.sum(axis=1) <= 2.0 * L):
         # the component flows of the last sweep satisfy the component balances with v = S l
-        l_flows = l
-        v_flows = stripping * l
-    else:
-        # where an intermediate component accumulates between the sections the raw flows of a
-        # sweep run far off scale: keep the compositions, with the CMO totals
-        y = stripping * x
-        y = y / y.sum(axis=1, keepdims=True)
-        l_flows = L[:, None] * x
-        v_flows = V[:, None] * y
-    if system.total_condenser:
-        setting = system.condenser_setting
-        if setting.reflux_temperature is not None:
-            T[t] = setting.reflux_temperature
-        elif setting.reflux_subcooling:
-            T[t] = T[t] - setting.reflux_subcooling
-    return system.pack(T, l_flows, v_flows)
+        return l, stripping * l
+    # where an intermediate component accumulates between the sections the raw flows of a
+    # sweep run far off scale: keep the compositions, with the CMO totals
+    y = stripping * x
+    y = y / y.sum(axis=1, keepdims=True)
+    return L[:, None] * x, V[:, None] * y
 
 
 def component_balance_matrix(system: MeshSystem, L: np.ndarray, V: np.ndarray, stripping: np.ndarray) -> sp.csc_matrix:
@@ -295,10 +344,12 @@ def wang_henke_sweeps(
     *,
     tolerance: float = 1e-3,
     max_sweeps: int = _WANG_HENKE_SWEEPS,
-    theta: bool = True,
+    correct_split: bool = True,
 ):
-    """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K.
-    Returns (T, x, component liquid flows l, stripping factors S with v = S l)."""
+    """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K;
+    with ``correct_split`` (and two products) Holland's theta correction holds the overhead
+    total at ``V[top]``. Returns (T, x, component liquid flows l, stripping factors S with
+    v = S l)."""
     thermo = system.thermo
     N, c = system.N, system.c
     t = system.top
@@ -312,7 +363,7 @@ def wang_henke_sweeps(
             factors[t] = V[t] / L[t]
         return factors
 
-    two_products = theta and theta_correction_applies(system)
+    two_products = correct_split and theta_correction_applies(system)
     for _ in range(max_sweeps):
         stripping = stripping_factors(T, x)
         # natural ordering keeps the elimination in stage order, where the column-wise

@@ -2,8 +2,10 @@
 
 Unknowns per stage j (2c+1, stage-major): temperature ``T_j`` (K) and the component flows of
 liquid ``l_ij`` and vapor ``v_ij`` leaving the stage for its neighbours, divided by
-``flow_scale`` (the total feed). Side draws take the stage's own composition:
-``u_ij = U_j x_ij``, ``w_ij = W_j y_ij``.
+``flow_scale`` (the total feed). This module alone knows that layout: everything else hands
+it a :class:`~solver.streams.StageProfile` (SI) and gets one back
+(:meth:`MeshSystem.unknowns`, :meth:`MeshSystem.profile`). Side draws take the stage's own
+composition: ``u_ij = U_j x_ij``, ``w_ij = W_j y_ij``.
 
 Equations per stage (the formulation of Naphtali & Sandholm, AIChE J. 17 (1971) 148):
 
@@ -13,6 +15,10 @@ Equations per stage (the formulation of Naphtali & Sandholm, AIChE J. 17 (1971) 
   stage (their sum over i is the bubble-point condition, so no separate summation equation);
 * enthalpy balance  ``(L+U) h_L + (V+W) h_V - sum_in L h_L - sum_in V h_V - H_F - Q = 0``,
   divided by ``flow_scale * energy_scale``.
+
+Notation in the code follows these formulas: ``L``, ``V`` total flows, ``U``, ``W`` side draws
+of liquid and vapor, ``E`` Murphree efficiencies, ``K`` K-values, ``h_L``, ``h_V`` molar
+enthalpies of the streams in each stage's liquid and vapor slots.
 
 A total condenser's equilibrium rows become ``y_i - x_i = 0`` (i < c) and the bubble-point
 condition of the reflux at ``T + subcooling`` (or ``T - T_reflux = 0``). The enthalpy balances
@@ -34,20 +40,21 @@ import scipy.sparse as sp
 from .case import Spec
 from .errors import SpecError
 from .network import StageGraph
+from .streams import FlashedFeed, StageProfile
+
+__all__ = [
+    "TEMPERATURE_SCALE",
+    "CondenserSetting",
+    "Evaluation",
+    "MeshSystem",
+    "SpecRow",
+    "assign_specs",
+    "feed_sums_by_stage",
+]
 
 TEMPERATURE_SCALE = 10.0  # K, divides temperature specification residuals
 
-_RATIO_SPECS = ("reflux_ratio", "boilup_ratio")
-
-
-@dataclass(frozen=True)
-class FeedData:
-    """Feeds as fixed streams: ``component_flows (N, c)`` mol/s and ``enthalpy_flows (N,)`` W
-    summed per stage, plus the per-feed detail for reports."""
-
-    component_flows: np.ndarray
-    enthalpy_flows: np.ndarray
-    states: tuple = ()
+_TINY = 1e-300  # floor of a total flow that divides component flows
 
 
 @dataclass(frozen=True)
@@ -69,6 +76,58 @@ class SpecRow:
 class Evaluation:
     residuals: np.ndarray
     jacobian: sp.csc_matrix | None
+
+
+@dataclass(frozen=True)
+class _StageState:
+    """Flows, compositions and properties of every stage at one point, shared by the residuals
+    and the Jacobian (flows scaled by ``flow_scale``)."""
+
+    T: np.ndarray
+    l: np.ndarray
+    v: np.ndarray
+    L: np.ndarray
+    V: np.ndarray
+    L_safe: np.ndarray
+    V_safe: np.ndarray
+    x: np.ndarray
+    y: np.ndarray
+    K: np.ndarray
+    dlnK_dT: np.ndarray
+    dlnK_dx: np.ndarray
+    h_L: np.ndarray
+    dh_L_dT: np.ndarray
+    dh_L_dx: np.ndarray
+    h_V: np.ndarray
+    dh_V_dT: np.ndarray
+    dh_V_dx: np.ndarray
+    liquid_draw_ratio: np.ndarray  # U / L
+    vapor_draw_ratio: np.ndarray  # W / V
+    vapor_in: np.ndarray  # (N, c) component flows of the vapor entering each stage
+    V_in_safe: np.ndarray  # total vapor entering each stage
+    y_in: np.ndarray  # composition of the mixed vapor entering each stage
+
+
+@dataclass(frozen=True)
+class _RefluxBubblePoint:
+    """The total condenser's bubble-point row ``ln sum_i K_i x_i = 0`` at ``T + subcooling``:
+    the K-values there, their log-derivatives and ``sum_i K_i x_i``."""
+
+    K: np.ndarray
+    dlnK_dT: np.ndarray
+    dlnK_dx: np.ndarray
+    sum_Kx: float
+
+
+def feed_sums_by_stage(feeds: Sequence[FlashedFeed], stage_count: int, component_count: int) -> tuple[np.ndarray, np.ndarray]:
+    """The feeds summed stage by stage: component flows ``(N, c)`` mol/s and enthalpy flows
+    ``(N,)`` W (flow times the molar enthalpy the balance takes)."""
+    component_flows = np.zeros((stage_count, component_count))
+    enthalpy_flows = np.zeros(stage_count)
+    for feed in feeds:
+        component_flows[feed.stage - 1] += feed.flow * np.asarray(feed.z, dtype=float)
+        enthalpy_flows[feed.stage - 1] += feed.flow * feed.h
+    return component_flows, enthalpy_flows
 
 
 def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[SpecRow, ...]:
@@ -124,13 +183,16 @@ def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequ
 
 
 class MeshSystem:
-    """The MESH + specification equations of one column, ready for Newton's method."""
+    """The MESH + specification equations of one column, ready for Newton's method.
+
+    ``feeds`` are the flashed feeds (any order, several per stage allowed); ``specs`` as many
+    as the column has degrees of freedom, kept in the given order (:attr:`specs`)."""
 
     def __init__(
         self,
         graph: StageGraph,
         thermo,
-        feeds: FeedData,
+        feeds: Sequence[FlashedFeed],
         specs: Sequence[Spec],
         component_names: Sequence[str],
         *,
@@ -140,21 +202,24 @@ class MeshSystem:
     ) -> None:
         self.graph = graph
         self.thermo = thermo
-        self.feeds = feeds
+        self.feeds = tuple(feeds)
+        self.specs = tuple(specs)
         self.component_names = tuple(component_names)
         self.c = len(self.component_names)
         self.N = graph.stage_count
         self.width = 2 * self.c + 1
         self.size = self.N * self.width
-        self.spec_rows = assign_specs(graph, specs, self.component_names)
+        self.spec_rows = assign_specs(graph, self.specs, self.component_names)
         self.condenser_setting = condenser_setting
-        total_feed = float(feeds.component_flows.sum())
+        #: (N, c) mol/s and (N,) W: the feeds summed stage by stage
+        self.feed_component_flows, self.feed_enthalpy_flows = feed_sums_by_stage(self.feeds, self.N, self.c)
+        total_feed = float(self.feed_component_flows.sum())
         self.flow_scale = float(flow_scale or total_feed or 1.0)
         self.energy_scale = float(energy_scale or thermo.cmo_latent_heat)
         self.pressures = graph.pressures
         self.efficiencies = graph.efficiencies
-        self.feed_flows = feeds.component_flows / self.flow_scale
-        self.feed_enthalpy = feeds.enthalpy_flows / (self.flow_scale * self.energy_scale)
+        self.feed_flows = self.feed_component_flows / self.flow_scale
+        self.feed_enthalpy = self.feed_enthalpy_flows / (self.flow_scale * self.energy_scale)
         self.liquid_draws = graph.liquid_draws / self.flow_scale
         self.vapor_draws = graph.vapor_draws / self.flow_scale
         self.fixed_duties = graph.fixed_duties / (self.flow_scale * self.energy_scale)
@@ -182,6 +247,25 @@ class MeshSystem:
 
     def pack(self, T: np.ndarray, l: np.ndarray, v: np.ndarray) -> np.ndarray:
         return np.concatenate([np.asarray(T)[:, None], l, v], axis=1).ravel()
+
+    def unknowns(self, profile: StageProfile) -> np.ndarray:
+        """The scaled unknowns of a stage profile (its pressures are the column's, not read)."""
+        if profile.stage_count != self.N or profile.x.shape[1] != self.c:
+            raise ValueError(
+                f"a start profile of {profile.stage_count} stages and {profile.x.shape[1]} components does not fit "
+                f"a column of {self.N} stages and {self.c} components"
+            )
+        liquid = profile.liquid_flow[:, None] * profile.x / self.flow_scale
+        vapor = profile.vapor_flow[:, None] * profile.y / self.flow_scale
+        return self.pack(np.asarray(profile.temperature, dtype=float), liquid, vapor)
+
+    def profile(self, X: np.ndarray) -> StageProfile:
+        """The stage profile (SI) of the scaled unknowns ``X``."""
+        T, l, v = self.unpack(X)
+        L, V = l.sum(axis=1), v.sum(axis=1)
+        x = l / np.maximum(L, _TINY)[:, None]
+        y = v / np.maximum(V, _TINY)[:, None]
+        return StageProfile(T.copy(), self.pressures.copy(), L * self.flow_scale, V * self.flow_scale, x, y)
 
     def variable_name(self, index: int) -> str:
         stage, offset = divmod(int(index), self.width)
@@ -220,114 +304,91 @@ class MeshSystem:
 
     # ------------------------------------------------------------------ evaluation
     def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
-        c, N, w = self.c, self.N, self.width
-        T, l, v = self.unpack(X)
-        tiny = 1e-300
-        L = l.sum(axis=1)
-        V = v.sum(axis=1)
-        L_safe = np.maximum(L, tiny)
-        V_safe = np.maximum(V, tiny)
-        x = l / L_safe[:, None]
-        y = v / V_safe[:, None]
-        props = self.thermo.stage_properties(T, self.pressures, x, y)
-        K = props.k_values.K
-        dlnK_dT = props.k_values.d_ln_K_dT
-        dlnK_dx = props.k_values.d_ln_K_dx
-        hL, dhL_dT, gL = props.liquid.molar, props.liquid.d_dT, props.liquid.d_dx
-        hV, dhV_dT, gV = self._vapor_slot(T, y, props.vapor)
-        t = self.top
-
-        U, W = self.liquid_draws, self.vapor_draws
-        rU, rW = U / L_safe, W / V_safe
-        A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
-        liquid_in = A_L @ l
-        vapor_in = A_V @ v
-        V_in = vapor_in.sum(axis=1)
-        V_in_safe = np.maximum(V_in, tiny)
-        y_in = vapor_in / V_in_safe[:, None]
-        E = self.efficiencies
-
-        balance = l * (1 + rU)[:, None] + v * (1 + rW)[:, None] - liquid_in - vapor_in - self.feed_flows
-        equilibrium = y - E[:, None] * K * x - (1 - E)[:, None] * y_in
-        enthalpy_out = (L + U) * hL + (V + W) * hV
-        inv_es = 1.0 / self.energy_scale
-        energy = (enthalpy_out - A_L @ (L * hL) - A_V @ (V * hV)) * inv_es - self.feed_enthalpy - self.fixed_duties
-
-        condenser_extra = None
-        if self.total_condenser:
-            equilibrium[t, : c - 1] = y[t, : c - 1] - x[t, : c - 1]
-            setting = self.condenser_setting
-            if setting.reflux_temperature is not None:
-                equilibrium[t, c - 1] = (T[t] - setting.reflux_temperature) / TEMPERATURE_SCALE
-            else:
-                shift = setting.reflux_subcooling or 0.0
-                if shift:
-                    kv = self.thermo.k_values(T[t : t + 1] + shift, self.pressures[t : t + 1], x[t : t + 1])
-                    Kc, dKc_dT, dKc_dx = kv.K[0], kv.d_ln_K_dT[0], kv.d_ln_K_dx[0]
-                else:
-                    Kc, dKc_dT, dKc_dx = K[t], dlnK_dT[t], dlnK_dx[t]
-                S = float(Kc @ x[t])
-                equilibrium[t, c - 1] = np.log(S)
-                condenser_extra = (Kc, dKc_dT, dKc_dx, S)
-
+        """Scaled residuals at the unknowns ``X`` (stage-major: c component balances, c
+        equilibrium relations, then the enthalpy balance or the spec that replaces it), and
+        with ``jacobian`` their sparse analytic Jacobian."""
+        state = self._stage_state(X)
+        balance, equilibrium, energy = self._mesh_residuals(state)
+        reflux_bubble_point = self._total_condenser_rows(state, equilibrium) if self.total_condenser else None
         residual_blocks = np.concatenate([balance, equilibrium, energy[:, None]], axis=1)
-        spec_values, spec_entries = self._spec_residuals(T, l, v, L_safe, V_safe, x, y, energy, jacobian)
+        spec_values, spec_entries = self._spec_residuals(state, energy, jacobian)
         for row, value in zip(self.spec_rows, spec_values):
-            residual_blocks[row.stage, 2 * c] = value
+            residual_blocks[row.stage, 2 * self.c] = value
         residuals = residual_blocks.ravel()
         if not jacobian:
             return Evaluation(residuals, None)
+        return Evaluation(residuals, self._jacobian(state, reflux_bubble_point, spec_entries))
 
-        eye = np.eye(c)
-        # ---- diagonal blocks
-        Dg = np.zeros((N, w, w))
-        Dg[:, :c, 1 : 1 + c] = (1 + rU)[:, None, None] * eye - (rU[:, None] * x)[:, :, None]
-        Dg[:, :c, 1 + c :] = (1 + rW)[:, None, None] * eye - (rW[:, None] * y)[:, :, None]
-        EK = E[:, None] * K
-        Dg[:, c : 2 * c, 0] = -EK * x * dlnK_dT
-        G_x = np.einsum("nim,nm->ni", dlnK_dx, x)
-        Dg[:, c : 2 * c, 1 : 1 + c] = -(EK / L_safe[:, None])[:, :, None] * (
-            eye[None] - x[:, :, None] + x[:, :, None] * (dlnK_dx - G_x[:, :, None])
+    def _stage_state(self, X: np.ndarray) -> _StageState:
+        T, l, v = self.unpack(X)
+        L = l.sum(axis=1)
+        V = v.sum(axis=1)
+        L_safe = np.maximum(L, _TINY)
+        V_safe = np.maximum(V, _TINY)
+        x = l / L_safe[:, None]
+        y = v / V_safe[:, None]
+        props = self.thermo.stage_properties(T, self.pressures, x, y)
+        h_V, dh_V_dT, dh_V_dx = self._vapor_slot(T, y, props.vapor)
+        vapor_in = self.graph.vapor_inflow @ v
+        V_in_safe = np.maximum(vapor_in.sum(axis=1), _TINY)
+        return _StageState(
+            T=T, l=l, v=v, L=L, V=V, L_safe=L_safe, V_safe=V_safe, x=x, y=y,
+            K=props.k_values.K, dlnK_dT=props.k_values.d_ln_K_dT, dlnK_dx=props.k_values.d_ln_K_dx,
+            h_L=props.liquid.molar, dh_L_dT=props.liquid.d_dT, dh_L_dx=props.liquid.d_dx,
+            h_V=h_V, dh_V_dT=dh_V_dT, dh_V_dx=dh_V_dx,
+            liquid_draw_ratio=self.liquid_draws / L_safe, vapor_draw_ratio=self.vapor_draws / V_safe,
+            vapor_in=vapor_in, V_in_safe=V_in_safe, y_in=vapor_in / V_in_safe[:, None],
         )
-        Dg[:, c : 2 * c, 1 + c :] = (eye[None] - y[:, :, None]) / V_safe[:, None, None]
-        Dg[:, 2 * c, 0] = ((L + U) * dhL_dT + (V + W) * dhV_dT) * inv_es
-        gLx = np.einsum("nk,nk->n", x, gL)
-        gVy = np.einsum("nk,nk->n", y, gV)
-        Dg[:, 2 * c, 1 : 1 + c] = (hL[:, None] + (1 + rU)[:, None] * (gL - gLx[:, None])) * inv_es
-        Dg[:, 2 * c, 1 + c :] = (hV[:, None] + (1 + rW)[:, None] * (gV - gVy[:, None])) * inv_es
+
+    def _mesh_residuals(self, s: _StageState) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Component balances (N, c), Murphree relations (N, c), enthalpy balances (N,)."""
+        U, W, E = self.liquid_draws, self.vapor_draws, self.efficiencies
+        A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
+        balance = (
+            s.l * (1 + s.liquid_draw_ratio)[:, None] + s.v * (1 + s.vapor_draw_ratio)[:, None]
+            - A_L @ s.l - s.vapor_in - self.feed_flows
+        )
+        equilibrium = s.y - E[:, None] * s.K * s.x - (1 - E)[:, None] * s.y_in
+        enthalpy_out = (s.L + U) * s.h_L + (s.V + W) * s.h_V
+        energy = (
+            (enthalpy_out - A_L @ (s.L * s.h_L) - A_V @ (s.V * s.h_V)) * (1.0 / self.energy_scale)
+            - self.feed_enthalpy - self.fixed_duties
+        )
+        return balance, equilibrium, energy
+
+    def _total_condenser_rows(self, s: _StageState, equilibrium: np.ndarray) -> _RefluxBubblePoint | None:
+        """Overwrite the total condenser's equilibrium rows in place: ``y_i = x_i`` (i < c) and
+        the reflux temperature, or the reflux's bubble point (whose K-values it returns)."""
+        c, t = self.c, self.top
+        T, x, y = s.T, s.x, s.y
+        equilibrium[t, : c - 1] = y[t, : c - 1] - x[t, : c - 1]
+        setting = self.condenser_setting
+        if setting.reflux_temperature is not None:
+            equilibrium[t, c - 1] = (T[t] - setting.reflux_temperature) / TEMPERATURE_SCALE
+            return None
+        shift = setting.reflux_subcooling or 0.0
+        if shift:
+            kv = self.thermo.k_values(T[t : t + 1] + shift, self.pressures[t : t + 1], x[t : t + 1])
+            K, dlnK_dT, dlnK_dx = kv.K[0], kv.d_ln_K_dT[0], kv.d_ln_K_dx[0]
+        else:
+            K, dlnK_dT, dlnK_dx = s.K[t], s.dlnK_dT[t], s.dlnK_dx[t]
+        sum_Kx = float(K @ x[t])
+        equilibrium[t, c - 1] = np.log(sum_Kx)
+        return _RefluxBubblePoint(K, dlnK_dT, dlnK_dx, sum_Kx)
+
+    def _jacobian(self, s: _StageState, reflux_bubble_point: _RefluxBubblePoint | None, spec_entries) -> sp.csc_matrix:
+        """Scatter the stage blocks, the edge blocks and the spec entries into one CSC matrix;
+        the rows a spec replaces keep only the spec's entries."""
+        # x . dh_L/dx and y . dh_V/dx of every stage, shared by its own block and its edges'
+        gLx = np.einsum("nk,nk->n", s.x, s.dh_L_dx)
+        gVy = np.einsum("nk,nk->n", s.y, s.dh_V_dx)
+        stage_blocks = self._stage_blocks(s, gLx, gVy)
         if self.total_condenser:
-            Dg[t, c : 2 * c, :] = 0.0
-            Dg[t, c : 2 * c - 1, 1 : 1 + c] = -(eye[: c - 1] - x[t, : c - 1, None]) / L_safe[t]
-            Dg[t, c : 2 * c - 1, 1 + c :] = (eye[: c - 1] - y[t, : c - 1, None]) / V_safe[t]
-            if condenser_extra is None:
-                Dg[t, 2 * c - 1, 0] = 1.0 / TEMPERATURE_SCALE
-            else:
-                Kc, dKc_dT, dKc_dx, S = condenser_extra
-                Dg[t, 2 * c - 1, 0] = float(Kc @ (x[t] * dKc_dT)) / S
-                Gc = dKc_dx @ x[t]
-                Dg[t, 2 * c - 1, 1 : 1 + c] = (Kc - S + (x[t] * Kc) @ (dKc_dx - Gc[:, None])) / (S * L_safe[t])
-
-        # ---- liquid edges: stage k's liquid enters stage j
-        le = self.graph.liquid_edges
-        Lb = np.zeros((len(le), w, w))
-        if len(le):
-            src = le[:, 0]
-            Lb[:, :c, 1 : 1 + c] = -eye
-            Lb[:, 2 * c, 0] = -(L[src] * dhL_dT[src]) * inv_es
-            Lb[:, 2 * c, 1 : 1 + c] = -(hL[src, None] + gL[src] - gLx[src, None]) * inv_es
-        # ---- vapor edges: stage p's vapor enters stage j
-        ve = self.graph.vapor_edges
-        Vb = np.zeros((len(ve), w, w))
-        if len(ve):
-            src, dst = ve[:, 0], ve[:, 1]
-            Vb[:, :c, 1 + c :] = -eye
-            Vb[:, c : 2 * c, 1 + c :] = -((1 - E[dst]) / V_in_safe[dst])[:, None, None] * (eye[None] - y_in[dst][:, :, None])
-            Vb[:, 2 * c, 0] = -(V[src] * dhV_dT[src]) * inv_es
-            Vb[:, 2 * c, 1 + c :] = -(hV[src, None] + gV[src] - gVy[src, None]) * inv_es
-
+            self._total_condenser_blocks(s, reflux_bubble_point, stage_blocks)
+        liquid_edge_blocks, vapor_edge_blocks = self._edge_blocks(s, gLx, gVy)
         rows = np.concatenate([self._diag_rows, self._liq_rows, self._vap_rows])
         cols = np.concatenate([self._diag_cols, self._liq_cols, self._vap_cols])
-        vals = np.concatenate([Dg.ravel(), Lb.ravel(), Vb.ravel()])
+        vals = np.concatenate([stage_blocks.ravel(), liquid_edge_blocks.ravel(), vapor_edge_blocks.ravel()])
         if len(self._replaced_rows):
             vals[np.isin(rows, self._replaced_rows)] = 0.0
         if spec_entries:
@@ -336,12 +397,77 @@ class MeshSystem:
             cols = np.concatenate([cols, spec_cols])
             vals = np.concatenate([vals, spec_vals])
         keep = vals != 0.0
-        matrix = sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
-        return Evaluation(residuals, matrix)
+        return sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
+
+    def _stage_blocks(self, s: _StageState, gLx: np.ndarray, gVy: np.ndarray) -> np.ndarray:
+        """(N, w, w): derivatives of each stage's rows with respect to its own unknowns."""
+        c, N, w = self.c, self.N, self.width
+        x, y, K, L_safe, V_safe = s.x, s.y, s.K, s.L_safe, s.V_safe
+        r_L, r_W = s.liquid_draw_ratio, s.vapor_draw_ratio
+        U, W, E = self.liquid_draws, self.vapor_draws, self.efficiencies
+        inv_es = 1.0 / self.energy_scale
+        eye = np.eye(c)
+        blocks = np.zeros((N, w, w))
+        blocks[:, :c, 1 : 1 + c] = (1 + r_L)[:, None, None] * eye - (r_L[:, None] * x)[:, :, None]
+        blocks[:, :c, 1 + c :] = (1 + r_W)[:, None, None] * eye - (r_W[:, None] * y)[:, :, None]
+        EK = E[:, None] * K
+        blocks[:, c : 2 * c, 0] = -EK * x * s.dlnK_dT
+        G_x = np.einsum("nim,nm->ni", s.dlnK_dx, x)
+        blocks[:, c : 2 * c, 1 : 1 + c] = -(EK / L_safe[:, None])[:, :, None] * (
+            eye[None] - x[:, :, None] + x[:, :, None] * (s.dlnK_dx - G_x[:, :, None])
+        )
+        blocks[:, c : 2 * c, 1 + c :] = (eye[None] - y[:, :, None]) / V_safe[:, None, None]
+        blocks[:, 2 * c, 0] = ((s.L + U) * s.dh_L_dT + (s.V + W) * s.dh_V_dT) * inv_es
+        blocks[:, 2 * c, 1 : 1 + c] = (s.h_L[:, None] + (1 + r_L)[:, None] * (s.dh_L_dx - gLx[:, None])) * inv_es
+        blocks[:, 2 * c, 1 + c :] = (s.h_V[:, None] + (1 + r_W)[:, None] * (s.dh_V_dx - gVy[:, None])) * inv_es
+        return blocks
+
+    def _total_condenser_blocks(self, s: _StageState, bubble: _RefluxBubblePoint | None, blocks: np.ndarray) -> None:
+        """The derivatives of the total condenser's equilibrium rows, in place."""
+        c, t = self.c, self.top
+        x, y = s.x, s.y
+        eye = np.eye(c)
+        blocks[t, c : 2 * c, :] = 0.0
+        blocks[t, c : 2 * c - 1, 1 : 1 + c] = -(eye[: c - 1] - x[t, : c - 1, None]) / s.L_safe[t]
+        blocks[t, c : 2 * c - 1, 1 + c :] = (eye[: c - 1] - y[t, : c - 1, None]) / s.V_safe[t]
+        if bubble is None:
+            blocks[t, 2 * c - 1, 0] = 1.0 / TEMPERATURE_SCALE
+            return
+        K, S = bubble.K, bubble.sum_Kx
+        blocks[t, 2 * c - 1, 0] = float(K @ (x[t] * bubble.dlnK_dT)) / S
+        G = bubble.dlnK_dx @ x[t]
+        blocks[t, 2 * c - 1, 1 : 1 + c] = (K - S + (x[t] * K) @ (bubble.dlnK_dx - G[:, None])) / (S * s.L_safe[t])
+
+    def _edge_blocks(self, s: _StageState, gLx: np.ndarray, gVy: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(E_L, w, w) and (E_V, w, w): derivatives of the receiving stage's rows with respect
+        to the unknowns of the stage whose liquid (vapor) enters it, one block per edge."""
+        c, w = self.c, self.width
+        E = self.efficiencies
+        inv_es = 1.0 / self.energy_scale
+        eye = np.eye(c)
+        le = self.graph.liquid_edges
+        liquid_blocks = np.zeros((len(le), w, w))
+        if len(le):
+            src = le[:, 0]
+            liquid_blocks[:, :c, 1 : 1 + c] = -eye
+            liquid_blocks[:, 2 * c, 0] = -(s.L[src] * s.dh_L_dT[src]) * inv_es
+            liquid_blocks[:, 2 * c, 1 : 1 + c] = -(s.h_L[src, None] + s.dh_L_dx[src] - gLx[src, None]) * inv_es
+        ve = self.graph.vapor_edges
+        vapor_blocks = np.zeros((len(ve), w, w))
+        if len(ve):
+            src, dst = ve[:, 0], ve[:, 1]
+            vapor_blocks[:, :c, 1 + c :] = -eye
+            vapor_blocks[:, c : 2 * c, 1 + c :] = -((1 - E[dst]) / s.V_in_safe[dst])[:, None, None] * (
+                eye[None] - s.y_in[dst][:, :, None]
+            )
+            vapor_blocks[:, 2 * c, 0] = -(s.V[src] * s.dh_V_dT[src]) * inv_es
+            vapor_blocks[:, 2 * c, 1 + c :] = -(s.h_V[src, None] + s.dh_V_dx[src] - gVy[src, None]) * inv_es
+        return liquid_blocks, vapor_blocks
 
     # ------------------------------------------------------------------ specifications
-    def _spec_residuals(self, T, l, v, L, V, x, y, energy, jacobian):
+    def _spec_residuals(self, s: _StageState, energy: np.ndarray, jacobian: bool):
         """Residual of each spec row and its Jacobian entries (row, col, value arrays)."""
+        T, l, v, L, V, x, y = s.T, s.l, s.v, s.L_safe, s.V_safe, s.x, s.y
         c, w = self.c, self.width
         t, b = self.top, self.bottom
         values, entries = [], []
@@ -403,8 +529,8 @@ class MeshSystem:
         """(h_L, h_V) in J/mol of the streams in each stage's slots (the vapor slot of a total
         condenser holds liquid distillate)."""
         T, l, v = self.unpack(X)
-        x = l / np.maximum(l.sum(axis=1), 1e-300)[:, None]
-        y = v / np.maximum(v.sum(axis=1), 1e-300)[:, None]
+        x = l / np.maximum(l.sum(axis=1), _TINY)[:, None]
+        y = v / np.maximum(v.sum(axis=1), _TINY)[:, None]
         hL = self.thermo.liquid_enthalpy(T, x).molar
         return hL, self._vapor_slot(T, y, self.thermo.vapor_enthalpy(T, y))[0]
 

@@ -20,6 +20,8 @@ import scipy.sparse as sp
 
 from .case import Case
 
+__all__ = ["StageGraph", "add_stage_duties", "build_stage_graph", "stage_graph_from"]
+
 
 @dataclass(frozen=True)
 class StageGraph:

@@ -22,6 +22,17 @@ import numpy as np
 import scipy.sparse.linalg as spla
 
 from .errors import ConvergenceError
+from .mesh import MeshSystem
+
+__all__ = [
+    "IterationRecord",
+    "NewtonOptions",
+    "NewtonResult",
+    "dogleg_search",
+    "solve",
+    "solve_system",
+    "take_step",
+]
 
 
 @dataclass(frozen=True)
@@ -140,61 +151,34 @@ def solve(
     log: list[IterationRecord] = []
     describe_variable = describe_variable or (lambda i: f"variable {i}")
     describe_equation = describe_equation or (lambda i: f"equation {i}")
-
-    def check_finite(values: np.ndarray, what: str, namer) -> None:
-        bad = np.flatnonzero(~np.isfinite(values))
-        if len(bad):
-            raise ConvergenceError(
-                f"{what} is not a finite number at {namer(bad[0])} ({len(bad)} entries in all)",
-                iteration_log=[r.as_dict() for r in log],
-            )
-
-    history: list[float] = []
+    merits: list[float] = []
     scale = np.ones_like(X)
     scale[temperature_index] = 1.0 / options.temperature_scale
-    check_finite(X, "the starting estimate", describe_variable)
+    _check_finite(X, "the starting estimate", describe_variable, log)
     current = evaluate(X, True)
-    check_finite(current.residuals, "a residual of the starting estimate", describe_equation)
+    _check_finite(current.residuals, "a residual of the starting estimate", describe_equation, log)
     norm = float(np.max(np.abs(current.residuals)))
     log.append(IterationRecord(0, norm, 0.0, 0.0))
+
+    def stopped(iterations: int, message: str) -> NewtonResult:
+        return NewtonResult(X, current.residuals, False, iterations, norm, tuple(log), message)
+
     for iteration in range(1, options.max_iterations + 1):
         if norm <= options.tolerance:
             return NewtonResult(X, current.residuals, True, iteration - 1, norm, tuple(log), "converged")
-        try:
-            step = spla.splu(current.jacobian).solve(-current.residuals)
-        except RuntimeError as exc:  # exactly singular
-            return NewtonResult(
-                X, current.residuals, False, iteration - 1, norm, tuple(log),
-                f"the Jacobian is singular ({exc}); the specifications may not fix the column",
-            )
-        if not np.all(np.isfinite(step)):
-            return NewtonResult(
-                X, current.residuals, False, iteration - 1, norm, tuple(log),
-                "the Newton step is not finite (ill-conditioned Jacobian)",
-            )
-        damping = 1.0
-        largest_dT = float(np.max(np.abs(step[temperature_index]))) if len(temperature_index) else 0.0
-        if largest_dT > options.max_temperature_step:
-            damping = options.max_temperature_step / largest_dT
+        step, trouble = _newton_step(current)
+        if step is None:
+            return stopped(iteration - 1, trouble)
         merit = 0.5 * float(current.residuals @ current.residuals)
-        history.append(merit)
-        reference = max(history[-options.nonmonotone_memory :])
-        accepted = None
-        trial_damping = damping
-        for halving in range(options.max_halvings + 1):
-            trial = take_step(X, step, trial_damping, flow_mask)
-            candidate = evaluate(trial, halving == 0)
-            if np.all(np.isfinite(candidate.residuals)):
-                trial_merit = 0.5 * float(candidate.residuals @ candidate.residuals)
-                if trial_merit <= reference - 2.0 * options.armijo * trial_damping * merit:
-                    accepted = (trial, candidate, trial_damping)
-                    break
-            trial_damping *= 0.5
+        merits.append(merit)
+        reference = max(merits[-options.nonmonotone_memory :])
+        damping = _bounded_damping(step, temperature_index, options)
+        accepted = _backtrack(evaluate, X, step, damping, flow_mask, merit, reference, options)
         if accepted is None:
             accepted = dogleg_search(evaluate, X, current, step, scale, flow_mask, merit, options)
             if accepted is None:
-                return NewtonResult(
-                    X, current.residuals, False, iteration - 1, norm, tuple(log),
+                return stopped(
+                    iteration - 1,
                     "neither the Newton step nor the steepest-descent path lowers the residuals "
                     f"(largest residual {norm:.3g} in the {describe_equation(int(np.argmax(np.abs(current.residuals))))})",
                 )
@@ -208,8 +192,60 @@ def solve(
     if norm <= options.tolerance:
         return NewtonResult(X, current.residuals, True, options.max_iterations, norm, tuple(log), "converged")
     worst = int(np.argmax(np.abs(current.residuals)))
-    return NewtonResult(
-        X, current.residuals, False, options.max_iterations, norm, tuple(log),
+    return stopped(
+        options.max_iterations,
         f"no convergence in {options.max_iterations} iterations; largest residual {norm:.3g} in the "
         f"{describe_equation(worst)}",
+    )
+
+
+def _check_finite(values: np.ndarray, what: str, namer: Callable[[int], str], log: list[IterationRecord]) -> None:
+    bad = np.flatnonzero(~np.isfinite(values))
+    if len(bad):
+        raise ConvergenceError(
+            f"{what} is not a finite number at {namer(bad[0])} ({len(bad)} entries in all)",
+            iteration_log=[r.as_dict() for r in log],
+        )
+
+
+def _newton_step(current) -> tuple[np.ndarray | None, str]:
+    """The full Newton step ``-J^-1 F`` by sparse LU, or None and the reason there is none."""
+    try:
+        step = spla.splu(current.jacobian).solve(-current.residuals)
+    except RuntimeError as exc:  # exactly singular
+        return None, f"the Jacobian is singular ({exc}); the specifications may not fix the column"
+    if not np.all(np.isfinite(step)):
+        return None, "the Newton step is not finite (ill-conditioned Jacobian)"
+    return step, ""
+
+
+def _bounded_damping(step: np.ndarray, temperature_index: np.ndarray, options: NewtonOptions) -> float:
+    """The fraction of the step that moves no temperature by more than the step bound."""
+    largest_dT = float(np.max(np.abs(step[temperature_index]))) if len(temperature_index) else 0.0
+    if largest_dT > options.max_temperature_step:
+        return options.max_temperature_step / largest_dT
+    return 1.0
+
+
+def _backtrack(evaluate, X, step, damping, flow_mask, merit, reference, options: NewtonOptions):
+    """Halve the step from ``damping`` until the merit meets the non-monotone Armijo condition
+    against ``reference``: (X, evaluation, damping used), or None. Only the first trial's
+    Jacobian is evaluated with it (a full step is the common case)."""
+    for halving in range(options.max_halvings + 1):
+        trial = take_step(X, step, damping, flow_mask)
+        candidate = evaluate(trial, halving == 0)
+        if np.all(np.isfinite(candidate.residuals)):
+            trial_merit = 0.5 * float(candidate.residuals @ candidate.residuals)
+            if trial_merit <= reference - 2.0 * options.armijo * damping * merit:
+                return trial, candidate, damping
+        damping *= 0.5
+    return None
+
+
+def solve_system(system: MeshSystem, X0: np.ndarray, options: NewtonOptions = NewtonOptions()) -> NewtonResult:
+    """:func:`solve` on a MESH system from its unknowns ``X0``, with its own names for the
+    variables and equations in messages."""
+    return solve(
+        system.evaluate, X0, system.temperature_index(), system.flow_mask(), options,
+        describe_variable=system.variable_name, describe_equation=system.equation_name,
     )

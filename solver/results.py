@@ -26,6 +26,8 @@ from typing import Any, Mapping
 
 import numpy as np
 
+from .streams import FlashedFeed
+
 SCHEMA = "traystack-result/1"
 UNITS = {
     "temperature": "K",
@@ -35,18 +37,6 @@ UNITS = {
     "enthalpy": "J/mol",
     "composition": "mole fraction",
 }
-
-
-@dataclass(frozen=True)
-class StageFeed:
-    flow: float  # mol/s
-    z: tuple[float, ...]
-    h: float  # J/mol, as the energy balance uses it
-    name: str = ""
-    temperature: float | None = None
-    pressure: float | None = None
-    vapor_fraction: float | None = None
-    q: float | None = None
 
 
 @dataclass(frozen=True)
@@ -74,7 +64,7 @@ class Result:
     liquid_draw: np.ndarray  # (N,) mol/s side draws of liquid
     vapor_draw: np.ndarray  # (N,) mol/s side draws of vapor
     duty: np.ndarray  # (N,) W
-    stage_feeds: tuple[tuple[StageFeed, ...], ...]
+    stage_feeds: tuple[tuple[FlashedFeed, ...], ...]
     condenser: str  # total | partial | none
     reboiler: str  # partial | none
     thermo: Mapping[str, Any]

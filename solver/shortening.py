@@ -18,8 +18,9 @@ Murphree efficiencies of the stages it keeps.
 
 Positions: every stage of the shortened column has a position on the full column's stage
 numbering (anchors at their own numbers, the shortened runs evenly spread between them); the
-start of the full column interpolates the shortened solution's temperatures and the logarithms
-of its component flows at the full column's stage numbers.
+start of the full column (a :class:`~solver.streams.StageProfile`) interpolates the shortened
+solution's temperatures and the logarithms of its component flows at the full column's stage
+numbers.
 """
 
 from __future__ import annotations
@@ -29,9 +30,9 @@ import dataclasses
 import numpy as np
 
 from .case import Case
-from .results import Result
+from .streams import StageProfile
 
-__all__ = ["MIN_STAGES", "anchor_stages", "profile_unknowns", "shortened_case", "stretched_start"]
+__all__ = ["MIN_STAGES", "anchor_stages", "shortened_case", "stretch_profile", "stretched_start"]
 
 #: Columns with fewer stages are not shortened.
 MIN_STAGES = 30
@@ -94,14 +95,11 @@ def shortened_case(case: Case, ratio: float = 0.5) -> tuple[Case, np.ndarray]:
     return short, positions_array
 
 
-def profile_unknowns(solution: Result, at: np.ndarray, flow_scale: float) -> np.ndarray:
-    """Scaled unknowns (T, liquid and vapor component flows over ``flow_scale`` mol/s, the
-    engine's scaling, stage by stage) of a column whose stages sit at the fractional stage
-    numbers ``at`` (1-based) of ``solution``'s column: temperatures interpolated linearly,
-    component flows in their logarithms (a flow that is zero at both neighbours, such as the
-    vapor of a total condenser, stays zero)."""
-    numbers = np.arange(1, solution.stage_count + 1, dtype=float)
-    T = np.interp(at, numbers, solution.temperature)
+def stretch_profile(profile: StageProfile, at: np.ndarray) -> StageProfile:
+    """The profile of a column whose stages sit at the fractional stage numbers ``at``
+    (1-based) of ``profile``'s column: temperatures and pressures interpolated linearly,
+    component flows in their logarithms (a flow that is zero at both neighbours stays zero)."""
+    numbers = np.arange(1, profile.stage_count + 1, dtype=float)
 
     def stretch(flows: np.ndarray) -> np.ndarray:
         columns = []
@@ -111,14 +109,17 @@ def profile_unknowns(solution: Result, at: np.ndarray, flow_scale: float) -> np.
             columns.append(np.where(zero, 0.0, np.exp(logs)))
         return np.column_stack(columns)
 
-    liquid = stretch(solution.liquid_flow[:, None] * solution.x / flow_scale)
-    vapor = stretch(solution.vapor_flow[:, None] * solution.y / flow_scale)
-    return np.concatenate([T[:, None], liquid, vapor], axis=1).ravel()
+    return StageProfile.from_component_flows(
+        np.interp(at, numbers, profile.temperature),
+        np.interp(at, numbers, profile.pressure),
+        stretch(profile.liquid_component_flows),
+        stretch(profile.vapor_component_flows),
+    )
 
 
-def stretched_start(short: Result, positions: np.ndarray, stages: int, flow_scale: float) -> np.ndarray:
-    """Scaled unknowns of the full column (``stages`` stages) from the solution ``short`` of
-    the shortened column whose stages sit at ``positions`` on the full numbering (see
-    :func:`profile_unknowns`)."""
+def stretched_start(short: StageProfile, positions: np.ndarray, stages: int) -> StageProfile:
+    """The start of the full column (``stages`` stages) from the profile ``short`` of the
+    shortened column whose stages sit at ``positions`` on the full numbering (see
+    :func:`stretch_profile`)."""
     at = np.interp(np.arange(1, stages + 1, dtype=float), positions, np.arange(1, len(positions) + 1, dtype=float))
-    return profile_unknowns(short, at, flow_scale)
+    return stretch_profile(short, at)

@@ -87,11 +87,12 @@ def test_unconverged_result_is_marked_and_keeps_its_log():
 
 def test_a_nan_start_is_a_convergence_error_naming_the_variable():
     case = methanol_water_case(stages=6, feed_stage=3)
-    _, _, system, _, _ = build_system(case)
-    start = np.full(system.size, 1.0)
-    start[system.width * 2] = np.nan
+    system = build_system(case)
+    start = system.profile(np.full(system.size, 1.0))
+    temperature = start.temperature.copy()
+    temperature[2] = np.nan
     with pytest.raises(ConvergenceError, match="temperature of stage 3"):
-        simulate(case, start=start)
+        simulate(case, start=dataclasses.replace(start, temperature=temperature))
 
 
 def test_result_document_has_every_design_field():
@@ -277,12 +278,12 @@ def test_the_second_start_is_the_sweeps_without_the_theta_correction(monkeypatch
 
     case = methanol_water_case(stages=12, feed_stage=7)
     reference = simulate(case)
-    real_start, real_newton = engine.initial_estimate, engine._newton
+    real_start, real_newton = engine.initial_estimate, engine.solve_system
     asked, calls = [], []
 
-    def recording_start(system, specs, details, feed_stages, *, theta=True):
-        asked.append(theta)
-        return real_start(system, specs, details, feed_stages, theta=theta)
+    def recording_start(system, *, correct_split=True):
+        asked.append(correct_split)
+        return real_start(system, correct_split=correct_split)
 
     def first_fails(system, X0, options):
         calls.append(1)
@@ -290,7 +291,7 @@ def test_the_second_start_is_the_sweeps_without_the_theta_correction(monkeypatch
         return dataclasses.replace(result, converged=False) if len(calls) == 1 else result
 
     monkeypatch.setattr(engine, "initial_estimate", recording_start)
-    monkeypatch.setattr(engine, "_newton", first_fails)
+    monkeypatch.setattr(engine, "solve_system", first_fails)
     result = simulate(case, continuation=False)
     assert asked == [True, False]
     assert result.converged and result.strategy["rung"] == "second start"

@@ -66,10 +66,11 @@ def test_root_walking_finds_a_root_away_from_the_start_and_gives_up_without_one(
 
 def test_cmo_flows_of_a_simple_column():
     case = load_case(CASES / "benzene_toluene.toml")
-    _, graph, system, details, _ = build_system(case)
+    system = build_system(case)
+    graph = system.graph
     N = system.N
     totals = np.zeros(N)
-    np.add.at(totals, graph.feed_stages, [d["flow"] / system.flow_scale for d in details])
+    np.add.at(totals, graph.feed_stages, [feed.flow / system.flow_scale for feed in system.feeds])
     q = np.ones(N)
     L, V = cmo_flows(system, 0.4, 1.2, totals, q)
     f = graph.feed_stages[0]

@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 
 from conftest import methanol_water_case
 from solver.case import SideDraw, Spec, StageDuty
-from solver.engine import simulate
+from solver.engine import simulate, stage_profile
 from solver.shortening import MIN_STAGES, anchor_stages, shortened_case, stretched_start
 from solver.thermo.package import ThermoPackage
 
@@ -106,10 +106,9 @@ def test_the_stretched_start_puts_newton_next_to_the_solution(make_case):
     short = simulate(short_case, thermo=thermo)
     assert full.converged and short.converged
     assert short.reflux_ratio == pytest.approx(full.reflux_ratio, rel=0.06)  # pinched: half the stages, 5 % more reflux
-    X0 = stretched_start(short, positions, case.column.stages, sum(f.flow for f in case.feeds))
-    start = X0.reshape(case.column.stages, -1)
-    assert start[0, 0] == pytest.approx(short.temperature[0]) and start[-1, 0] == pytest.approx(short.temperature[-1])
-    again = simulate(case, thermo=thermo, start=X0)
+    start = stretched_start(stage_profile(short), positions, case.column.stages)
+    assert start.temperature[0] == pytest.approx(short.temperature[0]) and start.temperature[-1] == pytest.approx(short.temperature[-1])
+    again = simulate(case, thermo=thermo, start=start)
     assert again.converged and again.iterations <= 15
     np.testing.assert_allclose(again.temperature, full.temperature, atol=1e-6)
     assert again.reflux_ratio == pytest.approx(full.reflux_ratio, rel=1e-8)
@@ -131,8 +130,8 @@ def test_the_engine_falls_back_to_the_shorter_column(make_case, monkeypatch):
     reference = simulate(case, thermo=thermo)
     real_start = engine.initial_estimate
 
-    def spoiled(system, specs, details, feed_stages, *, theta=True):
-        X = real_start(system, specs, details, feed_stages, theta=theta)
+    def spoiled(system, *, correct_split=True):
+        X = real_start(system, correct_split=correct_split)
         if system.N == case.column.stages:
             T, l, v = system.unpack(X)
             X = system.pack(T[::-1].copy(), l[::-1].copy(), v[::-1].copy())  # the column upside down

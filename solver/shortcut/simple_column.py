@@ -53,7 +53,7 @@ def check_simple_column(case: Case, method: str) -> list[str]:
 
 def feed_condition(case: Case, thermo: ThermoPackage) -> FeedState:
     """The case's single feed flashed at its own pressure, q judged at its stage's pressure (as
-    :func:`solver.engine.feed_data` does)."""
+    :func:`solver.engine.flash_feeds` does)."""
     feed = case.feeds[0]
     stage_pressure = float(case.column.pressures[feed.stage - 1])
     pressure = feed.pressure if feed.pressure is not None else stage_pressure

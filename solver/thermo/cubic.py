@@ -39,13 +39,14 @@ input (the pure-component fits of :mod:`solver.thermo.pure`), only the departure
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass, field
 from typing import Callable, Mapping
 
 import numpy as np
 
 from solver.errors import CaseError, ThermoError
-from solver.thermo.cubic_roots import phase_roots
+from solver.thermo.cubic_roots import chosen_root
 
 __all__ = [
     "GAS_CONSTANT",
@@ -126,6 +127,24 @@ MIXING_RULE = "van der Waals one-fluid: a = sum_ij x_i x_j (1 - k_ij) sqrt(a_i a
 PENELOUX_SOURCE = "A. Peneloux, E. Rauzy and R. Freze, Fluid Phase Equilib. 8 (1982) 7-23"
 
 
+class _Scratch(threading.local):
+    """One (c, c, n) work array per thread, kept between calls with the same n: allocating and
+    freeing arrays of a few hundred kB per call can cost more than the arithmetic (the memory
+    may go back to the system and fault in again)."""
+
+    def __init__(self, component_count: int) -> None:
+        self.component_count = component_count
+        self.array = np.empty((component_count, component_count, 0))
+
+    def __reduce__(self):
+        return (_Scratch, (self.component_count,))
+
+    def get(self, stage_count: int) -> np.ndarray:
+        if self.array.shape[-1] != stage_count:
+            self.array = np.empty((self.component_count, self.component_count, stage_count))
+        return self.array
+
+
 def _vector(name: str, value, count: int, *, positive: bool) -> np.ndarray:
     vector = np.array(value, dtype=float).reshape(-1)
     if vector.shape != (count,) or not np.all(np.isfinite(vector)) or (positive and np.any(vector <= 0.0)):
@@ -198,13 +217,22 @@ class CubicParameters:
         sqrt_ac = np.sqrt(form.omega_a / pc) * GAS_CONSTANT * tc
         m = form.m_function(self.acentric_factor)
         setattr_(self, "_form", form)
+        b = form.omega_b * GAS_CONSTANT * tc / pc
+        # the evaluation works stage-last, (c, n): these are the per-component columns
         setattr_(self, "_tc", tc)
-        setattr_(self, "_b", form.omega_b * GAS_CONSTANT * tc / pc)
+        setattr_(self, "_b", b)
         setattr_(self, "_sqrt_ac", sqrt_ac)
         setattr_(self, "_m", m)
-        setattr_(self, "_sqrt_ac_m", sqrt_ac * m)
+        setattr_(self, "_ones", np.ones(c))
+        setattr_(self, "_b_column", b[:, None].copy())
+        setattr_(self, "_root_at_zero_column", (sqrt_ac * (1.0 + m))[:, None].copy())  # sqrt(a_i) = this - next * sqrt(T/Tc)
+        setattr_(self, "_root_slope_column", (sqrt_ac * m)[:, None].copy())
+        setattr_(self, "_inverse_sqrt_tc_column", (1.0 / np.sqrt(tc))[:, None].copy())
         setattr_(self, "_complement", 1.0 - k)
+        setattr_(self, "_complement_stacked", (1.0 - k)[:, :, None].copy())
+        setattr_(self, "_scratch", _Scratch(c))
         setattr_(self, "_shift", None if self.volume_shift is None else self.volume_shift.copy())
+        setattr_(self, "_shift_column", None if self.volume_shift is None else self.volume_shift[:, None].copy())
 
     @property
     def form(self) -> CubicForm:
@@ -328,32 +356,37 @@ def _states(parameters: CubicParameters, temperature, pressure, x) -> tuple[np.n
 
 def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray, liquid: np.ndarray,
               derivatives: bool) -> CubicPhase:
-    """The phase chosen per state by ``liquid (n,)`` (True: liquid root, False: vapor root)."""
+    """The phase chosen per state by ``liquid (n,)`` (True: liquid root, False: vapor root).
+
+    Component arrays are held stage-last, (c, n), where numpy broadcasts the per-state
+    quantities (n,) fastest; results are returned stage-first."""
     form = par._form
+    n, c = x.shape
     d1, d2 = form.delta1, form.delta2
     u1, w1 = d1 + d2, d1 * d2
-    total = x.sum(axis=1)
+    ones = par._ones
+    xt = np.ascontiguousarray(x.T)
+    total = ones @ xt
     inverse_total = 1.0 / total
-    w = x * inverse_total[:, None]
+    w = xt * inverse_total
     RT = GAS_CONSTANT * T
     inverse_T = 1.0 / T
 
-    sqrt_tr = np.sqrt(T[:, None] / par._tc)
-    S = par._sqrt_ac * (1.0 + par._m * (1.0 - sqrt_tr))  # sqrt(a_i)
+    sqrt_tr = np.sqrt(T) * par._inverse_sqrt_tc_column
+    S = par._root_at_zero_column - par._root_slope_column * sqrt_tr  # sqrt(a_i)
     u = S * w
-    r = u @ par._complement
+    r = par._complement @ u
     q = S * r  # sum_j a_ij w_j
-    a = np.einsum("nc,nc->n", u, r)
-    b = w @ par._b
-    beta = par._b / b[:, None]
+    a = ones @ (u * r)
+    b = par._b @ w
+    beta = par._b_column / b
     scale_a = P / (RT * RT)
     A = a * scale_a
     B = b * P / RT
     c2 = (u1 - 1.0) * B - 1.0
     c1 = A + (w1 - u1) * B * B - u1 * B
     c0 = -(A * B + w1 * B * B * (1.0 + B))
-    roots = phase_roots(c2, c1, c0, B)
-    Z = np.where(liquid, roots.liquid, roots.vapor)
+    Z, single_root = chosen_root(c2, c1, c0, B, liquid)
 
     zb = Z - B
     p1 = Z + d1 * B
@@ -361,24 +394,24 @@ def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray,
     L = np.log(p1 / p2)
     inverse_span = 1.0 / (b * (d1 - d2))
     inv = inverse_span / RT
-    E = (2.0 * q - a[:, None] * beta) * inv[:, None]
-    ln_phi = beta * (Z - 1.0)[:, None] - np.log(zb)[:, None] - E * L[:, None]
+    E = (2.0 * q - a * beta) * inv
+    ln_phi = beta * (Z - 1.0) - np.log(zb) - E * L
 
-    dS = par._sqrt_ac_m * sqrt_tr * (-0.5 * inverse_T)[:, None]
+    dS = par._root_slope_column * sqrt_tr * (-0.5 * inverse_T)
     du = dS * w
-    dr = du @ par._complement
-    da = 2.0 * np.einsum("nc,nc->n", du, r)
+    dr = par._complement @ du
+    da = 2.0 * (ones @ (du * r))
     departure = RT * (Z - 1.0) + (T * da - a) * L * inverse_span
-    shift = par._shift
+    shift = par._shift_column
     volume = Z * RT / P
     if shift is not None:
-        shift_mix = w @ shift
-        ln_phi -= shift[None, :] * (P / RT)[:, None]
+        shift_mix = par._shift @ w
+        ln_phi -= shift * (P / RT)
         departure -= P * shift_mix
         volume = volume - shift_mix
     departure = departure * total
     if not derivatives:
-        return CubicPhase(Z, volume, roots.single_root, ln_phi, None, None, None, departure, None, None)
+        return CubicPhase(Z, volume, single_root, np.ascontiguousarray(ln_phi.T), None, None, None, departure, None, None)
 
     F_Z = (3.0 * Z + 2.0 * c2) * Z + c1
     F_B = (u1 - 1.0) * Z * Z + (2.0 * (w1 - u1) * B - u1) * Z - (A + w1 * B * (2.0 + 3.0 * B))
@@ -387,15 +420,15 @@ def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray,
     L_Z = 1.0 / p1 - 1.0 / p2
     L_B = d1 / p1 - d2 / p2
 
-    # temperature
+    # temperature (d2 sqrt(a_i)/dT2 = -dS/(2T))
     dq = dS * r + S * dr
-    d2a = 2.0 * np.einsum("nc,nc->n", (-0.5 * inverse_T)[:, None] * du, r) + 2.0 * np.einsum("nc,nc->n", du, dr)
+    d2a = 2.0 * (ones @ (du * (dr - (0.5 * inverse_T) * r)))
     A_T = (da - 2.0 * a * inverse_T) * scale_a
     B_T = -B * inverse_T
     Z_T = Z_A * A_T + Z_B * B_T
     L_T = L_Z * Z_T + L_B * B_T
-    E_T = (2.0 * dq - da[:, None] * beta) * inv[:, None] - E * inverse_T[:, None]
-    d_ln_phi_dT = beta * Z_T[:, None] - ((Z_T - B_T) / zb)[:, None] - E_T * L[:, None] - E * L_T[:, None]
+    E_T = (2.0 * dq - da * beta) * inv - E * inverse_T
+    d_ln_phi_dT = beta * Z_T - (Z_T - B_T) / zb - E_T * L - E * L_T
     d_departure_dT = (
         GAS_CONSTANT * (Z - 1.0) + RT * Z_T + (T * d2a * L + (T * da - a) * L_T) * inverse_span
     ) * total
@@ -404,34 +437,45 @@ def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray,
     inverse_P = 1.0 / P
     Z_P = (Z_A * A + Z_B * B) * inverse_P
     B_P = B * inverse_P
-    d_ln_phi_dP = beta * Z_P[:, None] - ((Z_P - B_P) / zb)[:, None] - E * (L_Z * Z_P + L_B * B_P)[:, None]
+    d_ln_phi_dP = beta * Z_P - (Z_P - B_P) / zb - E * (L_Z * Z_P + L_B * B_P)
 
     # composition: G_ik = beta_i rho_k + E_i sigma_k + tau_k - kappa a_ik for independent w,
-    # then d/dx_k = (G_ik - sum_j w_j G_ij) / sum(x)
-    B_k = B[:, None] * beta
-    Z_k = Z_A[:, None] * (2.0 * scale_a)[:, None] * q + Z_B[:, None] * B_k
-    rho = -beta * (Z - 1.0)[:, None] + Z_k + E * L[:, None]
-    sigma = beta * L[:, None] - L_Z[:, None] * Z_k - L_B[:, None] * B_k
-    tau = -(Z_k - B_k) / zb[:, None]
-    kappa = 2.0 * L * inv
-    rho -= np.einsum("nc,nc->n", w, rho)[:, None]
-    sigma -= np.einsum("nc,nc->n", w, sigma)[:, None]
-    tau -= np.einsum("nc,nc->n", w, tau)[:, None]
-    a_ik = S[:, :, None] * (S[:, None, :] * par._complement)
-    a_ik -= q[:, :, None]
-    a_ik *= -kappa[:, None, None]
-    a_ik += beta[:, :, None] * rho[:, None, :]
-    a_ik += E[:, :, None] * sigma[:, None, :]
-    a_ik += tau[:, None, :]
-    a_ik *= inverse_total[:, None, None]
-    d_ln_phi_dx = a_ik
+    # then d/dx_k = (G_ik - sum_j w_j G_ij) / sum(x); sum_j w_j a_ij = q_i, so with the
+    # projected rho, sigma, tau: d/dx_k = ([beta, E, 1, kappa q]_i . [rho, sigma, tau, 1]_k
+    # - kappa S_i S_k (1 - k_ik)) / sum(x), the first part one batched matrix product
+    B_k = B * beta
+    Z_k = (Z_A * 2.0 * scale_a) * q + Z_B * B_k
+    kappa = 2.0 * L * inv * inverse_total
+    left = np.empty((n, c, 4))
+    left[:, :, 0] = beta.T
+    left[:, :, 1] = E.T
+    left[:, :, 2] = 1.0
+    left[:, :, 3] = (kappa * q).T
+    right = np.empty((n, 4, c))
+    for row, value in enumerate((
+        -beta * (Z - 1.0) + Z_k + E * L,
+        beta * L - L_Z * Z_k - L_B * B_k,
+        (B_k - Z_k) / zb,
+    )):
+        value -= ones @ (w * value)
+        value *= inverse_total
+        right[:, row] = value.T
+    right[:, 3] = 1.0
+    d_ln_phi_dx = np.matmul(left, right)
+    # minus kappa S_i S_k (1 - k_ik), built stage-last (c, c, n) in a kept scratch array
+    attraction = np.multiply((kappa * S)[:, None, :], S[None, :, :], out=par._scratch.get(n))
+    attraction *= par._complement_stacked
+    d_ln_phi_dx -= attraction.transpose(2, 0, 1)
 
     if shift is not None:
-        d_ln_phi_dT += shift[None, :] * (P / (RT * T))[:, None]
-        d_ln_phi_dP -= shift[None, :] / RT[:, None]
-    d_departure_dx = -(RT * T)[:, None] * d_ln_phi_dT  # partial molar departure enthalpies
-    return CubicPhase(Z, volume, roots.single_root, ln_phi, d_ln_phi_dT, d_ln_phi_dP, d_ln_phi_dx,
-                      departure, d_departure_dT, d_departure_dx)
+        d_ln_phi_dT += shift * (P / (RT * T))
+        d_ln_phi_dP -= shift / RT
+    d_departure_dx = -(RT * T) * d_ln_phi_dT  # partial molar departure enthalpies
+    return CubicPhase(
+        Z, volume, single_root, np.ascontiguousarray(ln_phi.T), np.ascontiguousarray(d_ln_phi_dT.T),
+        np.ascontiguousarray(d_ln_phi_dP.T), d_ln_phi_dx, departure, d_departure_dT,
+        np.ascontiguousarray(d_departure_dx.T),
+    )
 
 
 def cubic_phase(parameters: CubicParameters, temperature, pressure, x, phase: str, derivatives: bool = True) -> CubicPhase:

@@ -26,13 +26,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["PhaseRoots", "cubic_real_roots", "phase_roots"]
+__all__ = ["PhaseRoots", "cubic_real_roots", "phase_roots", "chosen_root"]
 
-_NEWTON_STEPS = 2
+_NEWTON_STEPS = 1
 #: A Newton step longer than this (relative to the root) would leave the closed-form root's
 #: neighbourhood (a nearly double root): it is not taken.
 _LARGEST_POLISH_STEP = 1e-6
-_TWO_THIRDS_PI = 2.0 * np.pi / 3.0
+_HALF_SQRT3 = 0.5 * np.sqrt(3.0)
 
 
 @dataclass(frozen=True)
@@ -57,10 +57,10 @@ def cubic_real_roots(c2: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np
     c2, c1, c0 = (np.asarray(v, dtype=float) for v in (c2, c1, c0))
     shift = c2 / 3.0
     p = c1 - c2 * shift
-    q = (2.0 / 27.0) * c2**3 - shift * c1 + c0
+    q = (2.0 / 27.0) * c2 * c2 * c2 - shift * c1 + c0
     half_q = 0.5 * q
     third_p = p / 3.0
-    discriminant = half_q * half_q + third_p**3
+    discriminant = half_q * half_q + third_p * third_p * third_p
     single = discriminant > 0.0
 
     # one real root: u = -sign(q) cbrt(|q|/2 + sqrt(D)), t = u - p/(3u)
@@ -69,19 +69,22 @@ def cubic_real_roots(c2: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> tuple[np
     safe_u = np.where(u == 0.0, 1.0, u)
     t_single = np.where(u == 0.0, 0.0, u - third_p / safe_u)
 
-    # three real roots (p <= 0 there)
+    # three real roots (p <= 0 there); cos(a -+ 2 pi/3) = -cos(a)/2 +- sqrt(3) sin(a)/2
     minus_third_p = np.where(single, 1.0, np.maximum(-third_p, 0.0))
     radius = np.sqrt(minus_third_p)
-    cos_theta = np.clip(np.where(single, 0.0, -half_q / (minus_third_p * radius)), -1.0, 1.0)
+    cos_theta = np.minimum(np.maximum(np.where(single, 0.0, -half_q / (minus_third_p * radius)), -1.0), 1.0)
     angle = np.arccos(cos_theta) / 3.0
-    largest = 2.0 * radius * np.cos(angle)
-    middle = 2.0 * radius * np.cos(angle - _TWO_THIRDS_PI)
-    smallest = 2.0 * radius * np.cos(angle + _TWO_THIRDS_PI)
-
-    largest = np.where(single, t_single, largest) - shift
-    middle = np.where(single, t_single, middle) - shift
-    smallest = np.where(single, t_single, smallest) - shift
+    cosine = radius * np.cos(angle)
+    sine = _HALF_SQRT3 * radius * np.sin(angle)
+    largest = np.where(single, t_single, 2.0 * cosine) - shift
+    middle = np.where(single, t_single, 2.0 * sine - cosine) - shift
+    smallest = np.where(single, t_single, -cosine - 2.0 * sine) - shift
     return largest, middle, smallest, single
+
+
+def _liquid_root(largest, middle, smallest, covolume) -> np.ndarray:
+    covolume = np.asarray(covolume, dtype=float)
+    return np.where(smallest > covolume, smallest, np.where(middle > covolume, middle, largest))
 
 
 def _polish(z: np.ndarray, c2: np.ndarray, c1: np.ndarray, c0: np.ndarray) -> np.ndarray:
@@ -98,6 +101,13 @@ def phase_roots(c2: np.ndarray, c1: np.ndarray, c0: np.ndarray, covolume: np.nda
     (:func:`cubic_real_roots`), the smallest above ``covolume`` (the dimensionless B = bP/RT)
     for the liquid and the largest for the vapor, each polished by Newton steps."""
     largest, middle, smallest, single = cubic_real_roots(c2, c1, c0)
-    covolume = np.asarray(covolume, dtype=float)
-    liquid = np.where(smallest > covolume, smallest, np.where(middle > covolume, middle, largest))
+    liquid = _liquid_root(largest, middle, smallest, covolume)
     return PhaseRoots(_polish(liquid, c2, c1, c0), _polish(largest, c2, c1, c0), single)
+
+
+def chosen_root(c2: np.ndarray, c1: np.ndarray, c0: np.ndarray, covolume: np.ndarray, liquid: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The root of each state's phase (``liquid (n,)`` True: the liquid root of
+    :func:`phase_roots`, False: the vapor root), polished, and the single-root flags (n,)."""
+    largest, middle, smallest, single = cubic_real_roots(c2, c1, c0)
+    chosen = np.where(liquid, _liquid_root(largest, middle, smallest, covolume), largest)
+    return _polish(chosen, c2, c1, c0), single

@@ -8,7 +8,13 @@ import numpy as np
 import pytest
 
 from solver.thermo.cubic import CUBIC_FORMS, CubicParameters, cubic_k_values
-from solver.thermo.cubic_critical import critical_points, near_critical, pseudo_critical, trivial_solution
+from solver.thermo.cubic_critical import (
+    critical_points,
+    near_critical,
+    phase_identification,
+    pseudo_critical,
+    trivial_solution,
+)
 from solver.thermo.cubic_flash import bubble_pressure, bubble_temperature, wilson_k_values
 from solver.thermo.cubic_kij import PENG_ROBINSON_HYDROCARBONS, interaction_matrix
 
@@ -78,6 +84,33 @@ def test_single_root_stage_is_trivial():
     k = cubic_k_values(LIGHT, [480.0], [6e6], [[0.3, 0.3, 0.4]], [[0.3, 0.3, 0.4]])
     assert k.liquid.single_root[0]
     assert trivial_solution(k.liquid.Z, k.vapor.Z, k.K).trivial[0]
+
+
+def test_phase_identification_tells_liquid_like_from_vapor_like_roots():
+    """Venkatarathnam and Oellrich (2011): Pi > 1 liquid-like, Pi < 1 vapor-like, Pi = 1 for an
+    ideal gas; for the cubic's only root above the critical point it decides what the root is."""
+    par = CubicParameters(("a", "b"), [300.0, 350.0], [4e6, 4e6], [0.1, 0.2])
+    x = np.full((4, 2), 0.5)
+    T = np.array([250.0, 500.0, 320.0, 400.0])
+    P = np.array([5e5, 5e6, 9e6, 1.0])
+    liquid = phase_identification(par, T, P, x, "liquid")
+    vapor = phase_identification(par, T, P, x, "vapor")
+    assert liquid[0] > 1.0 > vapor[0]  # both roots exist: each is what it is called
+    assert liquid[1] == vapor[1] < 1.0  # hot, one root: gas-like
+    assert liquid[2] == vapor[2] > 1.0  # dense, one root: liquid-like
+    assert vapor[3] == pytest.approx(1.0, abs=1e-5)  # ideal-gas limit
+    k = cubic_k_values(par, T, P, x, x)
+    assert k.single_root_stages.tolist() == [1, 2, 3]
+
+
+def test_mixture_attraction_and_its_temperature_derivative():
+    a, da, b = LIGHT.mixture_attraction([300.0, 350.0], [[0.2, 0.3, 0.5], [0.6, 0.2, 0.2]])
+    up, _, _ = LIGHT.mixture_attraction([300.001, 350.001], [[0.2, 0.3, 0.5], [0.6, 0.2, 0.2]])
+    down, _, _ = LIGHT.mixture_attraction([299.999, 349.999], [[0.2, 0.3, 0.5], [0.6, 0.2, 0.2]])
+    assert np.allclose(da, (up - down) / 0.002, rtol=1e-7)
+    pure = LIGHT.attraction([300.0])[0]
+    assert a[0] < 0.2 * pure[0] + 0.3 * pure[1] + 0.5 * pure[2]  # sqrt mean below the arithmetic mean
+    assert b[1] == pytest.approx(LIGHT.covolume @ [0.6, 0.2, 0.2], rel=1e-14)
 
 
 # ----------------------------------------------------------------------------- critical points

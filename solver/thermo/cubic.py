@@ -46,6 +46,7 @@ from typing import Callable, Mapping
 import numpy as np
 
 from solver.errors import CaseError, ThermoError
+from solver.thermo.cubic_forms import CUBIC_FORMS, CubicForm
 from solver.thermo.cubic_roots import chosen_root
 
 __all__ = [
@@ -69,59 +70,6 @@ GAS_CONSTANT = 8.314462618
 
 IdealGas = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
 
-
-def _peng_robinson_m(omega: np.ndarray) -> np.ndarray:
-    omega = np.asarray(omega, dtype=float)
-    m_1976 = 0.37464 + omega * (1.54226 - 0.26992 * omega)
-    m_1978 = 0.379642 + omega * (1.48503 + omega * (-0.164423 + 0.016666 * omega))
-    return np.where(omega > 0.491, m_1978, m_1976)
-
-
-def _soave_m(omega: np.ndarray) -> np.ndarray:
-    omega = np.asarray(omega, dtype=float)
-    return 0.480 + omega * (1.574 - 0.176 * omega)
-
-
-@dataclass(frozen=True)
-class CubicForm:
-    """One cubic equation: the constants delta1, delta2 of its attractive term, Omega_a,
-    Omega_b, and the slope m(omega) of its alpha function."""
-
-    name: str
-    delta1: float
-    delta2: float
-    omega_a: float
-    omega_b: float
-    m_function: Callable[[np.ndarray], np.ndarray]
-    m_text: str
-    source: str
-
-
-_SQRT2 = float(np.sqrt(2.0))
-CUBIC_FORMS: dict[str, CubicForm] = {
-    "peng-robinson": CubicForm(
-        "peng-robinson",
-        1.0 + _SQRT2,
-        1.0 - _SQRT2,
-        0.45723552892138218938,
-        0.077796073903888455972,
-        _peng_robinson_m,
-        "m = 0.37464 + 1.54226 w - 0.26992 w^2 (w <= 0.491); "
-        "m = 0.379642 + 1.48503 w - 0.164423 w^2 + 0.016666 w^3 (w > 0.491)",
-        "D.-Y. Peng and D. B. Robinson, Ind. Eng. Chem. Fundam. 15 (1976) 59-64; m for w > 0.491: "
-        "D. B. Robinson and D.-Y. Peng, GPA Research Report RR-28 (1978)",
-    ),
-    "soave-redlich-kwong": CubicForm(
-        "soave-redlich-kwong",
-        1.0,
-        0.0,
-        0.42748023354034140439,
-        0.086640349964957721589,
-        _soave_m,
-        "m = 0.480 + 1.574 w - 0.176 w^2",
-        "G. Soave, Chem. Eng. Sci. 27 (1972) 1197-1203",
-    ),
-}
 
 MIXING_RULE = "van der Waals one-fluid: a = sum_ij x_i x_j (1 - k_ij) sqrt(a_i a_j), b = sum_i x_i b_i"
 PENELOUX_SOURCE = "A. Peneloux, E. Rauzy and R. Freze, Fluid Phase Equilib. 8 (1982) 7-23"
@@ -252,6 +200,19 @@ class CubicParameters:
         temperature = np.atleast_1d(np.asarray(temperature, dtype=float))
         root = self._sqrt_ac * (1.0 + self._m * (1.0 - np.sqrt(temperature[:, None] / self._tc)))
         return root * root
+
+    def mixture_attraction(self, temperature, x) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """``(a, da/dT, b)`` of the mixing rule for ``temperature (n,)`` [K] and ``x (n, c)``
+        (normalized): Pa m6/mol2, Pa m6/mol2/K, m3/mol, each (n,)."""
+        temperature = np.atleast_1d(np.asarray(temperature, dtype=float))
+        w = np.atleast_2d(np.asarray(x, dtype=float))
+        w = w / w.sum(axis=1, keepdims=True)
+        sqrt_tr = np.sqrt(temperature[:, None] / self._tc)
+        root = self._sqrt_ac * (1.0 + self._m * (1.0 - sqrt_tr))
+        slope = -0.5 * self._sqrt_ac * self._m * sqrt_tr / temperature[:, None]
+        weighted = root * w
+        mixed = weighted @ self._complement
+        return np.sum(weighted * mixed, axis=1), 2.0 * np.sum(slope * w * mixed, axis=1), w @ self._b
 
     def with_volume_shift(self, volume_shift, source: str) -> "CubicParameters":
         """The same parameters with Peneloux shifts c_i [m3/mol]."""
@@ -506,6 +467,14 @@ class CubicKValues:
     d_ln_K_dy: np.ndarray | None
     liquid: CubicPhase
     vapor: CubicPhase
+
+
+    @property
+    def single_root_stages(self) -> np.ndarray:
+        """Indices of the states where the liquid or the vapor got the cubic's only real root
+        (their phase identity is ambiguous; see
+        :func:`solver.thermo.cubic_critical.phase_identification`)."""
+        return np.flatnonzero(self.liquid.single_root | self.vapor.single_root)
 
 
 def _both_phases(parameters, temperature, pressure, x, y, derivatives) -> tuple[CubicPhase, CubicPhase]:

@@ -18,6 +18,10 @@ phases the same), and the distance of a stage from its mixture's critical point.
   57-76). Inner loop: Newton in T for the singular Q at fixed V; outer loop: secant in V for
   C = 0; all compositions at once.
 * :func:`near_critical`: a stage's temperature and pressure against its mixture's critical point.
+* :func:`phase_identification`: whether a root is liquid-like or vapor-like, by the phase
+  identification parameter of G. Venkatarathnam and L. R. Oellrich (Fluid Phase Equilib. 301
+  (2011) 225-233), Pi = v [(d2P/dv dT)/(dP/dT) - (d2P/dv2)/(dP/dv)]: Pi > 1 liquid-like, Pi < 1
+  vapor-like (an ideal gas has Pi = 1). It decides what the cubic's only real root is where the root choice cannot.
 """
 
 from __future__ import annotations
@@ -26,7 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from solver.thermo.cubic import GAS_CONSTANT, CubicParameters
+from solver.thermo.cubic import GAS_CONSTANT, CubicParameters, cubic_phase
 
 __all__ = [
     "TrivialCheck",
@@ -36,6 +40,7 @@ __all__ = [
     "pseudo_critical",
     "critical_points",
     "near_critical",
+    "phase_identification",
 ]
 
 #: Defaults of the trivial-solution test: |Z_L - Z_V| below this and ...
@@ -233,3 +238,25 @@ def near_critical(parameters: CubicParameters, temperature, pressure, x, *, temp
     above = Pr >= 1.0
     near = above | ((np.abs(Tr - 1.0) < temperature_margin) & (Pr > 1.0 - pressure_margin))
     return NearCriticalCheck(critical, Tr, Pr, above, near)
+
+
+def phase_identification(parameters: CubicParameters, temperature, pressure, x, phase: str = "liquid") -> np.ndarray:
+    """The phase identification parameter Pi (n,) of the ``phase`` root at ``temperature (n,)``
+    [K], ``pressure (n,)`` [Pa] and ``x (n,c)``: above 1 the root is liquid-like, below 1
+    vapor-like (Venkatarathnam and Oellrich 2011). Evaluated on the untranslated volume (a
+    Peneloux shift moves volumes, not phases)."""
+    temperature = np.atleast_1d(np.asarray(temperature, dtype=float))
+    pressure = np.broadcast_to(np.asarray(pressure, dtype=float), temperature.shape)
+    Z = cubic_phase(parameters, temperature, pressure, x, phase, derivatives=False).Z
+    a, da, b = parameters.mixture_attraction(temperature, x)
+    form = parameters.form
+    R = GAS_CONSTANT
+    v = Z * R * temperature / pressure
+    free = v - b
+    denominator = (v + form.delta1 * b) * (v + form.delta2 * b)
+    spread = 2.0 * v + (form.delta1 + form.delta2) * b
+    dP_dv = -R * temperature / free**2 + a * spread / denominator**2
+    d2P_dv2 = 2.0 * R * temperature / free**3 + 2.0 * a * (denominator - spread**2) / denominator**3
+    dP_dT = R / free - da / denominator
+    d2P_dvdT = -R / free**2 + da * spread / denominator**2
+    return v * (d2P_dvdT / dP_dT - d2P_dv2 / dP_dv)

@@ -320,3 +320,14 @@ def test_describe_names_every_parameter_and_its_source():
     assert text["interaction"] == [{"i": "propane", "j": "n-butane", "k_ij": 0.003, "source": "a table"}]
     assert text["volume_shift"] is None
     assert text["omega_a"] == CUBIC_FORMS["peng-robinson"].omega_a
+
+
+def test_parameters_pickle_for_worker_processes():
+    import pickle
+
+    rng = np.random.default_rng(17)
+    par = random_parameters(rng, 3, "peng-robinson", shift=True)
+    T, P, x = random_states(rng, par, 6)
+    copy = pickle.loads(pickle.dumps(par))
+    assert copy.describe() == par.describe()
+    assert np.array_equal(cubic_phase(copy, T, P, x, "liquid").d_ln_phi_dx, cubic_phase(par, T, P, x, "liquid").d_ln_phi_dx)

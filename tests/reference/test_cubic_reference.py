@@ -1,0 +1,273 @@
+"""solver.thermo.cubic against independent implementations, reference equations of state and
+measured data.
+
+Sources of the check values:
+- The package ``thermo`` (Caleb Bell, version 0.6.1 as installed), classes
+  ``thermo.eos_mix.PRMIX`` (Peng-Robinson, 1976 m), ``PR78MIX`` (1978 m above w = 0.491) and
+  ``SRKMIX``: only their equations are used, both sides get the same random constants and k_ij.
+- CoolProp's cubic backends ``AbstractState("PR" | "SRK", ...)`` (I. H. Bell and A. Jaeger,
+  J. Res. NIST 121 (2016) 238-263): constants read from the backend and given to ours.
+- CoolProp's multiparameter mixture models (backend "HEOS"): GERG-2008 reducing functions and
+  departure functions for propane/n-butane, propane/isobutane and ethane/propane (O. Kunz and
+  W. Wagner, J. Chem. Eng. Data 57 (2012) 3032-3091), fitted reducing parameters for
+  propylene/propane (I. H. Bell and E. W. Lemmon, J. Chem. Eng. Data 61 (2016) 3752-3760), over
+  the pure-fluid reference equations. Their bubble pressures are within about 1 % of good data,
+  so they stand in for data over the whole range 0.5-3 MPa.
+- Measured VLE of propane/n-butane at 323.15 K (see ``PROPANE_BUTANE_323K``).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from solver.thermo.cubic import CubicParameters, cubic_k_values, cubic_phase
+from solver.thermo.cubic_critical import critical_points, pseudo_critical
+from solver.thermo.cubic_flash import bubble_pressure, bubble_temperature
+from solver.thermo.cubic_kij import interaction_matrix
+
+CoolProp = pytest.importorskip("CoolProp")
+CP = pytest.importorskip("CoolProp.CoolProp")
+thermo_eos_mix = pytest.importorskip("thermo.eos_mix")
+
+R_THERMO = 8.31446261815324  # thermo's gas constant (CODATA 2018, full digits)
+
+
+def _random_mixture(rng, c, heavy=False):
+    tc = rng.uniform(190.0, 470.0, c)
+    pc = rng.uniform(2.5e6, 5.0e6, c)
+    omega = rng.uniform(0.5, 0.9, c) if heavy else rng.uniform(0.0, 0.45, c)
+    k = np.triu(rng.uniform(-0.02, 0.05, (c, c)), 1)
+    return tc, pc, omega, k + k.T
+
+
+THERMO_CLASSES = [("peng-robinson", "PRMIX", False, 1), ("peng-robinson", "PR78MIX", True, 2), ("soave-redlich-kwong", "SRKMIX", False, 3)]
+
+
+@pytest.mark.parametrize("variant, class_name, heavy, seed", THERMO_CLASSES)
+def test_matches_thermo_mixture_classes_at_random_states(variant, class_name, heavy, seed):
+    """Z, ln phi, departure enthalpy and their T, P and composition derivatives at 60 random
+    states against thermo: 1e-8 relative (ln phi: 1e-8 absolute where near zero)."""
+    rng = np.random.default_rng(seed)
+    cls = getattr(thermo_eos_mix, class_name)
+    checked = 0
+    for _ in range(12):
+        c = int(rng.integers(2, 5))
+        tc, pc, omega, k = _random_mixture(rng, c, heavy)
+        par = CubicParameters(tuple(f"c{i}" for i in range(c)), tc, pc, omega, variant, k)
+        for _ in range(5):
+            T = float(rng.uniform(0.6, 1.05) * tc.mean())
+            P = float(rng.uniform(1e5, 4e6))
+            z = rng.dirichlet(np.ones(c))
+            eos = cls(Tcs=list(tc), Pcs=list(pc), omegas=list(omega), zs=list(z), kijs=k.tolist(), T=T, P=P)
+            for phase, suffix in (("liquid", "l"), ("vapor", "g")):
+                if not hasattr(eos, "Z_" + suffix):
+                    continue  # thermo found one root and called it the other phase
+                ours = cubic_phase(par, T, P, z, phase)
+                assert ours.Z[0] == pytest.approx(getattr(eos, "Z_" + suffix), rel=1e-8)
+                assert ours.ln_phi[0] == pytest.approx(getattr(eos, "lnphis_" + suffix), rel=1e-8, abs=1e-8)
+                scale = 8.314462618 / R_THERMO
+                assert ours.departure_enthalpy[0] == pytest.approx(getattr(eos, "H_dep_" + suffix) * scale, rel=1e-8, abs=1e-6)
+                assert ours.d_departure_dT[0] == pytest.approx(getattr(eos, "dH_dep_dT_" + suffix) * scale, rel=1e-8, abs=1e-9)
+                assert ours.d_ln_phi_dT[0] == pytest.approx(eos.dlnphis_dT(suffix), rel=1e-7, abs=1e-11)
+                assert ours.d_ln_phi_dP[0] == pytest.approx(eos.dlnphis_dP(suffix), rel=1e-7, abs=1e-16)
+                # thermo's dlnphis_dns are mole-number derivatives at sum(n) = 1: our x convention
+                assert ours.d_ln_phi_dx[0] == pytest.approx(np.array(eos.dlnphis_dns(getattr(eos, "Z_" + suffix))), rel=1e-7, abs=1e-9)
+                checked += 1
+    assert checked >= 50
+
+
+def _coolprop_constants(state, c):
+    return [[state.get_fluid_constant(i, key) for i in range(c)] for key in (CP.iT_critical, CP.iP_critical, CP.iacentric_factor)]
+
+
+@pytest.mark.parametrize("backend, variant", [("PR", "peng-robinson"), ("SRK", "soave-redlich-kwong")])
+@pytest.mark.parametrize("fluids, k", [("Propane&n-Butane", 0.0033), ("Ethane&Propane&IsoButane", 0.01)])
+def test_matches_coolprop_cubic_backends(backend, variant, fluids, k):
+    """Z, ln phi and H - H_ig (CoolProp's hmolar_residual, in units of its own R) to 1e-8
+    relative at random states, with CoolProp's own constants and the same k_ij."""
+    state = CoolProp.AbstractState(backend, fluids)
+    c = fluids.count("&") + 1
+    tc, pc, omega = _coolprop_constants(state, c)
+    kij = np.full((c, c), k)
+    np.fill_diagonal(kij, 0.0)
+    for i in range(c):
+        for j in range(i + 1, c):
+            state.set_binary_interaction_double(i, j, "kij", k)
+    par = CubicParameters(tuple(fluids.split("&")), tc, pc, omega, variant, kij)
+    R = state.gas_constant()
+    rng = np.random.default_rng(c)
+    checked = 0
+    for _ in range(30):
+        T, P = float(rng.uniform(250.0, 420.0)), float(rng.uniform(2e5, 3e6))
+        z = rng.dirichlet(np.ones(c))
+        state.set_mole_fractions(list(z))
+        for phase, imposed in (("liquid", CP.iphase_liquid), ("vapor", CP.iphase_gas)):
+            ours = cubic_phase(par, T, P, z, phase)
+            state.specify_phase(imposed)
+            try:
+                state.update(CP.PT_INPUTS, P, T)
+            except ValueError:
+                continue  # CoolProp finds no root of that phase there
+            finally:
+                state.unspecify_phase()
+            if abs(state.compressibility_factor() / ours.Z[0] - 1.0) > 1e-6:
+                assert ours.single_root[0]  # only where the phase identity is ambiguous may the roots differ
+                continue
+            assert ours.Z[0] == pytest.approx(state.compressibility_factor(), rel=1e-8)
+            phi = [state.fugacity_coefficient(i) for i in range(c)]
+            assert ours.ln_phi[0] == pytest.approx(np.log(phi), rel=1e-8, abs=1e-8)
+            assert ours.departure_enthalpy[0] / (8.314462618 * T) == pytest.approx(state.hmolar_residual() / (R * T), rel=1e-8, abs=1e-9)
+            checked += 1
+    assert checked >= 50
+
+
+def test_bubble_points_and_critical_points_match_coolprop_peng_robinson():
+    """Our bubble-pressure and bubble-temperature routines and the Heidemann-Khalil critical
+    points against CoolProp's PR backend (its bubble points and critical-point tracing)."""
+    state = CoolProp.AbstractState("PR", "Propane&n-Butane")
+    tc, pc, omega = _coolprop_constants(state, 2)
+    par = CubicParameters(("propane", "n-butane"), tc, pc, omega)
+    x1 = np.array([0.1, 0.3, 0.5, 0.7, 0.9])
+    x = np.c_[x1, 1 - x1]
+    bubble = bubble_pressure(par, np.full(5, 330.0), x)
+    assert bubble.converged.all() and not bubble.trivial.any()
+    again = bubble_temperature(par, bubble.pressure, x)
+    assert again.converged.all()
+    assert np.allclose(again.temperature, 330.0, rtol=1e-9)
+    critical = critical_points(par, x)
+    assert critical.converged.all()
+    for row, composition in enumerate(x):
+        state.set_mole_fractions(list(composition))
+        state.update(CP.QT_INPUTS, 0.0, 330.0)
+        assert bubble.pressure[row] == pytest.approx(state.p(), rel=1e-9)
+        assert bubble.y[row, 0] == pytest.approx(state.mole_fractions_vapor()[0], rel=1e-8)
+        point = state.all_critical_points()[0]
+        assert critical.temperature[row] == pytest.approx(point.T, rel=1e-7)
+        assert critical.pressure[row] == pytest.approx(point.p, rel=1e-7)
+    # Kay's rule is a rough first cut: below the true critical pressure of these mixtures
+    _, pseudo_pressure = pseudo_critical(par, x)
+    assert np.all(pseudo_pressure < critical.pressure)
+
+
+# ----------------------------------------------------------------------------- against the reference equations
+
+PAIRS = [
+    ("propane", "n-butane", "Propane", "n-Butane"),
+    ("propane", "isobutane", "Propane", "IsoButane"),
+    ("ethane", "propane", "Ethane", "Propane"),
+    ("propylene", "propane", "Propylene", "Propane"),
+]
+
+
+def reference_parameters(names, fluids, k=None) -> CubicParameters:
+    """PR constants taken from the pure-fluid reference equations in CoolProp (critical point
+    and acentric factor), the usual way to set up a cubic for a fluid with such an equation."""
+    constants = [[CP.PropsSI(key, fluid) for fluid in fluids] for key in ("Tcrit", "pcrit", "acentric")]
+    return CubicParameters(tuple(names), *constants, "peng-robinson", k)
+
+
+def reference_bubble_points(fluids):
+    """Bubble temperature and incipient vapor from the reference mixture model at liquid
+    mole fractions 0.1-0.9 and pressures 0.5-3 MPa (points above the mixture's critical
+    pressure or where CoolProp fails are skipped)."""
+    state = CoolProp.AbstractState("HEOS", "&".join(fluids))
+    rows = []
+    for x1 in (0.1, 0.3, 0.5, 0.7, 0.9):
+        for pressure in (0.5e6, 1.0e6, 2.0e6, 3.0e6):
+            state.set_mole_fractions([x1, 1.0 - x1])
+            try:
+                state.update(CP.PQ_INPUTS, pressure, 0.0)
+            except ValueError:
+                continue
+            rows.append((state.T(), x1, pressure, state.mole_fractions_vapor()[0]))
+    return np.array(rows)
+
+
+#: Largest relative bubble-pressure and relative-volatility deviations from the reference
+#: models we accept, per pair: PR with k_ij near zero is typically within 2-5 % in bubble
+#: pressure for light hydrocarbon pairs (common practice); the numbers found when this test was
+#: written (largest |dP/P| with k = 0 / table k_ij: 0.7/1.1 %, 1.1/1.9 %, 2.3/2.6 %, 2.6/0.8 %)
+#: have a margin of about 1 % of pressure.
+PRESSURE_TOLERANCE = 0.035
+VOLATILITY_TOLERANCE = 0.08
+
+
+@pytest.mark.parametrize("names, fluids", [(p[:2], p[2:]) for p in PAIRS], ids=[f"{p[0]}-{p[1]}" for p in PAIRS])
+@pytest.mark.parametrize("with_table", [False, True], ids=["k=0", "k from table"])
+def test_bubble_pressures_near_the_reference_mixture_models(names, fluids, with_table):
+    rows = reference_bubble_points(fluids)
+    assert len(rows) >= 18
+    k = interaction_matrix(names)[0] if with_table else None
+    par = reference_parameters(names, fluids, k)
+    T, x1, pressure, y1 = rows.T
+    ours = bubble_pressure(par, T, np.c_[x1, 1 - x1])
+    assert ours.converged.all()
+    deviation = ours.pressure / pressure - 1.0
+    assert np.abs(deviation).max() < PRESSURE_TOLERANCE
+    alpha_reference = (y1 / x1) / ((1 - y1) / (1 - x1))
+    alpha = ours.K[:, 0] / ours.K[:, 1]
+    assert np.abs(alpha / alpha_reference - 1.0).max() < VOLATILITY_TOLERANCE
+    assert np.all(alpha > 1.0)  # the lighter component stays the lighter one
+
+
+#: Propane (1) / n-butane (2) at 323.15 K: P [Pa], x1, y1. Twelve points of an isotherm as
+#: stored in a public code repository's data file, which names no journal; an isotherm at
+#: this temperature was measured by a continuous-circulation apparatus and published in
+#: J. Chem. Eng. Data 53 (2008) 2783-2786 ("Vapor-Liquid Equilibria for Propane (R290) +
+#: n-Butane (R600) at Various Temperatures"; abstract read, table not seen), the likely origin.
+#: Status: not verified against the journal table. The GERG-2008 model agrees with these points
+#: within 2.1 % in pressure and 0.019 in y1, as measured data of this pair should.
+PROPANE_BUTANE_323K = np.array(
+    [
+        (557000, 0.054, 0.139), (618000, 0.112, 0.254), (743000, 0.226, 0.432), (878000, 0.334, 0.563),
+        (971000, 0.426, 0.651), (1101000, 0.535, 0.732), (1222000, 0.634, 0.804), (1324000, 0.714, 0.853),
+        (1448000, 0.808, 0.906), (1564000, 0.895, 0.950), (1602000, 0.922, 0.964), (1643000, 0.951, 0.978),
+    ]
+)
+
+
+@pytest.mark.parametrize("with_table", [False, True], ids=["k=0", "k from table"])
+def test_propane_n_butane_bubble_points_against_measured_data(with_table):
+    """Within 2.5 % in pressure and 0.025 in y1 (the reference model's own deviations from these
+    points reach 2.1 % and 0.019; PR does as well here)."""
+    names, fluids = ("propane", "n-butane"), ("Propane", "n-Butane")
+    par = reference_parameters(names, fluids, interaction_matrix(names)[0] if with_table else None)
+    pressure, x1, y1 = PROPANE_BUTANE_323K.T
+    ours = bubble_pressure(par, np.full(x1.shape, 323.15), np.c_[x1, 1 - x1])
+    assert ours.converged.all()
+    assert np.abs(ours.pressure / pressure - 1.0).max() < 0.025
+    assert np.abs(ours.y[:, 0] - y1).max() < 0.025
+    assert np.abs(np.mean(ours.pressure / pressure - 1.0)) < 0.01
+
+
+def test_propylene_propane_relative_volatility_at_splitter_conditions():
+    """At 45 C the bubble pressure of propylene/propane liquids is 15.5-18.5 bar and the relative
+    volatility is near 1.1 (common practice for C3 splitters: 1.08-1.2); PR with the table k_ij
+    within 2 % of the reference mixture model's volatility."""
+    names, fluids = ("propylene", "propane"), ("Propylene", "Propane")
+    par = reference_parameters(names, fluids, interaction_matrix(names)[0])
+    x1 = np.linspace(0.05, 0.99, 8)
+    ours = bubble_pressure(par, np.full(8, 318.15), np.c_[x1, 1 - x1])
+    alpha = ours.K[:, 0] / ours.K[:, 1]
+    assert np.all((alpha > 1.06) & (alpha < 1.2))
+    assert np.all((ours.pressure > 15.0e5) & (ours.pressure < 19.0e5))
+    state = CoolProp.AbstractState("HEOS", "Propylene&Propane")
+    for row, fraction in enumerate(x1):
+        state.set_mole_fractions([fraction, 1 - fraction])
+        state.update(CP.QT_INPUTS, 0.0, 318.15)
+        y = state.mole_fractions_vapor()[0]
+        assert alpha[row] == pytest.approx((y / fraction) / ((1 - y) / (1 - fraction)), rel=0.02)
+
+
+def test_peneloux_shift_leaves_bubble_points_unchanged():
+    names, fluids = ("propane", "n-butane"), ("Propane", "n-Butane")
+    par = reference_parameters(names, fluids)
+    shifted = par.with_volume_shift([4.9e-6, 6.8e-6], "invented for the test")
+    x = np.array([[0.2, 0.8], [0.6, 0.4]])
+    plain, moved = bubble_pressure(par, [300.0, 340.0], x), bubble_pressure(shifted, [300.0, 340.0], x)
+    assert np.allclose(moved.pressure, plain.pressure, rtol=1e-10)
+    k_plain = cubic_k_values(par, [300.0, 340.0], plain.pressure, x, plain.y)
+    k_moved = cubic_k_values(shifted, [300.0, 340.0], plain.pressure, x, plain.y)
+    assert np.allclose(k_moved.K, k_plain.K, rtol=1e-13)
+    assert np.all(k_moved.liquid.molar_volume < k_plain.liquid.molar_volume)

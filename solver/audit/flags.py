@@ -19,7 +19,7 @@ from ..results import json_safe
 from ..shortcut import MinimumReflux
 from .cmo import PINCH_CONTRAST, CMOAudit, composition_steps
 from .search import StageSearch
-from .thresholds import SEVERITIES, grade
+from .thresholds import SEVERITIES, severity_of
 from .variants import RigorousRun
 
 __all__ = [
@@ -70,7 +70,9 @@ def purity_shortfall(target: str, ratio: float, stages: int, feed_stage: int, re
                      thresholds: Mapping[str, float]) -> Flag | None:
     """PURITY_SHORTFALL: the shortcut's column delivers more than the specified impurity of the
     ``target`` (``ratio`` = delivered / specified impurity)."""
-    severity = grade(ratio - 1.0, thresholds["purity_shortfall"], thresholds["serious_factor"]) if ratio > 1.0 else None
+    if not ratio > 1.0:
+        return None
+    severity = severity_of(ratio - 1.0, thresholds["purity_shortfall"], thresholds["serious_factor"])
     if severity is None:
         return None
     return Flag(
@@ -88,7 +90,7 @@ def cmo_deviation(cmo: CMOAudit, thresholds: Mapping[str, float]) -> Flag | None
     vapor, vapor_stage = cmo.largest_vapor_deviation
     distance, distance_stage = cmo.largest_line_distance
     worst = max(abs(liquid) if math.isfinite(liquid) else 0.0, abs(vapor) if math.isfinite(vapor) else 0.0)
-    severity = grade(worst, thresholds["cmo_deviation"], thresholds["serious_factor"])
+    severity = severity_of(worst, thresholds["cmo_deviation"], thresholds["serious_factor"])
     if severity is None:
         return None
     which = "liquid" if abs(liquid) >= abs(vapor) else "vapor"
@@ -113,7 +115,9 @@ def feed_condition(cmo: CMOAudit, thresholds: Mapping[str, float]) -> Flag | Non
     """FEED_CONDITION: the feed moves the section flows differently from its q (a warning or
     worse), or its q is far enough from 1 to be worth noting (info)."""
     difference = cmo.q_effective - cmo.q
-    severity = grade(difference, thresholds["feed_condition"], thresholds["serious_factor"]) if math.isfinite(difference) else None
+    severity = None
+    if math.isfinite(difference):
+        severity = severity_of(difference, thresholds["feed_condition"], thresholds["serious_factor"])
     numbers = {"q": cmo.q, "q_effective": cmo.q_effective, "difference": difference, "feed_stage": cmo.feed_stage,
                "threshold": thresholds["feed_condition"], "q_offset_threshold": thresholds["feed_q_offset"]}
     if severity:
@@ -144,7 +148,7 @@ def duty_difference(duty: str, estimate: float, rigorous: float | None, what: st
     if rigorous is None or not math.isfinite(estimate) or rigorous == 0:
         return None
     difference = (estimate - rigorous) / abs(rigorous)
-    severity = grade(difference, thresholds["duty_difference"], thresholds["serious_factor"])
+    severity = severity_of(difference, thresholds["duty_difference"], thresholds["serious_factor"])
     if severity is None:
         return None
     return Flag(
@@ -163,7 +167,7 @@ def tangent_pinch(method: str, pinch: MinimumReflux, thresholds: Mapping[str, fl
     if pinch.pinch != "tangent" or not pinch.feed_pinch_ratio > 0:
         return None
     excess = pinch.ratio / pinch.feed_pinch_ratio - 1.0
-    severity = grade(excess, thresholds["tangent_pinch"], thresholds["serious_factor"]) or "info"
+    severity = severity_of(excess, thresholds["tangent_pinch"], thresholds["serious_factor"]) or "info"
     return Flag(
         "TANGENT_PINCH", severity,
         f"{method}: a tangent pinch in the {pinch.section} section at x = {pinch.x:.4f} sets the minimum reflux "
@@ -239,7 +243,7 @@ def reflux_difference(needed: RigorousRun, shortcut_reflux: float, design_reflux
         )
     R_needed = float(needed.reflux_ratio)
     difference = R_needed / shortcut_reflux - 1.0
-    severity = grade(difference, thresholds["reflux_difference"], thresholds["serious_factor"])
+    severity = severity_of(difference, thresholds["reflux_difference"], thresholds["serious_factor"])
     if severity is None:
         return None
     return Flag(

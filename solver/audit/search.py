@@ -106,6 +106,59 @@ class CountSearch:
     tried: tuple[tuple[int, int, float | None], ...]
 
 
+class _FeedStageWalk:
+    """The best feed stage for each stage count tried, and the verdict of each count.
+
+    For a count the feed stage starts from the best one of the nearest count tried, stretched,
+    and moves while that lowers the ratio (the side it last moved to tried first; the stride
+    doubling along a run of improvements, back to one stage after an overshoot), stopping as
+    soon as the targets are met."""
+
+    def __init__(self, evaluate: Callable[[int, int], float], start_stages: int, start_feed_stage: int) -> None:
+        self.evaluate = evaluate
+        self.tried: list[tuple[int, int, float | None]] = []
+        self.verdicts: dict[int, tuple[float, int]] = {}  # stages -> (worst impurity ratio, feed stage)
+        self.best_feed: dict[int, int] = {start_stages: start_feed_stage}
+        self.preferred = -1  # the side the feed stage last moved to, tried first
+
+    def guess_feed(self, stages: int) -> int:
+        known = min(self.best_feed, key=lambda n: abs(n - stages))
+        f = self.best_feed[known]
+        guess = 1 + round((f - 1) * (stages - 1) / max(known - 1, 1))
+        return int(min(max(guess, 2), stages - 1))
+
+    def __call__(self, stages: int) -> float:
+        """The lowest worst impurity ratio found for ``stages`` (at most 1 once the targets are met)."""
+        seen: dict[int, float] = {}
+
+        def at(f: int) -> float:
+            if f not in seen:
+                seen[f] = float(self.evaluate(stages, f))
+                self.tried.append((stages, f, seen[f] if math.isfinite(seen[f]) else None))
+            return seen[f]
+
+        f = self.guess_feed(stages)
+        value = at(f)
+        direction, stride = 0, 1
+        while value > 1.0 + MET_TOLERANCE:
+            sides = (direction,) if direction else (self.preferred, -self.preferred)
+            for side in sides:
+                g = min(max(f + side * stride, 2), stages - 1)
+                if g != f and at(g) < value:
+                    direction, f, value = side, g, at(g)
+                    self.preferred = side
+                    stride *= 2  # a run of improvements in one direction: longer strides
+                    break
+            else:
+                if stride > 1:
+                    stride = 1  # overshot: back to single stages around the best so far
+                    continue
+                break
+        self.best_feed[stages] = f
+        self.verdicts[stages] = (value, f)
+        return value
+
+
 def search_stage_count(
     evaluate: Callable[[int, int], float],
     start_stages: int,
@@ -118,55 +171,13 @@ def search_stage_count(
     f (2 <= f <= N - 1) gives ``evaluate(N, f) <= 1`` (the worst impurity ratio of a solved
     column; infinity for a failed solve).
 
-    For each count the feed stage starts from the best one of the nearest count tried,
-    stretched, and moves while that lowers the ratio (the side it last moved to tried first;
-    the stride doubling along a run of improvements, back to one stage after an overshoot),
-    stopping as soon as the targets are met. The count starts at ``start_stages`` and moves down (if its column
-    meets the targets) or up (if not) by secant steps on the log of the ratio until the answer
-    is bracketed, then by regula falsi and bisection to one stage (:func:`_next_count`).
-    ``evaluate`` may raise :class:`_BudgetSpent` to stop the search (``complete`` False)."""
+    For each count the feed stage is moved as :class:`_FeedStageWalk` says. The count starts at
+    ``start_stages`` and moves down (if its column meets the targets) or up (if not) by secant
+    steps on the log of the ratio until the answer is bracketed, then by regula falsi and
+    bisection to one stage (:func:`_next_count`). ``evaluate`` may raise :class:`_BudgetSpent`
+    to stop the search (``complete`` False)."""
     largest = largest or max(2 * start_stages, start_stages + 20)
-    tried: list[tuple[int, int, float | None]] = []
-    verdicts: dict[int, tuple[float, int]] = {}
-    best_feed: dict[int, int] = {start_stages: start_feed_stage}
-    preferred = [-1]  # the side the feed stage last moved to, tried first
-
-    def guess_feed(stages: int) -> int:
-        known = min(best_feed, key=lambda n: abs(n - stages))
-        f = best_feed[known]
-        guess = 1 + round((f - 1) * (stages - 1) / max(known - 1, 1))
-        return int(min(max(guess, 2), stages - 1))
-
-    def evaluate_count(stages: int) -> float:
-        seen: dict[int, float] = {}
-
-        def at(f: int) -> float:
-            if f not in seen:
-                seen[f] = float(evaluate(stages, f))
-                tried.append((stages, f, seen[f] if math.isfinite(seen[f]) else None))
-            return seen[f]
-
-        f = guess_feed(stages)
-        value = at(f)
-        direction, stride = 0, 1
-        while value > 1.0 + MET_TOLERANCE:
-            sides = (direction,) if direction else (preferred[0], -preferred[0])
-            for side in sides:
-                g = min(max(f + side * stride, 2), stages - 1)
-                if g != f and at(g) < value:
-                    direction, f, value = side, g, at(g)
-                    preferred[0] = side
-                    stride *= 2  # a run of improvements in one direction: longer strides
-                    break
-            else:
-                if stride > 1:
-                    stride = 1  # overshot: back to single stages around the best so far
-                    continue
-                break
-        best_feed[stages] = f
-        verdicts[stages] = (value, f)
-        return value
-
+    walk = _FeedStageWalk(evaluate, start_stages, start_feed_stage)
     complete = True
     low = high = None  # largest count known to fail the targets, smallest known to meet them
     points: list[tuple[int, float]] = []
@@ -176,7 +187,7 @@ def search_stage_count(
         while n is not None:
             if low is not None and high is not None:
                 inside += 1
-            value = evaluate_count(n)
+            value = walk(n)
             points.append((n, value))
             if value <= 1.0 + MET_TOLERANCE:
                 high = n if high is None else min(high, n)
@@ -185,14 +196,14 @@ def search_stage_count(
             if high is not None and high <= smallest:
                 break
             n = _next_count(points, low, high, start_stages, smallest, largest, bisect=inside >= 2)
-            if n is not None and n in verdicts:
+            if n is not None and n in walk.verdicts:
                 n = None
     except _BudgetSpent:
         complete = False
     if high is None:
-        return CountSearch(None, None, low, complete, tuple(tried))
+        return CountSearch(None, None, low, complete, tuple(walk.tried))
     settled = high <= smallest or (low is not None and high - low <= 1)
-    return CountSearch(high, verdicts[high][1], low, complete and settled, tuple(tried))
+    return CountSearch(high, walk.verdicts[high][1], low, complete and settled, tuple(walk.tried))
 
 
 def stage_search(

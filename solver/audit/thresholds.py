@@ -12,7 +12,7 @@ __all__ = [
     "DEFAULT_THRESHOLDS",
     "SEVERITIES",
     "THRESHOLD_REASONS",
-    "grade",
+    "severity_of",
     "resolve_thresholds",
 ]
 
@@ -76,7 +76,7 @@ def resolve_thresholds(case: Case | None = None, given: Mapping[str, float] | No
     return chosen
 
 
-def grade(measure: float, threshold: float, serious_factor: float) -> str | None:
+def severity_of(measure: float, threshold: float, serious_factor: float) -> str | None:
     """None when ``|measure|`` is within ``threshold``, "warning" beyond it, "serious" beyond
     ``serious_factor`` times it."""
     measure = abs(measure)

@@ -54,19 +54,8 @@ UNITS = {
 }
 
 
-class ResultSection(Protocol):
-    """Typed findings a later step attaches to a result under a key of ``Result.extra`` (the
-    shortcut designs, the audit); ``as_json()`` gives the plain data result.json holds under
-    that key."""
-
-    def as_json(self) -> Mapping[str, Any]: ...
-
-
 @dataclass(frozen=True)
 class StageFeed:
-    """A feed as a stage receives it: ``flow`` mol/s, mole fractions ``z``, the molar enthalpy
-    ``h`` the energy balance takes (J/mol), and its state as given (K, Pa) with its q."""
-
     flow: float  # mol/s
     z: tuple[float, ...]
     h: float  # J/mol, as the energy balance uses it
@@ -340,6 +329,14 @@ class Result:
     def with_extra(self, **sections: ResultSection) -> "Result":
         """This result with ``sections`` attached to ``extra`` (by key)."""
         return dataclasses.replace(self, extra={**self.extra, **sections})
+
+
+class ResultSection(Protocol):
+    """Typed findings a later step attaches to a result under a key of ``Result.extra`` (the
+    shortcut designs, the audit); ``as_json()`` gives the plain data result.json holds under
+    that key."""
+
+    def as_json(self) -> Mapping[str, Any]: ...
 
 
 def json_safe(value: Any) -> Any:

@@ -35,10 +35,12 @@ __all__ = [
 
 
 def flag_record(flag: Flag) -> dict[str, Any]:
+    """A flag: code, severity, message and its numbers."""
     return {"code": flag.code, "severity": flag.severity, "message": flag.message, "numbers": dict(flag.numbers)}
 
 
 def run_record(run: RigorousRun, components: Sequence[str]) -> dict[str, Any]:
+    """A rigorous run, its product compositions keyed by component name."""
     return {
         "label": run.label,
         "stages": run.stages,
@@ -58,6 +60,7 @@ def run_record(run: RigorousRun, components: Sequence[str]) -> dict[str, Any]:
 
 
 def stage_search_record(search: StageSearch, components: Sequence[str]) -> dict[str, Any]:
+    """The stage search: its answer, every (stages, feed stage) tried, the run it found."""
     return {
         "reflux_ratio": search.reflux_ratio,
         "distillate_flow": search.distillate_flow,
@@ -102,6 +105,7 @@ def cmo_record(cmo: CMOAudit) -> dict[str, Any]:
 
 
 def _cmo_deviation_record(cmo: CMOAudit) -> list[dict[str, Any]]:
+    """The relative deviation of the liquid and the vapor from CMO, stage by stage."""
     return [
         {"stage": j + 1, "liquid": json_safe(cmo.liquid_deviation[j]), "vapor": json_safe(cmo.vapor_deviation[j])}
         for j in range(cmo.liquid.size)

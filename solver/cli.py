@@ -1,6 +1,6 @@
 """The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``check``, ``sweep``, ``components``.
 
-Exit codes (DESIGN.md): 0 success; 1 ``check`` found drift or a case that failed, or ``audit``
+Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit``
 raised a flag at or above ``--fail-on``; 2 bad input or
 an infeasible specification (one message naming the file, key and value; ``--debug`` shows the
 traceback); 3 the solver did not converge (``run`` still writes the result, marked
@@ -28,6 +28,8 @@ from rich.table import Table
 from . import __version__
 from .errors import CaseError, ConvergenceError, TraystackError
 from .reports import CAUTION
+
+__all__ = ["COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
@@ -146,7 +148,7 @@ SHORTCUT_SCHEMA = "traystack-shortcut/1"
 def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
-    from .audit import shortcut_case, shortcut_record
+    from .audit import shortcut_case
     from .case import load_case
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
@@ -158,20 +160,19 @@ def command_shortcut(args: argparse.Namespace) -> int:
     case = load_case(case_path)
     units = display_units(case.display, args.units)
     report = shortcut_case(case)
-    record = shortcut_record(report)
     out = Path(args.out) if args.out else _default_out(case_path, "_shortcut")
     document = {
         "schema": SHORTCUT_SCHEMA, "title": case.title, "case": case_summary(case),
-        "components": list(case.component_names), "units": dict(UNITS), "shortcut": record,
+        "components": list(case.component_names), "units": dict(UNITS), "shortcut": report.as_json(),
     }
     written = [write_atomic(out / "shortcut.json", json.dumps(json_safe(document), indent=2, allow_nan=False) + "\n")]
     if report.is_binary:
         layers = [shortcut_layer(report.enthalpy_design, curve=False, steps=False, q_line=False, pinch=False,
                                  linestyle="--")] if report.enthalpy_design else []
         written.append(shortcut_yx_diagram(report.design, out / "yx_shortcut.png", title=case.title, layers=layers))
-    for table in shortcut_tables(record, units, case.title):
+    for table in shortcut_tables(report, units, case.title):
         console.print(table)
-    for note in record.get("notes", []):
+    for note in report.design.notes:
         console.print(f"note: {note}")
     if report.enthalpy_message:
         console.print(f"[yellow]Ponchon-Savarit design not possible:[/] {report.enthalpy_message}")

@@ -24,6 +24,21 @@ from matplotlib.ticker import MaxNLocator  # noqa: E402
 from .results import Result, write_atomic  # noqa: E402
 from .thermo.flash import bubble_temperature  # noqa: E402
 
+__all__ = [
+    "YXLayer",
+    "cmo_flow_profiles",
+    "composition_profiles",
+    "equilibrium_curve",
+    "flow_profiles",
+    "light_component",
+    "shortcut_layer",
+    "shortcut_yx_diagram",
+    "sweep_plot",
+    "temperature_profile",
+    "write_all",
+    "yx_diagram",
+]
+
 #: Something that draws on the y-x diagram: called as ``layer(axes, light)``, ``light`` being the
 #: index of the component whose mole fractions are on the axes.
 YXLayer = Callable[[plt.Axes, int], None]
@@ -109,8 +124,8 @@ def _balance_sections(result: Result) -> np.ndarray:
     special = np.zeros(result.stage_count, dtype=bool)
     special |= np.array([len(feeds) > 0 for feeds in result.stage_feeds])
     special |= (result.liquid_draw > 0) | (result.vapor_draw > 0)
-    for heater in result.case.get("column", {}).get("stage_duties", []):
-        special[heater["stage"] - 1] = True
+    for heater in result.stage_duties:
+        special[heater.stage - 1] = True
     special[0] = False
     return np.cumsum(special)[:-1]
 

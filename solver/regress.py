@@ -52,7 +52,7 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 from . import __version__
 from .case import TOLERANCE_KEYS, Case, load_case
 from .errors import CaseError, TraystackError
-from .audit import audit_solution
+from .audit import AuditReport, SolutionAudit, audit_solution
 from .results import Result, write_atomic
 from .engine import simulate
 from .thermo.package import ThermoPackage
@@ -202,8 +202,8 @@ def solve_case(case: Case) -> Result:
 
 def audit_flags(result: Result) -> list[str]:
     """Sorted flag codes of the audit attached to ``result`` (``result.extra["audit"]``), if any."""
-    audit = result.extra.get("audit") or {}
-    return sorted({str(flag.get("code", "")) for flag in audit.get("flags", [])})
+    audit = result.extra.get("audit")
+    return sorted({flag.code for flag in audit.flags}) if isinstance(audit, (AuditReport, SolutionAudit)) else []
 
 
 def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:

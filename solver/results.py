@@ -3,12 +3,15 @@
 All writes are atomic: the file is written under a temporary name in the same folder and moved
 over the target with :func:`os.replace`, so an interrupted run leaves the previous file intact.
 
-Stream conventions (DESIGN.md): ``L`` and ``V`` are the liquid and vapor flows leaving a stage
-for its neighbours, side draws excluded (``liquid_draw`` / ``vapor_draw``). On a total
+Stream conventions of every result: ``L`` and ``V`` are the liquid and vapor flows leaving a
+stage for its neighbours, side draws excluded (``liquid_draw`` / ``vapor_draw``). On a total
 condenser ``L`` is the reflux, ``V`` is 0 and the distillate is the ``liquid_draw``; on a
 partial condenser (or a top stage without condenser) ``V`` is the vapor overhead product; on
 a partial reboiler (or the bottom stage) ``L`` is the bottoms product. A duty is the heat added
 to the stage (a condenser's is negative).
+
+Later steps attach typed findings to a result (``Result.extra``: the shortcut designs, the
+audit); each is a :class:`ResultSection`, turned into plain data only when the JSON is written.
 """
 
 from __future__ import annotations
@@ -22,11 +25,23 @@ import os
 import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Mapping
+from typing import Any, Mapping, Protocol
 
 import numpy as np
 
+from .case import Spec, StageDuty
 from .streams import FlashedFeed
+
+__all__ = [
+    "SCHEMA",
+    "UNITS",
+    "Result",
+    "ResultSection",
+    "json_safe",
+    "write_atomic",
+    "write_result_json",
+    "write_stages_csv",
+]
 
 SCHEMA = "traystack-result/1"
 UNITS = {
@@ -72,7 +87,7 @@ class Result:
     enthalpy_model: str = "rigorous"
     post_check: Mapping[str, float] = field(default_factory=dict)
     strategy: Mapping[str, Any] = field(default_factory=dict)  # which rung of the fallback chain solved it
-    extra: Mapping[str, Any] = field(default_factory=dict)  # shortcut, audit, ... added downstream
+    extra: Mapping[str, ResultSection] = field(default_factory=dict)  # "shortcut", "audit": added downstream
 
     @property
     def stage_count(self) -> int:
@@ -114,6 +129,38 @@ class Result:
         if self.reboiler == "none" or self.bottoms_flow <= 0:
             return None
         return float(self.vapor_flow[-1] / self.bottoms_flow)
+
+    # ------------------------------------------------------------------ the case as recorded
+    @property
+    def specs(self) -> tuple[Spec, ...]:
+        """The specifications of the case (SI), as ``case`` records them."""
+        return tuple(Spec(**spec) for spec in self.case.get("specs", ()))
+
+    @property
+    def stage_duties(self) -> tuple[StageDuty, ...]:
+        """The side heaters (duty > 0) and coolers of the case (W)."""
+        return tuple(StageDuty(**duty) for duty in self.case.get("column", {}).get("stage_duties", ()))
+
+    @property
+    def reflux_temperature(self) -> float | None:
+        """The temperature of a subcooled reflux the case specifies (K), if any."""
+        return self.case.get("column", {}).get("reflux_temperature")
+
+    @property
+    def reflux_subcooling(self) -> float | None:
+        """The subcooling of the reflux below its bubble point the case specifies (K), if any."""
+        return self.case.get("column", {}).get("reflux_subcooling")
+
+    @property
+    def stated_efficiencies(self) -> np.ndarray:
+        """The Murphree vapor efficiency of each stage as the case states it (the solved
+        column's, ``efficiency``, when the case does not record them)."""
+        return np.asarray(self.case.get("column", {}).get("efficiencies") or self.efficiency, dtype=float)
+
+    @property
+    def case_warnings(self) -> tuple[str, ...]:
+        """The warnings the case reader gave."""
+        return tuple(str(warning) for warning in self.case.get("warnings", ()))
 
     def balances(self) -> dict[str, float]:
         """Overall component and energy closure recomputed from the reported streams alone."""
@@ -244,7 +291,7 @@ class Result:
                 "solution_strategy": dict(self.strategy),
                 "thermo": self.thermo,
                 "iteration_log": [dict(entry) for entry in self.iteration_log],
-                **{key: value for key, value in self.extra.items()},
+                **{key: section.as_json() for key, section in self.extra.items()},
             }
         )
 
@@ -267,8 +314,17 @@ class Result:
             )
         return buffer.getvalue()
 
-    def with_extra(self, **items: Any) -> "Result":
-        return dataclasses.replace(self, extra={**self.extra, **items})
+    def with_extra(self, **sections: ResultSection) -> "Result":
+        """This result with ``sections`` attached to ``extra`` (by key)."""
+        return dataclasses.replace(self, extra={**self.extra, **sections})
+
+
+class ResultSection(Protocol):
+    """Typed findings a later step attaches to a result under a key of ``Result.extra`` (the
+    shortcut designs, the audit); ``as_json()`` gives the plain data result.json holds under
+    that key."""
+
+    def as_json(self) -> Mapping[str, Any]: ...
 
 
 def json_safe(value: Any) -> Any:
@@ -323,8 +379,10 @@ def write_atomic(path: str | os.PathLike, text: str | bytes) -> Path:
 
 
 def write_result_json(result: Result, path: str | os.PathLike) -> Path:
+    """Write ``result`` as result.json (schema :data:`SCHEMA`) to ``path`` atomically."""
     return write_atomic(path, result.to_json() + "\n")
 
 
 def write_stages_csv(result: Result, path: str | os.PathLike) -> Path:
+    """Write the stage table of ``result`` as CSV to ``path`` atomically."""
     return write_atomic(path, result.stages_csv())

@@ -32,6 +32,8 @@ from solver.case import AUDIT_THRESHOLD_KEYS, Spec, load_case
 from solver.engine import simulate
 from solver.errors import SpecError
 from solver.shortcut import BinaryDesign, MulticomponentDesign
+from solver.shortcut.fug import gilliland_stages
+from solver.shortcut.mccabe_thiele import mccabe_thiele
 from solver.thermo.package import ThermoPackage
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
@@ -201,8 +203,8 @@ def test_cases_the_shortcut_does_not_treat_are_refused_or_left_out():
         audit_case(side_draw)
     assert "traystack run" in str(refused.value)  # it says what can be done instead
     result = simulate(methanol_water_case(stages=10, feed_stage=6))
-    audited = audit_solution(side_draw, result)
-    assert audited.extra["audit"]["applicable"] is False and audited.extra["audit"]["flags"] == []
+    audited = audit_solution(side_draw, result).to_dict()
+    assert audited["audit"]["applicable"] is False and audited["audit"]["flags"] == []
 
 
 # ------------------------------------------------------------------ CMO: the audit finds nothing to report
@@ -319,6 +321,26 @@ def test_four_component_column_against_the_multicomponent_shortcut(paraffins):
     assert "PURITY_SHORTFALL" not in codes(report)
 
 
+def test_the_shortcuts_reflux_for_its_own_stage_count_steps_off_exactly_that_count(methanol_water, paraffins):
+    """The reflux the shortcut itself needs for its integer stage count (the rigorous reflux is
+    compared with it): McCabe-Thiele stepping at that reflux takes exactly that many stages,
+    and so does the Gilliland-Molokanov correlation for the four-component column (computed
+    here, a check of the root finding)."""
+    binary = methanol_water.shortcut.design
+    R = methanol_water.shortcut_reflux_at_stages
+    assert binary.minimum_reflux_ratio < R < binary.reflux_ratio
+    steps = mccabe_thiele(binary.curve, x_distillate=binary.x_distillate, x_bottoms=binary.x_bottoms,
+                          x_feed=binary.x_feed, q=binary.q, reflux_ratio=R, feed_flow=binary.feed_flow,
+                          condenser=binary.condenser)
+    assert steps.fractional_stages == pytest.approx(binary.stages, abs=1e-8)
+    fugk = paraffins.shortcut.design
+    R = paraffins.shortcut_reflux_at_stages
+    assert fugk.minimum_reflux < R < fugk.reflux_ratio
+    equilibrium_stages = fugk.stages - (1 if fugk.condenser == "total" else 0)
+    assert gilliland_stages(fugk.minimum_equilibrium_stages, fugk.minimum_reflux, R) == pytest.approx(
+        equilibrium_stages, abs=1e-8)
+
+
 def test_audit_result_file_holds_shortcut_audit_and_per_stage_deviations(methanol_water):
     document = json.loads(methanol_water.result.to_json())
     audit, shortcut = document["audit"], document["shortcut"]
@@ -357,7 +379,7 @@ def test_a_shortcut_column_that_does_not_converge_is_a_serious_flag(monkeypatch)
     audit says so, with the column it tried, instead of comparing against a non-answer."""
     import dataclasses as dc
 
-    import solver.audit as audit_module
+    import solver.audit.variants as audit_module
 
     real = audit_module.simulate
     calls = []

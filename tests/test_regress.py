@@ -219,7 +219,7 @@ def test_solve_case_attaches_the_solution_audit_and_the_baseline_records_its_fla
     from solver.regress import audit_flags, solve_case
 
     result = solve_case(case_from_text(CASE_TEXT))
-    audit = result.extra["audit"]
+    audit = result.to_dict()["audit"]
     assert audit["scope"] == "solution" and audit["applicable"] is True
     assert len(audit["cmo_deviation"]) == result.stage_count
     recorded = baseline_from_result(result, "cases/column.toml")["audit_flags"]
@@ -227,4 +227,4 @@ def test_solve_case_attaches_the_solution_audit_and_the_baseline_records_its_fla
     assert "CMO_DEVIATION" in recorded  # methanol-water with real enthalpies
     # the same column under constant molar overflow: nothing to flag
     cmo = solve_case(case_from_text(CASE_TEXT.replace('enthalpy = "rigorous"', 'enthalpy = "cmo"')))
-    assert cmo.extra["audit"]["applicable"] is True and audit_flags(cmo) == []
+    assert cmo.to_dict()["audit"]["applicable"] is True and audit_flags(cmo) == []

@@ -9,6 +9,7 @@ import pytest
 from rich.console import Console
 
 from conftest import methanol_water_case
+from solver.audit import Flag, SolutionAudit
 from solver.errors import CaseError
 from solver.newton import NewtonOptions
 from solver.reports import (
@@ -95,7 +96,7 @@ def test_cautions_for_unconverged_high_pressure_near_critical_and_audit_flags(re
     hot = dataclasses.replace(result, temperature=np.full(result.stage_count, 0.9 * methanol_critical))
     near = [text for text in cautions(hot) if "T/Tc" in text]
     assert any(text.startswith("methanol reaches T/Tc = 0.900") for text in near)
-    flagged = result.with_extra(audit={"flags": [{"code": "CMO_DRIFT", "severity": "warning", "message": "V falls 8 %"}]})
+    flagged = result.with_extra(audit=SolutionAudit(True, flags=(Flag("CMO_DRIFT", "warning", "V falls 8 %"),)))
     assert "[warning] CMO_DRIFT: V falls 8 %" in cautions(flagged)
     assert cautions(flagged)[-1] == CAUTION
 
@@ -155,7 +156,8 @@ def test_side_by_side_table_sets_the_shortcut_beside_the_rigorous_columns(audite
     assert header == ["quantity", "McCabe-Thiele", "Ponchon-Savarit", "rigorous: at design", "rigorous: R needed",
                       "rigorous: N needed", "rigorous: the case"]
     by_name = {row[0]: row for row in rows}
-    shortcut, audit = audited.extra["shortcut"], audited.extra["audit"]
+    document = audited.to_dict()
+    shortcut, audit = document["shortcut"], document["audit"]
     assert by_name["stages"][1] == str(shortcut["stages"]) == by_name["stages"][3]
     assert by_name["reflux ratio L/D"][4] == f"{audit['reflux_at_shortcut_stages']['reflux_ratio']:.4g}"
     assert by_name["reboiler duty / kW"][3] == f"{audited.reboiler_duty / 1e3:.5g}"
@@ -172,7 +174,7 @@ def test_audit_sections_of_the_summary_and_screen_tables(audited):
         "## Shortcut and rigorous, side by side", "## CMO audit", "## Audit flags", "## Plots", "## Cautions"]
     cmo_rows = [line for line in text.split("## CMO audit")[1].split("## Audit flags")[0].splitlines() if line.startswith("| ")]
     assert len(cmo_rows) == 2 + audited.stage_count
-    for item in audited.extra["audit"]["flags"]:
+    for item in audited.to_dict()["audit"]["flags"]:
         assert f"| {item['severity']} | {item['code']} |" in text
         assert f"[{item['severity']}] {item['code']}" in text  # also among the cautions
     console = Console(record=True, width=200)

@@ -69,3 +69,21 @@ def test_atomic_write_gives_ordinary_permissions(tmp_path):
     umask = os.umask(0)
     os.umask(umask)
     assert target.stat().st_mode & 0o777 == 0o666 & ~umask
+
+
+def test_the_case_a_result_records_reads_back_typed(result):
+    """Reports and plots read the recorded case through typed properties: they give back the
+    specs, side heaters, reflux settings and warnings of the case the result came from."""
+    import dataclasses
+
+    from solver.engine import case_summary
+
+    case = methanol_water_case(specs='reflux_ratio = 1.4\nbottoms = { water = 0.995 }\nreflux_subcooling = "5 K"\n'
+                                     '[[column.heaters]]\nstage = 4\nduty = "5 kW"')
+    recorded = dataclasses.replace(result, case=case_summary(case))
+    assert recorded.specs == case.specs and [s.kind for s in recorded.specs] == ["reflux_ratio", "mole_fraction"]
+    assert recorded.stage_duties == case.column.stage_duties
+    assert recorded.stage_duties[0].stage == 4 and recorded.stage_duties[0].duty == pytest.approx(5000.0)
+    assert recorded.reflux_subcooling == pytest.approx(5.0) and recorded.reflux_temperature is None
+    assert recorded.case_warnings == tuple(case.warnings)
+    assert list(recorded.stated_efficiencies) == list(case.column.efficiencies)

@@ -1,0 +1,114 @@
+"""The screen tables of a column solution (``traystack run``): overview, specifications,
+products and stages, in display units."""
+
+from __future__ import annotations
+
+from rich.table import Table
+
+from ..results import Result
+from .display import DisplayUnits
+
+__all__ = ["spec_rows", "stage_label", "summary_tables"]
+
+
+def stage_label(result: Result, j: int) -> str:
+    """Stage ``j`` (0-based) as a table shows it: its number, and its role unless a tray."""
+    role = result.roles[j]
+    return f"{j + 1}" if role == "tray" else f"{j + 1} {role.split('_')[0]}"
+
+
+def spec_rows(result: Result, units: DisplayUnits) -> list[tuple[str, str]]:
+    """(key as written in the case file, value in display units) for every specification and
+    for the condenser settings that are not degrees of freedom."""
+    rows = []
+    for spec in result.specs:
+        kind, value = spec.kind, spec.value
+        if kind in ("distillate_rate", "bottoms_rate"):
+            text = f"{units.F(value):.6g} {units.flow}"
+        elif kind in ("condenser_duty", "reboiler_duty"):
+            text = f"{units.Q(value):.6g} {units.duty}"
+        elif kind == "stage_temperature":
+            text = f"{units.T(value):.2f} {units.temperature_label} on stage {spec.stage}"
+        elif kind == "mole_fraction":
+            text = f"x {spec.component} = {value:.6g} in the {spec.product}"
+        elif kind == "recovery":
+            text = f"{value:.6g} of the feed's {spec.component} to the {spec.product}"
+        else:
+            text = f"{value:.6g}"
+        rows.append((spec.key or kind, text))
+    if result.reflux_temperature is not None:
+        rows.append(("specs.reflux_temperature", f"{units.T(result.reflux_temperature):.2f} {units.temperature_label}"))
+    if result.reflux_subcooling is not None:
+        rows.append(("specs.reflux_subcooling", f"{result.reflux_subcooling:.4g} K below the bubble point"))
+    return rows
+
+
+def summary_tables(result: Result, units: DisplayUnits) -> list[Table]:
+    """Overview (status, ratios, duties, closures), specifications, products and the stage
+    table, in display units."""
+    return [_overview(result, units), _specifications(result, units), _products(result, units), _stages(result, units)]
+
+
+def _overview(result: Result, units: DisplayUnits) -> Table:
+    overview = Table(title=result.title, header_style="bold")
+    overview.add_column("quantity")
+    overview.add_column("value", justify="right")
+    overview.add_row("converged", "yes" if result.converged else "NO")
+    overview.add_row("Newton iterations", str(result.iterations))
+    overview.add_row("largest scaled residual", f"{result.residual_norm:.2e}")
+    if result.reflux_ratio is not None:
+        overview.add_row("reflux ratio L/D", f"{result.reflux_ratio:.4f}")
+    if result.boilup_ratio is not None:
+        overview.add_row("boilup ratio V/B", f"{result.boilup_ratio:.4f}")
+    if result.condenser_duty is not None:
+        overview.add_row(f"condenser duty / {units.duty}", f"{units.Q(result.condenser_duty):.4g}")
+    if result.reboiler_duty is not None:
+        overview.add_row(f"reboiler duty / {units.duty}", f"{units.Q(result.reboiler_duty):.4g}")
+    balances = result.balances()
+    overview.add_row("component closure", f"{balances['component_closure_max']:.1e}")
+    overview.add_row("energy closure", f"{balances['energy_closure_rel']:.1e}")
+    return overview
+
+
+def _specifications(result: Result, units: DisplayUnits) -> Table:
+    specs = Table(title="specifications", header_style="bold")
+    specs.add_column("key")
+    specs.add_column("value")
+    for key, text in spec_rows(result, units):
+        specs.add_row(key, text)
+    return specs
+
+
+def _products(result: Result, units: DisplayUnits) -> Table:
+    products = Table(title="products", header_style="bold")
+    products.add_column("product")
+    products.add_column(f"flow / {units.flow}", justify="right")
+    products.add_column(f"T / {units.temperature_label}", justify="right")
+    for name in result.components:
+        products.add_column(f"x {name}", justify="right")
+    for name, product in result.products().items():
+        products.add_row(
+            name.replace("_", " "),
+            f"{units.F(product['flow']):.5g}",
+            f"{units.T(product['T']):.2f}",
+            *[f"{value:.6f}" for value in product["composition"]],
+        )
+    return products
+
+
+def _stages(result: Result, units: DisplayUnits) -> Table:
+    stages = Table(title="stages", header_style="bold")
+    for column in ("stage", f"T / {units.temperature_label}", f"P / {units.pressure}", f"L / {units.flow}", f"V / {units.flow}"):
+        stages.add_column(column, justify="right")
+    for name in result.components:
+        stages.add_column(f"x {name}", justify="right")
+    for j, record in enumerate(result.stage_records()):
+        stages.add_row(
+            stage_label(result, j),
+            f"{units.T(record['T']):.2f}",
+            f"{units.P(record['P']):.5g}",
+            f"{units.F(record['L']):.4g}",
+            f"{units.F(record['V']):.4g}",
+            *[f"{value:.5f}" for value in record["x"]],
+        )
+    return stages

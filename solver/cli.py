@@ -21,13 +21,17 @@ import traceback
 from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
 from pathlib import Path
 
-from rich.console import Console
-from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
-from rich.table import Table
+try:
+    from rich.console import Console
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
+    from rich.table import Table
 
-from . import __version__
-from .errors import CaseError, ConvergenceError, TraystackError
-from .reports import CAUTION
+    from . import __version__
+    from .errors import CaseError, ConvergenceError, TraystackError
+    from .reports import CAUTION
+except KeyboardInterrupt:  # Ctrl-C while the command is still starting: nothing was written yet
+    print("traystack: interrupted while starting; nothing was written", file=sys.stderr)
+    raise SystemExit(130) from None
 
 __all__ = ["COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
@@ -469,8 +473,12 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
-    parser = build_parser()
-    args = parser.parse_args(argv)
+    try:
+        parser = build_parser()
+        args = parser.parse_args(argv)
+    except KeyboardInterrupt:
+        print("traystack: interrupted while starting; nothing was written", file=sys.stderr)
+        return 130
     if not getattr(args, "command", None):
         parser.print_help()
         return 2

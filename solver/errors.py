@@ -1,13 +1,15 @@
 """One exception family for everything traystack reports to a user.
 
 Each error carries a message that a process engineer can act on without a traceback, and the
-exit code the command line uses for it (see DESIGN.md: 2 bad input or infeasible specification,
-3 the solver did not converge).
+exit code the command line uses for it (2 bad input or infeasible specification, 3 the solver
+did not converge).
 """
 
 from __future__ import annotations
 
 from typing import Any
+
+__all__ = ["CaseError", "ConvergenceError", "SpecError", "ThermoError", "TraystackError"]
 
 
 class TraystackError(Exception):

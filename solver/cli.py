@@ -13,15 +13,16 @@ Each command is one ``add_*_command`` function that declares its options and one
 
 from __future__ import annotations
 
-import argparse
-import os
 import sys
-import time
-import traceback
-from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
-from pathlib import Path
 
 try:
+    import argparse
+    import os
+    import time
+    import traceback
+    from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
+    from pathlib import Path
+
     from rich.console import Console
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
     from rich.table import Table

@@ -47,7 +47,10 @@ from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NoReturn
 
+from scipy.constants import R as GAS_CONSTANT
+
 from solver.errors import CaseError
+from solver.thermo.data import FORMS, PROPERTY_FORMS, WATSON_EXPONENT, ComponentData, Correlation
 from solver.units import SI_UNITS, UnitParseError, temperature_scale, to_si, unit_factor
 
 #: Spec kinds that use up one of the column's degrees of freedom.
@@ -66,44 +69,6 @@ SPEC_KINDS = (
 
 def _frozen_mapping(mapping: Mapping | None = None) -> Mapping:
     return MappingProxyType(dict(mapping or {}))
-
-
-@dataclass(frozen=True)
-class Correlation:
-    """A pure-component correlation as written by the user, with what is needed to evaluate
-    it in SI: ``value_SI = value_factor * f(T_u)`` where ``T_u = temperature_slope * T_K +
-    temperature_intercept`` is the temperature in the unit the coefficients were fitted in.
-
-    ``form`` is one of: "antoine" (log_base P = A - B/(T + C)), "dippr101" (ln Y = A + B/T +
-    C ln T + D T^E), "polynomial" (sum c_k T^k; coefficients named c0, c1, ...), "dippr107",
-    "watson" (coefficients value, at [K]; exponent 0.38 unless given), "dippr106", "dippr105",
-    "constant" (coefficient value).
-    """
-
-    form: str
-    coefficients: Mapping[str, float]
-    temperature_slope: float = 1.0
-    temperature_intercept: float = 0.0
-    value_factor: float = 1.0
-    log_base: float | None = None
-    T_min: float | None = None  # K
-    T_max: float | None = None  # K
-
-
-@dataclass(frozen=True)
-class ComponentData:
-    """A user-defined component from ``[components.data.NAME]`` (all SI)."""
-
-    name: str
-    molar_mass: float  # kg/mol
-    critical_temperature: float  # K
-    critical_pressure: float  # Pa
-    vapor_pressure: Correlation
-    ideal_gas_cp: Correlation | None = None  # J/mol/K
-    heat_of_vaporization: Correlation | None = None  # J/mol
-    liquid_molar_volume: Correlation | None = None  # m3/mol
-    normal_boiling_point: float | None = None  # K
-    source: str = ""
 
 
 @dataclass(frozen=True)
@@ -235,17 +200,12 @@ class Case:
 # Reading a case file
 # =======================================================================================
 
-#: Molar gas constant, J/(mol K): exact in the SI since 2019 (CODATA 2018).
-GAS_CONSTANT = 8.314462618
 #: More stages than this is taken as a typing error, not a column.
 MAX_STAGES = 2000
 #: A case file is a few kilobytes; anything above this is not one.
 MAX_FILE_BYTES = 2_000_000
 #: How far the fractions of a composition may add up away from 1 (without normalize = true).
 COMPOSITION_TOLERANCE = 1e-6
-#: Exponent of the Watson (1943) latent-heat relation when none is given
-#: (K. M. Watson, Ind. Eng. Chem. 35 (1943) 398).
-WATSON_EXPONENT = 0.38
 #: Screen units when [display] does not say otherwise (DESIGN.md).
 DEFAULT_DISPLAY = {"temperature": "degC", "pressure": "bar", "flow": "kmol/h", "duty": "kW"}
 #: Keys of [check] tolerances.
@@ -278,24 +238,20 @@ _COMPONENT_DATA_KEYS = (
     "liquid_molar_volume",
     "source",
 )
-#: property -> (kind of its value, forms allowed for it)
-_PROPERTIES = {
-    "vapor_pressure": ("pressure", ("antoine", "dippr101")),
-    "ideal_gas_cp": ("molar_heat_capacity", ("polynomial", "dippr107", "constant")),
-    "heat_of_vaporization": ("molar_energy", ("watson", "dippr106", "polynomial", "constant")),
-    "liquid_molar_volume": ("molar_volume", ("dippr105", "polynomial", "constant")),
+#: property -> the kind of quantity its correlation gives (the forms allowed for it are
+#: solver.thermo.data.PROPERTY_FORMS)
+_PROPERTY_KINDS = {
+    "vapor_pressure": "pressure",
+    "ideal_gas_cp": "molar_heat_capacity",
+    "heat_of_vaporization": "molar_energy",
+    "liquid_molar_volume": "molar_volume",
 }
-#: form -> (required keys, optional keys) besides form, T_min and T_max
-_FORM_KEYS = {
-    "antoine": (("A", "B", "C"), ("base", "pressure_unit", "temperature_unit")),
-    "dippr101": (("A", "B"), ("C", "D", "E", "units")),
-    "polynomial": (("coefficients",), ("units",)),
-    "dippr107": (("A", "B", "C"), ("D", "E", "units")),
-    "watson": (("value", "at"), ("exponent",)),
-    "dippr106": (("A", "B"), ("C", "D", "E", "units")),
-    "dippr105": (("A", "B", "C", "D"), ("units",)),
-    "constant": (("value",), ()),
-}
+#: Keys of a correlation table that say in which units its coefficients are, per form
+#: (forms not listed take ``units = "VALUE_UNIT, TEMPERATURE_UNIT"``; watson and constant
+#: write their values as quantities with units).
+_UNIT_KEYS = {"antoine": ("base", "pressure_unit", "temperature_unit"), "watson": (), "constant": ()}
+#: The polynomial's coefficients are written as one list.
+_POLYNOMIAL_KEY = "coefficients"
 _LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac")
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
 #: model -> the key of its energy form
@@ -733,7 +689,7 @@ def _read_component_data(name: str, value: Any, at: _At) -> ComponentData:
         )
     correlations = {
         prop: _read_correlation(table[prop], prop, critical_temperature, at.child(prop))
-        for prop in _PROPERTIES
+        for prop in _PROPERTY_KINDS
         if prop in table
     }
     source = _text(table["source"], at.child("source"), allow_empty=False)
@@ -779,12 +735,15 @@ def _read_correlation(value: Any, prop: str, critical_temperature: float, at: _A
     (rho = A / B^(1 + (1 - T/C)^D)); its value_factor is SI (mol/m**3) per density unit, and
     the molar volume is 1/rho. Watson and DIPPR 106 use the reduced temperature T/Tc with the
     component's critical_temperature."""
-    kind, forms = _PROPERTIES[prop]
+    kind, forms = _PROPERTY_KINDS[prop], PROPERTY_FORMS[prop]
     table = _table(value, at, "a table such as { form = \"" + forms[0] + "\", ... }")
     if "form" not in table:
         at.child("form").fail("missing", expected="one of: " + ", ".join(repr(f) for f in forms))
     form = _choice(table["form"], at.child("form"), forms)
-    required, optional = _FORM_KEYS[form]
+    required, optional = FORMS[form]
+    if form == "polynomial":
+        required = (_POLYNOMIAL_KEY,)
+    optional += _UNIT_KEYS.get(form, ("units",))
     _keys(table, at, ("form",) + required + optional + ("T_min", "T_max"), required=required)
 
     def coefficient(name: str, default: float | None = None) -> float:
@@ -828,8 +787,8 @@ def _read_correlation(value: Any, prop: str, critical_temperature: float, at: _A
         if coefficients["C"] == 0.0:
             at.child("C").fail("must not be 0 (it divides T)", table["C"], "a nonzero number")
     elif form == "polynomial":
-        items = _list(table["coefficients"], at.child("coefficients"), min_length=1, max_length=20)
-        coefficients = {f"c{k}": _real(item, at.child("coefficients").item(k)) for k, item in enumerate(items)}
+        items = _list(table[_POLYNOMIAL_KEY], at.child(_POLYNOMIAL_KEY), min_length=1, max_length=20)
+        coefficients = {f"c{k}": _real(item, at.child(_POLYNOMIAL_KEY).item(k)) for k, item in enumerate(items)}
         factor, slope, intercept = _read_units(table.get("units"), kind, at.child("units"))
     elif form == "watson":
         at_temperature = _quantity(

@@ -314,7 +314,7 @@ def test_nrtl_energy_form_gives_tau_dg_over_rt() -> None:
     dg = np.array([[0.0, -250.0 * 4.184], [850.0 * 4.184, 0.0]])  # J/mol, invented
     a, b = nrtl_energy_form(dg)
     assert not np.any(a)
-    np.testing.assert_allclose(b, dg / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, dg / 8.31446261815324, rtol=1e-15)
     temperature, x1 = 345.0, 0.3
     expected = binary_nrtl(x1, dg[0, 1] / (GAS_CONSTANT * temperature), dg[1, 0] / (GAS_CONSTANT * temperature), 0.3)
     model = NRTL(a, b, alpha_c=0.3)
@@ -325,11 +325,11 @@ def test_energy_form_conversions_give_expected_matrices() -> None:
     du = np.array([[0.0, 100.0, 200.0], [300.0, 0.0, -50.0], [10.0, 20.0, 0.0]])
     a, b = uniquac_energy_form(du)
     assert not np.any(a)
-    np.testing.assert_allclose(b, -du / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, -du / 8.31446261815324, rtol=1e-15)
     a, b = wilson_energy_form(du, [1e-4, 5e-5, 2e-5])
     assert a[0, 1] == pytest.approx(math.log(0.5)) and a[2, 0] == pytest.approx(math.log(5.0))
     np.testing.assert_allclose(np.diag(a), 0.0, atol=0)
-    np.testing.assert_allclose(b, -du / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, -du / 8.31446261815324, rtol=1e-15)
 
 
 def test_energy_forms_reject_a_nonzero_diagonal() -> None:

@@ -30,6 +30,7 @@ import threading
 from dataclasses import dataclass
 
 import numpy as np
+from scipy.constants import R as GAS_CONSTANT
 
 from solver.errors import CaseError, ThermoError
 
@@ -45,9 +46,6 @@ __all__ = [
     "uniquac_energy_form",
     "wilson_energy_form",
 ]
-
-#: Molar gas constant [J/mol/K], CODATA 2018 (exact since the 2019 SI redefinition).
-GAS_CONSTANT = 8.314462618
 
 #: Lattice coordination number z of UNIQUAC (Abrams and Prausnitz 1975).
 UNIQUAC_COORDINATION_NUMBER = 10.0

@@ -1,6 +1,6 @@
 """The thermo package: K-values and phase enthalpies of a mixture, with their derivatives.
 
-Models (DESIGN.md, "Engine shape"):
+Models:
 
 * K-values by the modified Raoult's law with an ideal vapor,
   ``K_i = gamma_i(T, x) Psat_i(T) / P`` (e.g. Smith, Van Ness & Abbott, *Introduction to
@@ -20,18 +20,21 @@ All arrays are stage-major: temperatures ``(n,)``, compositions ``(n, c)``.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 import numpy as np
+from scipy.constants import R as GAS_CONSTANT
+from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of the normal boiling point
 
-from ..case import Case
 from ..components import ComponentInfo, component_info
 from ..errors import CaseError, ThermoError
 from . import activity as activity_models
 from .pure import PureComponents
 
-GAS_CONSTANT = 8.314462618  # J/mol/K, CODATA 2018
-ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
+if TYPE_CHECKING:  # the case reader is upstream; only its data model is read here
+    from ..case import Case
+
+__all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage"]
 
 
 @dataclass(frozen=True)

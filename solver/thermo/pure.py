@@ -45,12 +45,14 @@ from typing import Callable, Mapping, Sequence
 import CoolProp.CoolProp as CP
 import numpy as np
 from numpy.polynomial import chebyshev, polynomial
+from scipy.constants import R as GAS_CONSTANT
+from scipy.constants import atm as ATMOSPHERIC_PRESSURE
 from scipy.optimize import brentq
 
-from solver.case import ComponentData, Correlation
 from solver.components import ComponentInfo
 from solver.errors import ThermoError
 from solver.thermo import correlations
+from solver.thermo.data import ComponentData, Correlation
 
 #: Chebyshev coefficients per piece of the saturation fits and of the cp0 fit. Few terms and
 #: more pieces make the evaluation cheap (it costs ~4 numpy operations per term).
@@ -69,9 +71,6 @@ CRITICAL_GAPS = (1e-4, 1e-3, 1e-2)
 #: the tolerance cannot be met down to the triple point (a judgement: such pressures play no
 #: part in a column; below the fit ln Psat is extrapolated linearly in 1/T).
 LOW_END_PRESSURES = (1e-3, 1.0)
-#: Gas constant, J/(mol K) (CODATA 2018, exact).
-GAS_CONSTANT = 8.314462618
-
 _TAU_FLOOR = 1e-12
 _LOWEST_TEMPERATURE = 1.0  # K; extrapolation formulas in 1/T use at least this
 
@@ -813,9 +812,9 @@ class _UserComponent:
                 correlations.check_range(corr, T, self._label(key))
 
     def normal_boiling_point(self) -> float | None:
-        """Where the vapor-pressure correlation gives 101325 Pa within its range, or None."""
+        """Where the vapor-pressure correlation gives 1 atm within its range, or None."""
         low, high = self.pressure_range
-        target = math.log(101325.0)
+        target = math.log(ATMOSPHERIC_PRESSURE)
 
         def gap(T: float) -> float:
             return float(self.ln_vapor_pressure(np.array([T]))[0][0]) - target

@@ -11,8 +11,8 @@ Parameter conventions of thermo (from its docstrings) and how ours map onto them
   Ours is alpha_ij = alpha_c + alpha_d (T - 273.15), so c = alpha_c - 273.15 alpha_d, d = alpha_d.
 - Wilson: Lambda_ij = exp(a + b/T + c ln T + d T (+ e/T^2 + f T^2)); ours a, b, e, f map to a, b, c, d.
 - UNIQUAC: tau_ij = exp(a + b/T + c ln T + d T (+ ...)), z = 10; same mapping, r and q as given.
-thermo's gas constant is the exact 8.31446261815324 J/mol/K against our 8.314462618, a relative
-difference of 2e-11 in the excess enthalpy.
+Both use the exact gas constant 8.31446261815324 J/mol/K (CODATA 2018; ours from
+scipy.constants).
 thermo's ``dgammas_dns`` are d gamma_i / d n_j at sum(n) = 1; our ln gamma is homogeneous of
 degree zero in x, so d ln gamma_i / d x_j = (d gamma_i / d n_j) / gamma_i on the simplex.
 """

@@ -14,7 +14,7 @@ solve: the properties are recomputed here from outside sources and our own code.
   ``thermo.wilson.Wilson``. Only its model equations are used, with the parameters read from
   the document. None of its data tables are used.
 * Energy-form parameters as written in the case (``dg``, ``dlambda`` in cal/mol) are converted
-  here with the thermochemical calorie (4.184 J) and R = 8.314462618 J/(mol K) (CODATA 2018).
+  here with the thermochemical calorie (4.184 J) and R = 8.31446261815324 J/(mol K) (CODATA 2018, exact).
 
 Conventions of thermo (from its source, ``thermo/nrtl.py`` and ``thermo/wilson.py``):
 ``tau_ij = A + B/T + E ln T + F T`` and ``alpha_ij = c + d T`` for NRTL, and ``Lambda_ij =
@@ -63,7 +63,7 @@ from thermo.wilson import Wilson as ThermoWilson  # noqa: E402
 
 CASES_DIR = Path(__file__).resolve().parents[2] / "cases"
 
-GAS_CONSTANT = 8.314462618  # J/(mol K), CODATA 2018
+GAS_CONSTANT = 8.31446261815324  # J/(mol K), CODATA 2018: N_A k, exact
 REFERENCE_TEMPERATURE = 298.15  # K, ideal gas = 0
 ENERGY_UNITS = {"J/mol": 1.0, "kJ/mol": 1000.0, "cal/mol": 4.184, "kcal/mol": 4184.0}  # thermochemical calorie
 

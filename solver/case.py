@@ -15,8 +15,10 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   dippr106 (A-E, units = value unit only), dippr105 (A-D, units; a molar density), constant
   (value); ``units = "VALUE_UNIT, TEMPERATURE_UNIT"``.
 - ``[thermo]`` ``liquid`` (ideal|wilson|nrtl|uniquac), ``vapor`` (ideal), ``enthalpy``
-  (rigorous|cmo); pairs ``[thermo.MODEL.I.J]`` with ``a, b, e, f`` ([ij, ji]), NRTL ``alpha``,
-  ``alpha_T``, energy forms ``dg`` (NRTL), ``dlambda`` (Wilson), ``du`` (UNIQUAC), ``source``;
+  (rigorous|cmo); pairs ``[thermo.MODEL.I.J]`` with ``constant_term``, ``term_over_temperature``,
+  ``term_in_ln_temperature``, ``term_times_temperature`` ([ij, ji]), NRTL ``alpha`` (a number or
+  {value, slope, reference_temperature}), energy forms ``dg`` (NRTL), ``dlambda`` (Wilson),
+  ``du`` (UNIQUAC), ``source``;
   ``[thermo.wilson_volumes]`` NAME = volume; ``[thermo.uniquac_structure]`` NAME = {r, q}.
 - ``[column]`` ``stages``, ``condenser`` (total|partial|none), ``reboiler`` (partial|none),
   ``pressure`` (a value, or {top, drop_per_stage}, or {profile}), ``efficiency`` (a number, a
@@ -74,24 +76,27 @@ def _frozen_mapping(mapping: Mapping | None = None) -> Mapping:
 @dataclass(frozen=True)
 class BinaryParameters:
     """Interaction parameters of one pair (i, j) for an activity model, converted on reading to
-    the temperature form ``p_ij = a_ij + b_ij/T + e_ij ln T + f_ij T`` (tau for NRTL, ln Lambda
-    for Wilson, ln tau for UNIQUAC). Tuples hold (ij, ji). For NRTL the non-randomness is
-    ``alpha = alpha_c + alpha_d (T - 273.15 K)``.
+    four terms, ``p_ij = constant_term_ij + term_over_temperature_ij / T +
+    term_in_ln_temperature_ij ln T + term_times_temperature_ij T`` (T in K; p is tau for NRTL,
+    ln Lambda for Wilson, ln tau for UNIQUAC). Tuples hold (ij, ji). For NRTL the
+    non-randomness is ``alpha + alpha_slope (T - alpha_reference_temperature)``.
 
-    Energy-form input (``dg``, ``dlambda``, ``du`` in energy per mole) is converted to ``b`` on
-    reading: for NRTL ``b_ij = dg_ij / R``; for UNIQUAC ``b_ij = -du_ij / R``; for Wilson
-    ``b_ij = -dlambda_ij / R`` and ``a_ij = ln(V_j / V_i)`` (liquid molar volumes needed).
+    Energy-form input (``dg``, ``dlambda``, ``du`` in energy per mole) is converted to the term
+    over temperature on reading: ``dg_ij / R`` for NRTL, ``-du_ij / R`` for UNIQUAC,
+    ``-dlambda_ij / R`` for Wilson, whose constant term is then ``ln(V_j / V_i)`` (liquid molar
+    volumes needed).
     """
 
     model: str  # "nrtl" | "wilson" | "uniquac"
     first: str
     second: str
-    a: tuple[float, float] = (0.0, 0.0)
-    b: tuple[float, float] = (0.0, 0.0)  # K
-    e: tuple[float, float] = (0.0, 0.0)
-    f: tuple[float, float] = (0.0, 0.0)  # 1/K
-    alpha_c: float = 0.0
-    alpha_d: float = 0.0  # 1/K
+    constant_term: tuple[float, float] = (0.0, 0.0)
+    term_over_temperature: tuple[float, float] = (0.0, 0.0)  # K
+    term_in_ln_temperature: tuple[float, float] = (0.0, 0.0)
+    term_times_temperature: tuple[float, float] = (0.0, 0.0)  # 1/K
+    alpha: float = 0.0
+    alpha_slope: float = 0.0  # 1/K
+    alpha_reference_temperature: float | None = None  # K, stated with a slope
     source: str = ""
     energy_form: Mapping[str, object] = field(default_factory=_frozen_mapping)  # as written, for the record
 
@@ -256,11 +261,26 @@ _LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac")
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
 #: model -> the key of its energy form
 _ENERGY_FORM_KEY = {"nrtl": "dg", "wilson": "dlambda", "uniquac": "du"}
-_PAIR_KEYS = {
-    "nrtl": ("a", "b", "e", "f", "alpha", "alpha_T", "dg", "source"),
-    "wilson": ("a", "b", "e", "f", "dlambda", "source"),
-    "uniquac": ("a", "b", "e", "f", "du", "source"),
+#: The four terms of a binary parameter: key -> (kind of quantity, how a message names it)
+_PAIR_TERMS = {
+    "constant_term": ("dimensionless", "constant term"),
+    "term_over_temperature": ("temperature_difference", "term over temperature (K)"),
+    "term_in_ln_temperature": ("dimensionless", "term in ln T"),
+    "term_times_temperature": ("inverse_temperature", "term times temperature (1/K)"),
 }
+_PAIR_KEYS = {
+    model: tuple(_PAIR_TERMS) + (("alpha",) if model == "nrtl" else ()) + (energy_key, "source")
+    for model, energy_key in _ENERGY_FORM_KEY.items()
+}
+#: Keys of the terms in earlier versions of the pair tables -> the key that replaced them
+_OLD_TERM_KEYS = {
+    "a": "constant_term",
+    "b": "term_over_temperature",
+    "e": "term_in_ln_temperature",
+    "f": "term_times_temperature",
+}
+_ALPHA_KEYS = ("value", "slope", "reference_temperature")
+_ALPHA_EXAMPLE = 'alpha = { value = 0.3, slope = "0.001 1/K", reference_temperature = "350 K" }'
 _THERMO_KEYS = ("liquid", "vapor", "enthalpy", "nrtl", "wilson", "uniquac", "wilson_volumes", "uniquac_structure")
 _COLUMN_KEYS = ("stages", "condenser", "reboiler", "pressure", "efficiency", "side_draws", "heaters")
 _FEED_KEYS = ("stage", "flow", "composition", "basis", "normalize", "temperature", "vapor_fraction", "pressure", "name")
@@ -914,89 +934,132 @@ def _read_pair(
 ) -> BinaryParameters:
     """One [thermo.MODEL.I.J] table; conversions as documented in :class:`BinaryParameters`."""
     table = _table(value, at)
-    allowed = _PAIR_KEYS[model]
+    _refuse_old_pair_keys(table, model, at)
+    _keys(table, at, _PAIR_KEYS[model])
+    terms = {
+        name: _pair(table[name], at.child(name), _quantity_reader(kind)) if name in table else (0.0, 0.0)
+        for name, (kind, _) in _PAIR_TERMS.items()
+    }
+    energy_key = _ENERGY_FORM_KEY[model]
+    energy_form: dict[str, object] = {}
+    if energy_key in table:
+        given = [name for name in _PAIR_TERMS if name in table]
+        if given:
+            at.child(given[0]).fail(
+                f"cannot be combined with the energy form {energy_key!r}",
+                table[given[0]],
+                f"either {energy_key} or the terms " + ", ".join(_PAIR_TERMS),
+            )
+        energy_form = _read_energy_form(model, first, second, table[energy_key], wilson_volumes, at, thermo_at)
+        terms.update(energy_form.pop("terms"))
+    alpha, alpha_slope, alpha_reference_temperature = 0.0, 0.0, None
+    if model == "nrtl":
+        if "alpha" not in table:
+            at.child("alpha").fail(
+                "missing: NRTL needs the non-randomness alpha of every pair", expected="a number such as 0.3"
+            )
+        alpha, alpha_slope, alpha_reference_temperature = _read_alpha(table["alpha"], at.child("alpha"))
+    return BinaryParameters(
+        model=model,
+        first=first,
+        second=second,
+        **terms,
+        alpha=alpha,
+        alpha_slope=alpha_slope,
+        alpha_reference_temperature=alpha_reference_temperature,
+        source=_text(table.get("source", ""), at.child("source")),
+        energy_form=MappingProxyType(energy_form),
+    )
+
+
+def _refuse_old_pair_keys(table: Mapping, model: str, at: _At) -> None:
+    """Keys of other models' energy forms and of earlier versions of the pair table are errors
+    that say what to write instead."""
     for key in table:
         other = [m for m, k in _ENERGY_FORM_KEY.items() if k == key and m != model]
         if other:
             at.child(key).fail(
                 f"{key!r} is the energy form of {other[0].upper()}; {model} uses {_ENERGY_FORM_KEY[model]!r}",
                 key,
-                "one of: " + ", ".join(allowed),
+                "one of: " + ", ".join(_PAIR_KEYS[model]),
             )
-    _keys(table, at, allowed)
-    dimensionless = lambda item, where: _quantity(item, "dimensionless", where)  # noqa: E731
-    readers = {
-        "a": dimensionless,
-        "b": lambda item, where: _quantity(item, "temperature_difference", where),
-        "e": dimensionless,
-        "f": lambda item, where: _quantity(item, "inverse_temperature", where),
-    }
-    values = {
-        name: _pair(table[name], at.child(name), read) if name in table else (0.0, 0.0)
-        for name, read in readers.items()
-    }
-    energy_key = _ENERGY_FORM_KEY[model]
-    energy_form: dict[str, object] = {}
-    if energy_key in table:
-        given = [name for name in readers if name in table]
-        if given:
-            at.child(given[0]).fail(
-                f"cannot be combined with the energy form {energy_key!r}",
-                table[given[0]],
-                f"either {energy_key} or a/b/e/f",
+        if key == "alpha_T" and model == "nrtl":
+            at.child(key).fail(
+                "'alpha_T' is no longer a key: a temperature-dependent alpha is a slope about a reference"
+                " temperature that you state (alpha and alpha_T as written before give the same alpha(T) as"
+                ' value = alpha, slope = alpha_T, reference_temperature = "273.15 K")',
+                table[key],
+                _ALPHA_EXAMPLE,
             )
-        energy_at = at.child(energy_key)
-        energy = _pair(table[energy_key], energy_at, lambda item, where: _quantity(item, "molar_energy", where))
-        energy_form[energy_key] = tuple(_plain(table[energy_key]))
-        energy_form[energy_key + "_J_per_mol"] = energy
-        if model == "nrtl":
-            values["b"] = (energy[0] / GAS_CONSTANT, energy[1] / GAS_CONSTANT)
-        elif model == "uniquac":
-            values["b"] = (-energy[0] / GAS_CONSTANT, -energy[1] / GAS_CONSTANT)
-        else:
-            missing = [name for name in (first, second) if name not in wilson_volumes]
-            if missing:
-                thermo_at.child("wilson_volumes").fail(
-                    f"the energy form (dlambda) of pair {first}.{second} needs the liquid molar volume of "
-                    + " and ".join(repr(m) for m in missing),
-                    expected="[thermo.wilson_volumes] NAME = \"40.7 cm**3/mol\"",
-                )
-            volume_i, volume_j = wilson_volumes[first], wilson_volumes[second]
-            values["a"] = (math.log(volume_j / volume_i), math.log(volume_i / volume_j))
-            values["b"] = (-energy[0] / GAS_CONSTANT, -energy[1] / GAS_CONSTANT)
-            energy_form["liquid_molar_volumes_m3_per_mol"] = (volume_i, volume_j)
+        if key in _OLD_TERM_KEYS:
+            new = _OLD_TERM_KEYS[key]
+            at.child(key).fail(
+                f"{key!r} is no longer a key: the {_PAIR_TERMS[new][1]} of the parameter is written {new!r}",
+                table[key],
+                f"{new} = [ij, ji]",
+            )
 
-    alpha_c = alpha_d = 0.0
-    if model == "nrtl":
-        if "alpha" not in table:
-            at.child("alpha").fail(
-                "missing: NRTL needs the non-randomness alpha of every pair", expected="a number such as 0.3"
+
+def _quantity_reader(kind: str) -> Callable[[Any, _At], float]:
+    return lambda item, where: _quantity(item, kind, where)
+
+
+def _read_energy_form(
+    model: str,
+    first: str,
+    second: str,
+    value: Any,
+    wilson_volumes: Mapping[str, float],
+    at: _At,
+    thermo_at: _At,
+) -> dict[str, object]:
+    """The energy form (dg, dlambda or du) as written and in J/mol, for the record, and under
+    "terms" the terms it gives (see :class:`BinaryParameters`)."""
+    energy_key = _ENERGY_FORM_KEY[model]
+    energy = _pair(value, at.child(energy_key), _quantity_reader("molar_energy"))
+    record: dict[str, object] = {energy_key: tuple(_plain(value)), energy_key + "_J_per_mol": energy}
+    sign = 1.0 if model == "nrtl" else -1.0
+    terms: dict[str, tuple[float, float]] = {
+        "term_over_temperature": (sign * energy[0] / GAS_CONSTANT, sign * energy[1] / GAS_CONSTANT)
+    }
+    if model == "wilson":
+        missing = [name for name in (first, second) if name not in wilson_volumes]
+        if missing:
+            thermo_at.child("wilson_volumes").fail(
+                f"the energy form (dlambda) of pair {first}.{second} needs the liquid molar volume of "
+                + " and ".join(repr(m) for m in missing),
+                expected="[thermo.wilson_volumes] NAME = \"40.7 cm**3/mol\"",
             )
-        alpha_value = table["alpha"]
-        alpha_at = at.child("alpha")
-        if isinstance(alpha_value, (list, tuple)):
-            alpha_ij, alpha_ji = _pair(alpha_value, alpha_at, dimensionless)
-            if not math.isclose(alpha_ij, alpha_ji, rel_tol=1e-12, abs_tol=0.0):
-                alpha_at.fail("alpha_ij and alpha_ji must be equal", alpha_value, "one number, or two equal numbers")
-            alpha_c = alpha_ij
-        else:
-            alpha_c = dimensionless(alpha_value, alpha_at)
-        if "alpha_T" in table:
-            alpha_d = _quantity(table["alpha_T"], "inverse_temperature", at.child("alpha_T"))
-    source = _text(table.get("source", ""), at.child("source"))
-    return BinaryParameters(
-        model=model,
-        first=first,
-        second=second,
-        a=values["a"],
-        b=values["b"],
-        e=values["e"],
-        f=values["f"],
-        alpha_c=alpha_c,
-        alpha_d=alpha_d,
-        source=source,
-        energy_form=MappingProxyType(energy_form),
-    )
+        volume_i, volume_j = wilson_volumes[first], wilson_volumes[second]
+        terms["constant_term"] = (math.log(volume_j / volume_i), math.log(volume_i / volume_j))
+        record["liquid_molar_volumes_m3_per_mol"] = (volume_i, volume_j)
+    record["terms"] = terms
+    return record
+
+
+def _read_alpha(value: Any, at: _At) -> tuple[float, float, float | None]:
+    """NRTL alpha: a number, two equal numbers [ij, ji], or { value, slope, reference_temperature }
+    -> (alpha at the reference temperature, slope [1/K], reference temperature [K] or None)."""
+    dimensionless = _quantity_reader("dimensionless")
+    if isinstance(value, Mapping):
+        _keys(value, at, _ALPHA_KEYS, required=("value",))
+        alpha = dimensionless(value["value"], at.child("value"))
+        if ("slope" in value) != ("reference_temperature" in value):
+            missing = "reference_temperature" if "slope" in value else "slope"
+            at.child(missing).fail(
+                "missing: a slope of alpha is about a reference temperature; give both", expected=_ALPHA_EXAMPLE
+            )
+        if "slope" not in value:
+            return alpha, 0.0, None
+        slope = _quantity(value["slope"], "inverse_temperature", at.child("slope"))
+        reference = _quantity(value["reference_temperature"], "temperature", at.child("reference_temperature"), above=0.0)
+        return alpha, slope, reference
+    if isinstance(value, (list, tuple)):
+        alpha_ij, alpha_ji = _pair(value, at, dimensionless)
+        if not math.isclose(alpha_ij, alpha_ji, rel_tol=1e-12, abs_tol=0.0):
+            at.fail("alpha_ij and alpha_ji must be equal", value, "one number, or two equal numbers")
+        return alpha_ij, 0.0, None
+    return dimensionless(value, at), 0.0, None
 
 
 # --- [column] --------------------------------------------------------------------------

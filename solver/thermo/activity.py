@@ -4,9 +4,10 @@ Models: ideal solution, Wilson (G. M. Wilson, 1964, J. Am. Chem. Soc. 86, 127-13
 (H. Renon and J. M. Prausnitz, 1968, AIChE J. 14, 135-144) and UNIQUAC (D. S. Abrams and
 J. M. Prausnitz, 1975, AIChE J. 21, 116-128; coordination number z = 10).
 
-Every binary parameter is a (c, c) matrix with a zero diagonal and the temperature dependence
+Every binary parameter p_ij is the sum of four terms, each a (c, c) matrix with a zero diagonal:
 
-    p_ij(T) = a_ij + b_ij / T + e_ij ln T + f_ij T          [T in K]
+    p_ij(T) = constant_term_ij + term_over_temperature_ij / T
+              + term_in_ln_temperature_ij ln T + term_times_temperature_ij T      [T in K]
 
 read as tau_ij = p_ij (NRTL), ln Lambda_ij = p_ij (Wilson) and ln tau_ij = p_ij (UNIQUAC).
 
@@ -36,6 +37,9 @@ from solver.errors import CaseError, ThermoError
 
 __all__ = [
     "GAS_CONSTANT",
+    "NRTL_DEFAULT_ALPHA",
+    "TEMPERATURE_DEPENDENCE",
+    "TERMS",
     "UNIQUAC_COORDINATION_NUMBER",
     "ActivityResult",
     "IdealSolution",
@@ -54,10 +58,13 @@ UNIQUAC_COORDINATION_NUMBER = 10.0
 #: 0.3 is common practice.
 NRTL_DEFAULT_ALPHA = 0.3
 
-#: Reference temperature of the linear temperature dependence of the NRTL alpha [K].
-NRTL_ALPHA_REFERENCE_TEMPERATURE = 273.15
+#: The four terms of a binary parameter, in the order the models take them.
+TERMS = ("constant_term", "term_over_temperature", "term_in_ln_temperature", "term_times_temperature")
 
-TEMPERATURE_DEPENDENCE = "p_ij(T) = a_ij + b_ij/T + e_ij*ln(T) + f_ij*T, T in K"
+TEMPERATURE_DEPENDENCE = (
+    "constant_term_ij + term_over_temperature_ij/T + term_in_ln_temperature_ij*ln(T)"
+    " + term_times_temperature_ij*T, T in K"
+)
 
 
 @dataclass(frozen=True)
@@ -101,12 +108,14 @@ def _matrix(name: str, value, component_count: int, *, model: str, zero_diagonal
     return matrix
 
 
-def _parameter_matrices(model: str, a, b, e, f) -> tuple[int, list[np.ndarray]]:
-    shape = np.shape(a)
+def _parameter_matrices(model: str, *terms) -> tuple[int, list[np.ndarray]]:
+    """The four terms (in the order of :data:`TERMS`) as (c, c) matrices; c is the size of
+    the constant term."""
+    shape = np.shape(terms[0])
     if len(shape) != 2 or shape[0] != shape[1] or shape[0] < 1:
-        raise CaseError(f"{model} parameter a must be a square matrix (c, c)", value=f"shape {shape}")
+        raise CaseError(f"{model} parameter {TERMS[0]} must be a square matrix (c, c)", value=f"shape {shape}")
     c = shape[0]
-    return c, [_matrix(k, v, c, model=model) for k, v in (("a", a), ("b", b), ("e", e), ("f", f))]
+    return c, [_matrix(name, value, c, model=model) for name, value in zip(TERMS, terms)]
 
 
 def _positive_vector(name: str, value, component_count: int, *, model: str) -> np.ndarray:
@@ -118,6 +127,18 @@ def _positive_vector(name: str, value, component_count: int, *, model: str) -> n
             expected=f"{component_count} positive numbers",
         )
     return vector
+
+
+def _alpha_matrix(name: str, value, component_count: int) -> np.ndarray:
+    """A symmetric NRTL alpha matrix (value, slope or reference temperature); a single number
+    fills it, None gives zeros. The diagonal is set to 0: G_ii = 1 whatever alpha_ii is."""
+    if value is not None and np.ndim(value) == 0:
+        value = np.full((component_count, component_count), float(value))
+    matrix = _matrix(name, value, component_count, model="NRTL", zero_diagonal=False)
+    np.fill_diagonal(matrix, 0.0)
+    if not np.allclose(matrix, matrix.T, rtol=1e-12, atol=0.0):
+        raise CaseError(f"NRTL parameter {name} must be symmetric ({name}_ij = {name}_ji)", value=matrix.tolist())
+    return matrix
 
 
 def _states(model: str, component_count: int, temperature, x) -> tuple[np.ndarray, np.ndarray]:
@@ -169,48 +190,55 @@ class _ScratchArrays(threading.local):
 
 @dataclass(frozen=True)
 class _TemperatureDependence:
-    """p(T) = a + b/T + e ln T + f T for (c, c) matrices, evaluated for n temperatures at once
-    into (c, c, n) arrays. Terms whose matrix is zero are skipped."""
+    """p(T) = constant + over_temperature/T + in_ln_temperature ln T + times_temperature T for
+    (c, c) matrices, evaluated for n temperatures at once into (c, c, n) arrays. Terms whose
+    matrix is zero are skipped."""
 
-    a: np.ndarray
-    b: np.ndarray
-    e: np.ndarray
-    f: np.ndarray
+    constant: np.ndarray
+    over_temperature: np.ndarray  # K
+    in_ln_temperature: np.ndarray
+    times_temperature: np.ndarray  # 1/K
+
+    @property
+    def terms(self) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+        """The four matrices in the order of :data:`TERMS`."""
+        return self.constant, self.over_temperature, self.in_ln_temperature, self.times_temperature
 
     def __post_init__(self) -> None:
-        object.__setattr__(self, "_has", tuple(bool(np.any(m)) for m in (self.a, self.e, self.f)))
-        object.__setattr__(self, "_stacked", tuple(m[:, :, None].copy() for m in (self.a, self.b, self.e, self.f)))
+        has = tuple(bool(np.any(m)) for m in (self.constant, self.in_ln_temperature, self.times_temperature))
+        object.__setattr__(self, "_has", has)
+        object.__setattr__(self, "_stacked", tuple(m[:, :, None].copy() for m in self.terms))
 
     def evaluate_into(self, temperature: np.ndarray, out: np.ndarray) -> None:
         """Writes p, dp/dT, d2p/dT2 into out[0], out[1], out[2] (as many as out holds)."""
-        has_a, has_e, has_f = self._has
-        a, b, e, f = self._stacked
+        has_constant, has_ln, has_times = self._has
+        constant, over, in_ln, times = self._stacked
         inverse = 1.0 / temperature
-        p = np.multiply(b, inverse, out=out[0])
-        if has_a:
-            p += a
-        if has_e:
-            p += e * np.log(temperature)
-        if has_f:
-            p += f * temperature
+        p = np.multiply(over, inverse, out=out[0])
+        if has_constant:
+            p += constant
+        if has_ln:
+            p += in_ln * np.log(temperature)
+        if has_times:
+            p += times * temperature
         if len(out) > 1:
             inverse_squared = inverse * inverse
-            dp = np.multiply(b, -inverse_squared, out=out[1])
-            if has_e:
-                dp += e * inverse
-            if has_f:
-                dp += f
+            dp = np.multiply(over, -inverse_squared, out=out[1])
+            if has_ln:
+                dp += in_ln * inverse
+            if has_times:
+                dp += times
         if len(out) > 2:
-            d2p = np.multiply(b, 2.0 * inverse_squared * inverse, out=out[2])
-            if has_e:
-                d2p -= e * inverse_squared
+            d2p = np.multiply(over, 2.0 * inverse_squared * inverse, out=out[2])
+            if has_ln:
+                d2p -= in_ln * inverse_squared
 
     def transposed(self) -> _TemperatureDependence:
         """The same dependence for the transposed matrices (p_ji in place of p_ij)."""
-        return _TemperatureDependence(*(np.ascontiguousarray(m.T) for m in (self.a, self.b, self.e, self.f)))
+        return _TemperatureDependence(*(np.ascontiguousarray(m.T) for m in self.terms))
 
     def describe(self) -> dict:
-        return {"a": self.a.tolist(), "b": self.b.tolist(), "e": self.e.tolist(), "f": self.f.tolist()}
+        return {name: matrix.tolist() for name, matrix in zip(TERMS, self.terms)}
 
 
 def _stage_first_into(matrix: np.ndarray, out: np.ndarray, *, transpose: bool = False) -> np.ndarray:
@@ -352,16 +380,20 @@ class Wilson(_ActivityModel):
 
         ln gamma_i = 1 - ln(sum_j x_j Lambda_ij) - sum_k x_k Lambda_ki / sum_j x_j Lambda_kj
 
-    (with x / sum(x) in the logarithm when x is off the simplex), ln Lambda_ij = a_ij + b_ij/T
-    + e_ij ln T + f_ij T and Lambda_ii = 1. Parameters are (c, c) matrices with zero diagonal;
-    None means zeros. For the energy form Lambda_ij = (V_j / V_i) exp(-dlambda_ij / RT) use
-    :func:`wilson_energy_form`.
+    (with x / sum(x) in the logarithm when x is off the simplex), ln Lambda_ij the sum of the
+    four terms (module docstring) and Lambda_ii = 1. Parameters are (c, c) matrices with zero
+    diagonal; None means zeros. For the energy form Lambda_ij = (V_j / V_i) exp(-dlambda_ij / RT)
+    use :func:`wilson_energy_form`.
     """
 
     name = "wilson"
 
-    def __init__(self, a, b, e=None, f=None) -> None:
-        self.component_count, matrices = _parameter_matrices("Wilson", a, b, e, f)
+    def __init__(
+        self, constant_term, term_over_temperature, term_in_ln_temperature=None, term_times_temperature=None
+    ) -> None:
+        self.component_count, matrices = _parameter_matrices(
+            "Wilson", constant_term, term_over_temperature, term_in_ln_temperature, term_times_temperature
+        )
         self._log_lambda = _TemperatureDependence(*matrices)
         self._scratch = _ScratchArrays(_LOG_SUM_SCRATCH, self.component_count)
 
@@ -396,31 +428,55 @@ class NRTL(_ActivityModel):
         ln gamma_i = sum_j x_j tau_ji G_ji / sum_k x_k G_ki
                      + sum_j x_j G_ij / (sum_k x_k G_kj) (tau_ij - sum_m x_m tau_mj G_mj / sum_k x_k G_kj)
 
-    with tau_ij = a_ij + b_ij/T + e_ij ln T + f_ij T, G_ij = exp(-alpha_ij tau_ij) and
-    alpha_ij = alpha_c_ij + alpha_d_ij (T - 273.15 K), symmetric. alpha_c and alpha_d may be
-    single numbers; alpha_c None gives 0.3 (common practice), alpha_d None gives 0. For the
-    energy form tau_ij = dg_ij / RT use :func:`nrtl_energy_form`.
+    with tau_ij the sum of the four terms (module docstring), G_ij = exp(-alpha_ij tau_ij) and
+    the non-randomness
+
+        alpha_ij(T) = alpha_ij + alpha_slope_ij (T - alpha_reference_temperature_ij),
+
+    symmetric, a straight line through ``alpha`` at the reference temperature [K] that the
+    user states. Each of the three may be a single number; ``alpha`` None gives 0.3 (common
+    practice), ``alpha_slope`` None gives 0 (and then no reference temperature is needed). For
+    the energy form tau_ij = dg_ij / RT use :func:`nrtl_energy_form`.
     """
 
     name = "nrtl"
 
-    def __init__(self, a, b, e=None, f=None, alpha_c=None, alpha_d=None) -> None:
-        c, matrices = _parameter_matrices("NRTL", a, b, e, f)
+    def __init__(
+        self,
+        constant_term,
+        term_over_temperature,
+        term_in_ln_temperature=None,
+        term_times_temperature=None,
+        *,
+        alpha=None,
+        alpha_slope=None,
+        alpha_reference_temperature=None,
+    ) -> None:
+        c, matrices = _parameter_matrices(
+            "NRTL", constant_term, term_over_temperature, term_in_ln_temperature, term_times_temperature
+        )
         self.component_count = c
         self._tau = _TemperatureDependence(*matrices)
-        alphas = []
-        for key, value in (("alpha_c", NRTL_DEFAULT_ALPHA if alpha_c is None else alpha_c), ("alpha_d", alpha_d)):
-            if value is not None and np.ndim(value) == 0:
-                value = np.full((c, c), float(value))
-            matrix = _matrix(key, value, c, model="NRTL", zero_diagonal=False)
-            np.fill_diagonal(matrix, 0.0)  # G_ii = 1 whatever alpha_ii is
-            if not np.allclose(matrix, matrix.T, rtol=1e-12, atol=0.0):
-                raise CaseError(f"NRTL parameter {key} must be symmetric (alpha_ij = alpha_ji)", value=matrix.tolist())
-            alphas.append(matrix)
-        self._alpha_c, self._alpha_d = alphas
-        self._alpha_depends_on_temperature = bool(np.any(self._alpha_d))
-        self._alpha_c_stacked = self._alpha_c[:, :, None].copy()
-        self._alpha_d_stacked = self._alpha_d[:, :, None].copy()
+        self._alpha = _alpha_matrix("alpha", NRTL_DEFAULT_ALPHA if alpha is None else alpha, c)
+        self._alpha_slope = _alpha_matrix("alpha_slope", alpha_slope, c)
+        self._alpha_depends_on_temperature = bool(np.any(self._alpha_slope))
+        if self._alpha_depends_on_temperature and alpha_reference_temperature is None:
+            raise CaseError(
+                "NRTL alpha_slope needs the temperature it is about (alpha_reference_temperature)",
+                expected="a reference temperature in K",
+            )
+        self._alpha_reference_temperature = _alpha_matrix(
+            "alpha_reference_temperature", alpha_reference_temperature, c
+        )
+        sloped = self._alpha_slope != 0.0
+        if np.any(self._alpha_reference_temperature[sloped] <= 0.0):
+            raise CaseError(
+                "NRTL alpha_reference_temperature must be a positive temperature [K] wherever alpha_slope is not 0",
+                value=self._alpha_reference_temperature.tolist(),
+            )
+        self._alpha_stacked = self._alpha[:, :, None].copy()
+        self._alpha_slope_stacked = self._alpha_slope[:, :, None].copy()
+        self._alpha_reference_stacked = self._alpha_reference_temperature[:, :, None].copy()
         self._scratch = _ScratchArrays(12, c)
 
     def evaluate(self, temperature: np.ndarray, x: np.ndarray, derivatives: bool = True) -> ActivityResult:
@@ -437,12 +493,13 @@ class NRTL(_ActivityModel):
         tau, d_tau, bracket, alpha, u, h, w, v, vd, e1, work, spare = scratch
         self._tau.evaluate_into(temperature, scratch[: 3 if derivatives else 2])
         if self._alpha_depends_on_temperature:
-            np.multiply(self._alpha_d_stacked, temperature - NRTL_ALPHA_REFERENCE_TEMPERATURE, out=alpha)
-            alpha += self._alpha_c_stacked
+            np.subtract(temperature, self._alpha_reference_stacked, out=alpha)
+            alpha *= self._alpha_slope_stacked
+            alpha += self._alpha_stacked
             np.multiply(alpha, d_tau, out=u)
-            u += np.multiply(self._alpha_d_stacked, tau, out=work)
+            u += np.multiply(self._alpha_slope_stacked, tau, out=work)
         else:
-            alpha = self._alpha_c_stacked
+            alpha = self._alpha_stacked
             np.multiply(alpha, d_tau, out=u)
         np.multiply(alpha, tau, out=h)
         np.negative(h, out=h)
@@ -472,7 +529,7 @@ class NRTL(_ActivityModel):
         # bracket = d2tau/dT2 - (u + sigma) e1 - (dtau/dT - deps/dT) u - D du/dT
         d_u = np.multiply(alpha, bracket, out=spare)
         if self._alpha_depends_on_temperature:
-            d_u += np.multiply(2.0 * self._alpha_d_stacked, d_tau, out=work)
+            d_u += np.multiply(2.0 * self._alpha_slope_stacked, d_tau, out=work)
         d_u *= deviation
         bracket -= d_u
         np.add(u, relative_d_sums, out=work)
@@ -501,9 +558,10 @@ class NRTL(_ActivityModel):
             "component_count": self.component_count,
             "temperature_dependence": "tau_ij = " + TEMPERATURE_DEPENDENCE,
             **self._tau.describe(),
-            "alpha_dependence": "alpha_ij = alpha_c_ij + alpha_d_ij*(T - 273.15 K)",
-            "alpha_c": self._alpha_c.tolist(),
-            "alpha_d": self._alpha_d.tolist(),
+            "alpha_dependence": "alpha_ij(T) = alpha_ij + alpha_slope_ij*(T - alpha_reference_temperature_ij), T in K",
+            "alpha": self._alpha.tolist(),
+            "alpha_slope": self._alpha_slope.tolist(),
+            "alpha_reference_temperature": self._alpha_reference_temperature.tolist(),
             "source": "H. Renon and J. M. Prausnitz, AIChE J. 14 (1968) 135-144",
         }
 
@@ -515,15 +573,26 @@ class UNIQUAC(_ActivityModel):
                      + q_i (1 - ln(sum_j theta_j tau_ji) - sum_j theta_j tau_ij / sum_k theta_k tau_kj)
 
     with Phi_i = r_i x_i / sum_j r_j x_j, theta_i = q_i x_i / sum_j q_j x_j,
-    l_i = (z/2)(r_i - q_i) - (r_i - 1) and ln tau_ij = a_ij + b_ij/T + e_ij ln T + f_ij T.
+    l_i = (z/2)(r_i - q_i) - (r_i - 1) and ln tau_ij the sum of the four terms (module docstring).
     r and q are the pure-component volume and area parameters. For the energy form
     tau_ij = exp(-du_ij / RT) use :func:`uniquac_energy_form`.
     """
 
     name = "uniquac"
 
-    def __init__(self, a, b, e=None, f=None, *, r, q) -> None:
-        c, matrices = _parameter_matrices("UNIQUAC", a, b, e, f)
+    def __init__(
+        self,
+        constant_term,
+        term_over_temperature,
+        term_in_ln_temperature=None,
+        term_times_temperature=None,
+        *,
+        r,
+        q,
+    ) -> None:
+        c, matrices = _parameter_matrices(
+            "UNIQUAC", constant_term, term_over_temperature, term_in_ln_temperature, term_times_temperature
+        )
         self.component_count = c
         self._log_tau = _TemperatureDependence(*matrices)
         # the residual part needs A_ij = tau_ji, so its parameters are kept transposed
@@ -603,23 +672,26 @@ def _energy_matrix(name: str, value) -> np.ndarray:
 
 
 def nrtl_energy_form(dg) -> tuple[np.ndarray, np.ndarray]:
-    """NRTL (a, b) from interaction energies dg_ij [J/mol]: tau_ij = dg_ij / (R T), so
-    a = 0 and b_ij = dg_ij / R [K] (Renon and Prausnitz 1968)."""
+    """NRTL (constant_term, term_over_temperature) from interaction energies dg_ij [J/mol]:
+    tau_ij = dg_ij / (R T), so the constant term is 0 and the term over temperature is
+    dg_ij / R [K] (Renon and Prausnitz 1968)."""
     dg = _energy_matrix("NRTL dg", dg)
     return np.zeros_like(dg), dg / GAS_CONSTANT
 
 
 def uniquac_energy_form(du) -> tuple[np.ndarray, np.ndarray]:
-    """UNIQUAC (a, b) from interaction energies du_ij [J/mol]: tau_ij = exp(-du_ij / (R T)),
-    so a = 0 and b_ij = -du_ij / R [K] (Abrams and Prausnitz 1975)."""
+    """UNIQUAC (constant_term, term_over_temperature) from interaction energies du_ij [J/mol]:
+    tau_ij = exp(-du_ij / (R T)), so the constant term is 0 and the term over temperature is
+    -du_ij / R [K] (Abrams and Prausnitz 1975)."""
     du = _energy_matrix("UNIQUAC du", du)
     return np.zeros_like(du), -du / GAS_CONSTANT
 
 
 def wilson_energy_form(dlambda, molar_volumes) -> tuple[np.ndarray, np.ndarray]:
-    """Wilson (a, b) from interaction energies dlambda_ij = lambda_ij - lambda_ii [J/mol] and
-    liquid molar volumes V [m3/mol]: Lambda_ij = (V_j / V_i) exp(-dlambda_ij / (R T)), so
-    a_ij = ln(V_j / V_i) and b_ij = -dlambda_ij / R [K] (Wilson 1964)."""
+    """Wilson (constant_term, term_over_temperature) from interaction energies
+    dlambda_ij = lambda_ij - lambda_ii [J/mol] and liquid molar volumes V [m3/mol]:
+    Lambda_ij = (V_j / V_i) exp(-dlambda_ij / (R T)), so the constant term is ln(V_j / V_i) and
+    the term over temperature is -dlambda_ij / R [K] (Wilson 1964)."""
     dlambda = _energy_matrix("Wilson dlambda", dlambda)
     volumes = _positive_vector("molar_volumes", molar_volumes, dlambda.shape[0], model="Wilson")
     log_volumes = np.log(volumes)

@@ -12,6 +12,7 @@ from solver.case.fields import (
     At,
     Field,
     check_keys,
+    plausible_quantity,
     quantity,
     read_choice,
     read_component_name,
@@ -80,19 +81,13 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
     return tuple(names), component_data, warnings
 
 
-def _molar_mass(value: Any, at: At) -> float:
-    molar_mass = read_quantity(value, "molar_mass", at, above=0.0)
-    if molar_mass > _HEAVIEST:
-        at.fail(
-            f"{molar_mass:g} kg/mol is not a molar mass of a distillable component (a plain number is kg/mol)",
-            value,
-            "a molar mass such as '100 g/mol' or 0.1",
-        )
-    return molar_mass
-
-
 _COMPONENT_FIELDS = {
-    "molar_mass": Field(_molar_mass, required=True),
+    "molar_mass": Field(
+        plausible_quantity(
+            "molar_mass", _HEAVIEST, "a molar mass of a distillable component", "a molar mass such as '100 g/mol' or 0.1"
+        ),
+        required=True,
+    ),
     "critical_temperature": Field(quantity("temperature", above=0.0), required=True),
     "critical_pressure": Field(quantity("pressure", above=0.0), required=True),
     "normal_boiling_point": Field(),  # below the critical temperature: read below
@@ -104,9 +99,8 @@ _COMPONENT_FIELDS = {
 }
 
 
-def _read_component_data(name: str, value: Any, at: At) -> ComponentData:
-    fields = read_fields(value, at, _COMPONENT_FIELDS)
-    table = value
+def _read_component_data(name: str, table: Any, at: At) -> ComponentData:
+    fields = read_fields(table, at, _COMPONENT_FIELDS)
     critical_temperature = fields["critical_temperature"]
     normal_boiling_point = None
     if "normal_boiling_point" in table:

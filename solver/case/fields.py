@@ -25,6 +25,7 @@ __all__ = [
     "check_keys",
     "component_key",
     "plain",
+    "plausible_quantity",
     "quantity",
     "read_boolean",
     "read_choice",
@@ -218,6 +219,20 @@ def read_quantity(value: Any, kind: str, at: At, *, minimum=None, maximum=None, 
 def quantity(kind: str, **bounds: float) -> Reader:
     """A reader of a quantity of ``kind`` within ``bounds`` (minimum, maximum, above, below)."""
     return lambda value, at: read_quantity(value, kind, at, **bounds)
+
+
+def plausible_quantity(kind: str, largest: float, what: str, example: str) -> Reader:
+    """A reader of a positive quantity of ``kind`` no larger than ``largest`` (SI): a larger one
+    is taken as a plain number meant in another unit, and refused as not being ``what``."""
+
+    def read(value: Any, at: At) -> float:
+        number = read_quantity(value, kind, at, above=0.0)
+        if number > largest:
+            unit = SI_UNITS[kind]
+            at.fail(f"{number:g} {unit} is not {what} (a plain number is {unit})", value, example)
+        return number
+
+    return read
 
 
 def read_integer(value: Any, at: At, *, minimum: int, maximum: int, what: str = "a whole number") -> int:

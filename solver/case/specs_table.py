@@ -23,20 +23,6 @@ from solver.case.model import Column, Spec
 __all__ = ["PRODUCTS", "read_product_fractions", "read_specs_table"]
 
 PRODUCTS = ("distillate", "bottoms")
-_SPEC_KEYS = (
-    "reflux_ratio",
-    "boilup_ratio",
-    "distillate_rate",
-    "bottoms_rate",
-    "condenser_duty",
-    "reboiler_duty",
-    "distillate",
-    "bottoms",
-    "recovery",
-    "stage_temperature",
-    "reflux_temperature",
-    "reflux_subcooling",
-)
 #: Spec key -> (kind of quantity, bounds, the column part it needs)
 _SINGLE_VALUE_SPECS = {
     "reflux_ratio": ("dimensionless", {"above": 0.0}, "condenser"),
@@ -46,6 +32,9 @@ _SINGLE_VALUE_SPECS = {
     "condenser_duty": ("power", {}, "condenser"),
     "reboiler_duty": ("power", {"above": 0.0}, "reboiler"),
 }
+_SPEC_KEYS = (
+    tuple(_SINGLE_VALUE_SPECS) + PRODUCTS + ("recovery", "stage_temperature", "reflux_temperature", "reflux_subcooling")
+)
 
 
 def read_specs_table(

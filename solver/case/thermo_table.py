@@ -17,6 +17,7 @@ from solver.case.fields import (
     check_keys,
     component_key,
     plain,
+    plausible_quantity,
     quantity,
     read_choice,
     read_fields,
@@ -69,7 +70,7 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
 
     wilson_volumes: dict[str, float] = {}
     if "wilson_volumes" in table:
-        wilson_volumes = _per_component(table["wilson_volumes"], names, at.child("wilson_volumes"), _liquid_volume)
+        wilson_volumes = _per_component(table["wilson_volumes"], names, at.child("wilson_volumes"), _LIQUID_VOLUME)
     uniquac_structure: dict[str, tuple[float, float]] = {}
     if liquid == "uniquac":
         uniquac_structure = _read_uniquac_structure(table.get("uniquac_structure"), names, at.child("uniquac_structure"))
@@ -98,15 +99,9 @@ def _per_component(value: Any, names: tuple[str, ...], at: At, read: Reader) -> 
     return result
 
 
-def _liquid_volume(value: Any, at: At) -> float:
-    volume = read_quantity(value, "molar_volume", at, above=0.0)
-    if volume > _LARGEST_LIQUID_VOLUME:
-        at.fail(
-            f"{volume:g} m**3/mol is not a liquid molar volume (a plain number is m**3/mol)",
-            value,
-            "a molar volume such as '40.7 cm**3/mol'",
-        )
-    return volume
+_LIQUID_VOLUME = plausible_quantity(
+    "molar_volume", _LARGEST_LIQUID_VOLUME, "a liquid molar volume", "a molar volume such as '40.7 cm**3/mol'"
+)
 
 
 _STRUCTURE_FIELDS = {
@@ -182,8 +177,11 @@ def _read_pair(
                 table[given[0]],
                 f"either {energy_key} or the terms " + ", ".join(_PAIR_TERMS),
             )
-        energy_form = _read_energy_form(model, first, second, table[energy_key], wilson_volumes, at, thermo_at)
-        terms.update(energy_form.pop("terms"))
+        over_temperature, energy_form = _read_energy_form(model, table[energy_key], at.child(energy_key))
+        terms["term_over_temperature"] = over_temperature
+        if model == "wilson":
+            terms["constant_term"], volumes = _wilson_volume_term(first, second, wilson_volumes, thermo_at)
+            energy_form["liquid_molar_volumes_m3_per_mol"] = volumes
     alpha = (0.0, 0.0, None)
     if model == "nrtl":
         if "alpha" not in fields:
@@ -232,37 +230,29 @@ def _refuse_old_pair_keys(table: Mapping, model: str, at: At) -> None:
             )
 
 
-def _read_energy_form(
-    model: str,
-    first: str,
-    second: str,
-    value: Any,
-    wilson_volumes: Mapping[str, float],
-    at: At,
-    thermo_at: At,
-) -> dict[str, object]:
-    """The energy form (dg, dlambda or du) as written and in J/mol, for the record, and under
-    "terms" the terms it gives (see :class:`BinaryParameters`)."""
+def _read_energy_form(model: str, value: Any, at: At) -> tuple[tuple[float, float], dict[str, object]]:
+    """The term over temperature [K] that the energy form (dg, dlambda or du) gives (see
+    :class:`BinaryParameters`), and the form as written and in J/mol, for the record."""
     energy_key = _ENERGY_FORM_KEY[model]
-    energy = read_ij_ji(value, at.child(energy_key), quantity("molar_energy"))
-    record: dict[str, object] = {energy_key: tuple(plain(value)), energy_key + "_J_per_mol": energy}
+    energy = read_ij_ji(value, at, quantity("molar_energy"))
     sign = 1.0 if model == "nrtl" else -1.0
-    terms: dict[str, tuple[float, float]] = {
-        "term_over_temperature": (sign * energy[0] / GAS_CONSTANT, sign * energy[1] / GAS_CONSTANT)
-    }
-    if model == "wilson":
-        missing = [name for name in (first, second) if name not in wilson_volumes]
-        if missing:
-            thermo_at.child("wilson_volumes").fail(
-                f"the energy form (dlambda) of pair {first}.{second} needs the liquid molar volume of "
-                + " and ".join(repr(m) for m in missing),
-                expected="[thermo.wilson_volumes] NAME = \"40.7 cm**3/mol\"",
-            )
-        volume_i, volume_j = wilson_volumes[first], wilson_volumes[second]
-        terms["constant_term"] = (math.log(volume_j / volume_i), math.log(volume_i / volume_j))
-        record["liquid_molar_volumes_m3_per_mol"] = (volume_i, volume_j)
-    record["terms"] = terms
-    return record
+    over_temperature = (sign * energy[0] / GAS_CONSTANT, sign * energy[1] / GAS_CONSTANT)
+    return over_temperature, {energy_key: tuple(plain(value)), energy_key + "_J_per_mol": energy}
+
+
+def _wilson_volume_term(
+    first: str, second: str, wilson_volumes: Mapping[str, float], thermo_at: At
+) -> tuple[tuple[float, float], tuple[float, float]]:
+    """The constant term ln(V_j / V_i) of Wilson's energy form, and the volumes (V_i, V_j)."""
+    missing = [name for name in (first, second) if name not in wilson_volumes]
+    if missing:
+        thermo_at.child("wilson_volumes").fail(
+            f"the energy form (dlambda) of pair {first}.{second} needs the liquid molar volume of "
+            + " and ".join(repr(m) for m in missing),
+            expected="[thermo.wilson_volumes] NAME = \"40.7 cm**3/mol\"",
+        )
+    volume_i, volume_j = wilson_volumes[first], wilson_volumes[second]
+    return (math.log(volume_j / volume_i), math.log(volume_i / volume_j)), (volume_i, volume_j)
 
 
 _ALPHA_FIELDS = {

@@ -30,7 +30,7 @@ def main() -> None:
     np.fill_diagonal(b, 0.0)
     alpha = np.full((c, c), 0.3)
     np.fill_diagonal(alpha, 0.0)
-    thermo = ThermoPackage(pure, NRTL(np.zeros((c, c)), b, alpha_c=alpha))
+    thermo = ThermoPackage(pure, NRTL(np.zeros((c, c)), b, alpha=alpha))
     T = np.linspace(330.0, 400.0, STAGES)
     P = np.full(STAGES, 101325.0)
     x = rng.dirichlet(np.ones(c), STAGES)

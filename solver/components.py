@@ -22,12 +22,13 @@ from typing import Mapping
 
 import CoolProp
 import CoolProp.CoolProp as CP
+from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of the normal boiling point
 
-from solver.case import ComponentData
 from solver.errors import CaseError
 from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter, loose_key, name_index
+from solver.thermo.data import ComponentData
 
-ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
+__all__ = ["ComponentInfo", "component_info", "coolprop_source", "list_components"]
 
 
 @dataclass(frozen=True)

@@ -12,6 +12,15 @@ from functools import lru_cache
 
 import CoolProp.CoolProp as CP
 
+__all__ = [
+    "coolprop_name",
+    "fluid_aliases",
+    "fluid_names",
+    "fluid_parameter",
+    "loose_key",
+    "name_index",
+]
+
 
 def coolprop_name(name: str) -> str | None:
     """CoolProp's name of the fluid called ``name`` (a CoolProp name or alias, any case,

@@ -19,6 +19,19 @@ from functools import lru_cache
 
 import pint
 
+__all__ = [
+    "MAX_TEXT_LENGTH",
+    "SI_UNITS",
+    "Quantity",
+    "UnitParseError",
+    "convert",
+    "example_unit",
+    "temperature_scale",
+    "to_si",
+    "unit_factor",
+    "ureg",
+]
+
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
 # pound-mole, used on US datasheets (453.59237 g per lb, NIST SP 811)
 ureg.define("lbmol = 453.59237 * mol = lb_mol")

@@ -16,6 +16,7 @@ from solver.errors import CaseError, ThermoError
 from solver.thermo.activity import (
     GAS_CONSTANT,
     NRTL,
+    TERMS,
     UNIQUAC,
     ActivityResult,
     IdealSolution,
@@ -55,8 +56,9 @@ def random_model(kind: str, c: int, rng: np.random.Generator):
             _off_diagonal(rng, c, -500.0, 1500.0),
             e,
             f,
-            alpha_c=_symmetric(rng, c, 0.2, 0.47),
-            alpha_d=_symmetric(rng, c, -1e-3, 1e-3),
+            alpha=_symmetric(rng, c, 0.2, 0.47),
+            alpha_slope=_symmetric(rng, c, -1e-3, 1e-3),
+            alpha_reference_temperature=320.0,  # K, invented
         )
     if kind == "wilson":
         return Wilson(_off_diagonal(rng, c, -0.5, 0.5), _off_diagonal(rng, c, -800.0, 400.0), e, f)
@@ -261,7 +263,7 @@ def test_binary_nrtl_matches_closed_form(x1: float) -> None:
     b = np.array([[0.0, -120.0], [420.0, 0.0]])  # K, invented
     a = np.array([[0.0, 0.4], [-0.2, 0.0]])
     temperature, alpha = 351.0, 0.31
-    model = NRTL(a, b, alpha_c=alpha)
+    model = NRTL(a, b, alpha=alpha)
     tau12, tau21 = 0.4 - 120.0 / temperature, -0.2 + 420.0 / temperature
     expected = binary_nrtl(x1, tau12, tau21, alpha)
     np.testing.assert_allclose(model.ln_gamma(np.array([temperature]), np.array([[x1, 1 - x1]]))[0], expected, rtol=1e-13)
@@ -269,7 +271,7 @@ def test_binary_nrtl_matches_closed_form(x1: float) -> None:
 
 def test_binary_nrtl_infinite_dilution() -> None:
     """ln gamma_1 at x_1 -> 0 is tau_21 + tau_12 exp(-alpha tau_12) (Renon and Prausnitz 1968)."""
-    model = NRTL(np.zeros((2, 2)), np.array([[0.0, 300.0], [150.0, 0.0]]), alpha_c=0.3)
+    model = NRTL(np.zeros((2, 2)), np.array([[0.0, 300.0], [150.0, 0.0]]), alpha=0.3)
     temperature = 330.0
     tau12, tau21 = 300.0 / temperature, 150.0 / temperature
     ln_gamma = model.ln_gamma(np.array([temperature, temperature]), np.array([[0.0, 1.0], [1.0, 0.0]]))
@@ -314,10 +316,10 @@ def test_nrtl_energy_form_gives_tau_dg_over_rt() -> None:
     dg = np.array([[0.0, -250.0 * 4.184], [850.0 * 4.184, 0.0]])  # J/mol, invented
     a, b = nrtl_energy_form(dg)
     assert not np.any(a)
-    np.testing.assert_allclose(b, dg / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, dg / 8.31446261815324, rtol=1e-15)
     temperature, x1 = 345.0, 0.3
     expected = binary_nrtl(x1, dg[0, 1] / (GAS_CONSTANT * temperature), dg[1, 0] / (GAS_CONSTANT * temperature), 0.3)
-    model = NRTL(a, b, alpha_c=0.3)
+    model = NRTL(a, b, alpha=0.3)
     np.testing.assert_allclose(model.ln_gamma(np.array([temperature]), np.array([[x1, 1 - x1]]))[0], expected, rtol=1e-13)
 
 
@@ -325,11 +327,11 @@ def test_energy_form_conversions_give_expected_matrices() -> None:
     du = np.array([[0.0, 100.0, 200.0], [300.0, 0.0, -50.0], [10.0, 20.0, 0.0]])
     a, b = uniquac_energy_form(du)
     assert not np.any(a)
-    np.testing.assert_allclose(b, -du / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, -du / 8.31446261815324, rtol=1e-15)
     a, b = wilson_energy_form(du, [1e-4, 5e-5, 2e-5])
     assert a[0, 1] == pytest.approx(math.log(0.5)) and a[2, 0] == pytest.approx(math.log(5.0))
     np.testing.assert_allclose(np.diag(a), 0.0, atol=0)
-    np.testing.assert_allclose(b, -du / 8.314462618, rtol=1e-15)
+    np.testing.assert_allclose(b, -du / 8.31446261815324, rtol=1e-15)
 
 
 def test_energy_forms_reject_a_nonzero_diagonal() -> None:
@@ -395,7 +397,7 @@ def test_bad_parameters_raise_case_error() -> None:
     with pytest.raises(CaseError, match="zero diagonal"):
         NRTL(np.zeros((2, 2)), np.array([[1.0, 100.0], [-50.0, 0.0]]))
     with pytest.raises(CaseError, match="symmetric"):
-        NRTL(np.zeros((2, 2)), b, alpha_c=np.array([[0.0, 0.3], [0.2, 0.0]]))
+        NRTL(np.zeros((2, 2)), b, alpha=np.array([[0.0, 0.3], [0.2, 0.0]]))
     with pytest.raises(CaseError, match="shape"):
         Wilson(np.zeros((2, 2)), np.zeros((3, 3)))
     with pytest.raises(CaseError, match="finite"):
@@ -414,9 +416,10 @@ def test_describe_is_json_and_rebuilds_the_model(kind: str) -> None:
     assert data["model"] == model.name == kind and data["component_count"] == 3
     if kind == "ideal":
         return
-    arguments = {key: np.array(data[key]) for key in ("a", "b", "e", "f")}
+    arguments = {key: np.array(data[key]) for key in TERMS}
     if kind == "nrtl":
-        rebuilt = NRTL(**arguments, alpha_c=data["alpha_c"], alpha_d=data["alpha_d"])
+        alpha = {key: data[key] for key in ("alpha", "alpha_slope", "alpha_reference_temperature")}
+        rebuilt = NRTL(**arguments, **alpha)
     elif kind == "wilson":
         rebuilt = Wilson(**arguments)
     else:
@@ -427,17 +430,27 @@ def test_describe_is_json_and_rebuilds_the_model(kind: str) -> None:
 
 def test_nrtl_alpha_default_and_scalar() -> None:
     b = np.array([[0.0, 200.0], [400.0, 0.0]])
-    default, given_scalar = NRTL(np.zeros((2, 2)), b), NRTL(np.zeros((2, 2)), b, alpha_c=0.3)
-    assert default.describe()["alpha_c"] == [[0.0, 0.3], [0.3, 0.0]]
+    default, given_scalar = NRTL(np.zeros((2, 2)), b), NRTL(np.zeros((2, 2)), b, alpha=0.3)
+    assert default.describe()["alpha"] == [[0.0, 0.3], [0.3, 0.0]]
     state = (np.array([330.0]), np.array([[0.4, 0.6]]))
     np.testing.assert_array_equal(default.ln_gamma(*state), given_scalar.ln_gamma(*state))
     np.testing.assert_allclose(default.ln_gamma(*state)[0], binary_nrtl(0.4, 200 / 330, 400 / 330, 0.3), rtol=1e-13)
 
 
-def test_nrtl_alpha_temperature_dependence_is_about_273_15_K() -> None:
+def test_nrtl_alpha_temperature_dependence_is_about_the_stated_reference() -> None:
     b = np.array([[0.0, 200.0], [400.0, 0.0]])
     temperature = 350.0
-    model = NRTL(np.zeros((2, 2)), b, alpha_c=0.3, alpha_d=2e-3)
-    alpha = 0.3 + 2e-3 * (temperature - 273.15)
+    model = NRTL(np.zeros((2, 2)), b, alpha=0.3, alpha_slope=2e-3, alpha_reference_temperature=320.0)
+    alpha = 0.3 + 2e-3 * (temperature - 320.0)
     expected = binary_nrtl(0.4, 200 / temperature, 400 / temperature, alpha)
     np.testing.assert_allclose(model.ln_gamma(np.array([temperature]), np.array([[0.4, 0.6]]))[0], expected, rtol=1e-13)
+    # the same straight line stated about another temperature is the same model
+    moved = NRTL(np.zeros((2, 2)), b, alpha=0.3 + 2e-3 * (400.0 - 320.0), alpha_slope=2e-3, alpha_reference_temperature=400.0)
+    state = (np.array([300.0, 350.0, 420.0]), np.array([[0.4, 0.6], [0.1, 0.9], [0.7, 0.3]]))
+    np.testing.assert_allclose(moved.ln_gamma(*state), model.ln_gamma(*state), rtol=1e-13)
+
+
+def test_nrtl_alpha_slope_needs_its_reference_temperature() -> None:
+    b = np.array([[0.0, 200.0], [400.0, 0.0]])
+    with pytest.raises(CaseError, match="alpha_reference_temperature"):
+        NRTL(np.zeros((2, 2)), b, alpha=0.3, alpha_slope=2e-3)

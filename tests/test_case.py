@@ -1,9 +1,9 @@
 """Tests for solver.case: reading, checking and converting case files.
 
-All numbers in the fixtures are invented for the tests (as in DESIGN.md's example). Unit
+All numbers in the fixtures are invented for the tests (as in the format example of README.md). Unit
 factors used in hand calculations are exact by definition (NIST SP 811, 2008, appendix B):
 1 cal (thermochemical) = 4.184 J, 1 mmHg = 133.322387415 Pa, 1 h = 3600 s. The gas constant
-R = 8.314462618 J/(mol K) is exact in the SI since 2019 (CODATA 2018).
+R = 8.31446261815324 J/(mol K) is exact in the SI since 2019 (CODATA 2018).
 """
 
 from __future__ import annotations
@@ -29,8 +29,8 @@ from solver.case import (
 )
 from solver.errors import CaseError
 
-# DESIGN.md's example, exactly as written there.
-DESIGN_CASE = '''\
+# The format example of the case file: every section once, as README.md shows it.
+FORMAT_CASE = '''\
 title = "Solvent recovery column (demo)"
 
 [components]
@@ -50,7 +50,7 @@ liquid = "nrtl"                        # ideal | wilson | nrtl | uniquac
 vapor = "ideal"
 enthalpy = "rigorous"                  # rigorous | cmo (equal molar latent heats, no sensible heat)
 [thermo.nrtl.methanol.water]           # pair (i, j) = (methanol, water)
-b = ["-120.0 K", "420.0 K"]            # tau_ij = a_ij + b_ij/T (a, e, f optional); invented numbers
+term_over_temperature = ["-120.0 K", "420.0 K"]   # tau_ij = constant_term + term_over_temperature/T + ...; invented numbers
 # or energy form: dg = ["-250 cal/mol", "850 cal/mol"]   -> tau_ij = dg_ij / (R T)
 alpha = 0.3
 source = "where the numbers come from"
@@ -104,15 +104,14 @@ liquid = "nrtl"
 enthalpy = "rigorous"
 [thermo.nrtl.methanol.water]
 dg = ["-250 cal/mol", "850 cal/mol"]
-alpha = [0.3, 0.3]
-alpha_T = "0.001 1/K"
+alpha = { value = 0.3, slope = "0.001 1/K", reference_temperature = "350 K" }
 source = "invented"
 [thermo.nrtl.water.solventX]
-a = [0.5, -0.5]
-b = [300.0, "-100 K"]
-e = [0.01, 0.02]
-f = ["0.0001 1/K", 0.0]
-alpha = 0.2
+constant_term = [0.5, -0.5]
+term_over_temperature = [300.0, "-100 K"]
+term_in_ln_temperature = [0.01, 0.02]
+term_times_temperature = ["0.0001 1/K", 0.0]
+alpha = [0.2, 0.2]
 
 [column]
 stages = 12
@@ -216,8 +215,8 @@ temperature = "70 degC"
 '''
 
 
-def design_data() -> dict:
-    return tomllib.loads(DESIGN_CASE)
+def format_data() -> dict:
+    return tomllib.loads(FORMAT_CASE)
 
 
 def full_data() -> dict:
@@ -254,15 +253,15 @@ def mutated(data: dict, path: str, value) -> dict:
     return data
 
 
-# --- the DESIGN.md example -----------------------------------------------------------------
+# --- the format example ---------------------------------------------------------------------
 
 
-def test_design_example_parses_with_values_in_si():
-    case = loads_case(DESIGN_CASE, source_file="design.toml")
+def test_format_example_parses_with_values_in_si():
+    case = loads_case(FORMAT_CASE, source_file="format.toml")
     assert case.title == "Solvent recovery column (demo)"
     assert case.component_names == ("methanol", "water")
     assert case.component_count == 2
-    assert case.source_file == "design.toml"
+    assert case.source_file == "format.toml"
     column = case.column
     assert (column.stages, column.condenser, column.reboiler) == (20, "total", "partial")
     assert column.pressures[0] == pytest.approx(101_325.0)
@@ -281,9 +280,9 @@ def test_design_example_parses_with_values_in_si():
     assert (thermo.liquid, thermo.vapor, thermo.enthalpy) == ("nrtl", "ideal", "rigorous")
     (pair,) = thermo.pairs
     assert (pair.model, pair.first, pair.second) == ("nrtl", "methanol", "water")
-    assert pair.b == pytest.approx((-120.0, 420.0))
-    assert pair.a == pair.e == pair.f == (0.0, 0.0)
-    assert pair.alpha_c == 0.3 and pair.alpha_d == 0.0
+    assert pair.term_over_temperature == pytest.approx((-120.0, 420.0))
+    assert pair.constant_term == pair.term_in_ln_temperature == pair.term_times_temperature == (0.0, 0.0)
+    assert pair.alpha == 0.3 and pair.alpha_slope == 0.0 and pair.alpha_reference_temperature is None
     assert pair.source == "where the numbers come from"
     assert [(s.kind, s.value, s.component, s.product, s.key) for s in case.specs] == [
         ("reflux_ratio", 1.4, None, None, "specs.reflux_ratio"),
@@ -293,17 +292,17 @@ def test_design_example_parses_with_values_in_si():
     assert dict(case.display) == {"temperature": "degC", "pressure": "bar", "flow": "kmol/h", "duty": "kW"}
 
 
-def test_design_example_unused_component_data_is_checked_and_reported():
-    case = loads_case(DESIGN_CASE, source_file="design.toml")
+def test_format_example_unused_component_data_is_checked_and_reported():
+    case = loads_case(FORMAT_CASE, source_file="format.toml")
     assert dict(case.component_data) == {}
     (warning,) = case.warnings
     assert "components.data.solventX" in warning and "not listed" in warning
-    broken = mutated(design_data(), "components.data.solventX.critical_pressure", "hot")
+    broken = mutated(format_data(), "components.data.solventX.critical_pressure", "hot")
     assert case_error(broken).key == "components.data.solventX.critical_pressure"
 
 
-def test_design_component_block_converts_when_used():
-    data = mutated(design_data(), "components.names", ["methanol", "water", "solventX"])
+def test_format_component_block_converts_when_used():
+    data = mutated(format_data(), "components.names", ["methanol", "water", "solventX"])
     case = parse_case(data)
     solvent = case.component_data["solventx"]
     assert case.component_names == ("methanol", "water", "solventx")
@@ -334,21 +333,22 @@ def test_design_component_block_converts_when_used():
     assert case.warnings == ()
 
 
-def test_design_energy_form_dg_is_converted_to_b():
-    data = design_data()
-    del data["thermo"]["nrtl"]["methanol"]["water"]["b"]
+def test_format_energy_form_dg_is_converted_to_the_term_over_temperature():
+    data = format_data()
+    del data["thermo"]["nrtl"]["methanol"]["water"]["term_over_temperature"]
     data["thermo"]["nrtl"]["methanol"]["water"]["dg"] = ["-250 cal/mol", "850 cal/mol"]
     (pair,) = parse_case(data).thermo.pairs
-    # b = dg / R: -250 * 4.184 / 8.314462618 = -125.805 K; 850 * 4.184 / 8.314462618 = 427.737 K
-    assert pair.b[0] == pytest.approx(-125.805, abs=0.001)
-    assert pair.b[1] == pytest.approx(427.737, abs=0.001)
-    assert pair.b == pytest.approx((-250 * 4.184 / GAS_CONSTANT, 850 * 4.184 / GAS_CONSTANT), rel=1e-12)
+    # dg / R: -250 * 4.184 / 8.31446261815324 = -125.805 K; 850 * 4.184 / 8.31446261815324 = 427.737 K
+    over = pair.term_over_temperature
+    assert over[0] == pytest.approx(-125.805, abs=0.001)
+    assert over[1] == pytest.approx(427.737, abs=0.001)
+    assert over == pytest.approx((-250 * 4.184 / GAS_CONSTANT, 850 * 4.184 / GAS_CONSTANT), rel=1e-12)
     assert pair.energy_form["dg"] == ("-250 cal/mol", "850 cal/mol")
     assert pair.energy_form["dg_J_per_mol"] == pytest.approx((-1046.0, 3556.4))
 
 
 def test_case_is_frozen_and_read_only():
-    case = loads_case(DESIGN_CASE)
+    case = loads_case(FORMAT_CASE)
     with pytest.raises(dataclasses.FrozenInstanceError):
         case.title = "x"  # type: ignore[misc]
     with pytest.raises(dataclasses.FrozenInstanceError):
@@ -363,7 +363,7 @@ def test_case_is_frozen_and_read_only():
 
 
 def test_raw_is_a_copy_of_the_input():
-    data = design_data()
+    data = format_data()
     case = parse_case(data)
     data["title"] = "changed afterwards"
     assert case.raw["title"] == "Solvent recovery column (demo)"
@@ -401,13 +401,42 @@ def test_full_case_thermo_pairs():
     case = loads_case(FULL_CASE)
     first, second = case.thermo.pairs
     assert (first.first, first.second) == ("methanol", "water")
-    assert first.alpha_c == 0.3 and first.alpha_d == pytest.approx(0.001)
-    assert first.b == pytest.approx((-1046.0 / GAS_CONSTANT, 3556.4 / GAS_CONSTANT))
+    assert first.alpha == 0.3 and first.alpha_slope == pytest.approx(0.001)
+    assert first.alpha_reference_temperature == pytest.approx(350.0)
+    assert first.term_over_temperature == pytest.approx((-1046.0 / GAS_CONSTANT, 3556.4 / GAS_CONSTANT))
     assert first.source == "invented"
     assert (second.first, second.second) == ("water", "solventx")
-    assert second.a == (0.5, -0.5) and second.b == (300.0, -100.0)
-    assert second.e == (0.01, 0.02) and second.f == (0.0001, 0.0)
-    assert second.alpha_c == 0.2 and second.energy_form == {}
+    assert second.constant_term == (0.5, -0.5) and second.term_over_temperature == (300.0, -100.0)
+    assert second.term_in_ln_temperature == (0.01, 0.02) and second.term_times_temperature == (0.0001, 0.0)
+    assert second.alpha == 0.2 and second.energy_form == {}
+
+
+def test_alpha_slope_about_a_stated_reference_temperature():
+    """alpha(T) = value + slope (T - reference_temperature); the same line stated about another
+    temperature (here the 273.15 K of earlier versions of the file) is the same alpha(T)."""
+    data = format_data()
+    pair = data["thermo"]["nrtl"]["methanol"]["water"]
+    pair["alpha"] = {"value": 0.3, "slope": "0.002 1/K", "reference_temperature": "77 degC"}
+    (stated,) = parse_case(data).thermo.pairs
+    assert (stated.alpha, stated.alpha_slope) == (0.3, pytest.approx(0.002))
+    assert stated.alpha_reference_temperature == pytest.approx(350.15)
+    pair["alpha"] = {"value": 0.3 - 0.002 * 77.0, "slope": 0.002, "reference_temperature": "273.15 K"}
+    (moved,) = parse_case(data).thermo.pairs
+    for temperature in (300.0, 350.15, 400.0):
+        assert moved.alpha + moved.alpha_slope * (temperature - moved.alpha_reference_temperature) == pytest.approx(
+            stated.alpha + stated.alpha_slope * (temperature - stated.alpha_reference_temperature), rel=1e-14
+        )
+
+
+def test_an_old_pair_key_is_a_case_error_with_exit_code_2(tmp_path):
+    text = FORMAT_CASE.replace('term_over_temperature = ["-120.0 K", "420.0 K"]', 'b = ["-120.0 K", "420.0 K"]')
+    path = tmp_path / "old.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(CaseError) as info:
+        load_case(path)
+    message = str(info.value)
+    assert message.startswith(f"{path}: thermo.nrtl.methanol.water.b: ")
+    assert "term_over_temperature" in message and info.value.exit_code == 2
 
 
 def test_full_case_column():
@@ -463,9 +492,9 @@ def test_wilson_energy_form_uses_liquid_volumes():
     (pair,) = case.thermo.pairs
     v_methanol, v_water = 40.7e-6, 18.07e-6
     assert case.thermo.wilson_volumes == pytest.approx({"methanol": v_methanol, "water": v_water})
-    # Lambda_ij = V_j/V_i exp(-dlambda_ij/(R T)) -> a_ij = ln(V_j/V_i), b_ij = -dlambda_ij/R
-    assert pair.a == pytest.approx((math.log(v_water / v_methanol), math.log(v_methanol / v_water)))
-    assert pair.b == pytest.approx((-500.0 / GAS_CONSTANT, -2000.0 / GAS_CONSTANT))
+    # Lambda_ij = V_j/V_i exp(-dlambda_ij/(R T)): constant term ln(V_j/V_i), term over T -dlambda_ij/R
+    assert pair.constant_term == pytest.approx((math.log(v_water / v_methanol), math.log(v_methanol / v_water)))
+    assert pair.term_over_temperature == pytest.approx((-500.0 / GAS_CONSTANT, -2000.0 / GAS_CONSTANT))
     assert case.column.pressures == pytest.approx((101_325.0,) * 10)
     assert case.column.reflux_subcooling == pytest.approx(5.0)
     assert case.feeds[0].vapor_fraction == 0.0
@@ -475,8 +504,8 @@ def test_uniquac_energy_form_and_structure():
     case = loads_case(UNIQUAC_CASE)
     (pair,) = case.thermo.pairs
     assert (pair.first, pair.second) == ("water", "methanol")
-    # tau_ij = exp(-du_ij/(R T)) -> ln tau_ij = b_ij / T with b_ij = -du_ij / R
-    assert pair.b == pytest.approx((1000.0 / GAS_CONSTANT, -500.0 / GAS_CONSTANT))
+    # tau_ij = exp(-du_ij/(R T)): ln tau_ij is a term over T, -du_ij / R
+    assert pair.term_over_temperature == pytest.approx((1000.0 / GAS_CONSTANT, -500.0 / GAS_CONSTANT))
     assert dict(case.thermo.uniquac_structure) == {"methanol": (1.4311, 1.432), "water": (0.92, 1.4)}
     assert case.thermo.enthalpy == "cmo"
     assert case.column.stages == 3 and case.column.efficiencies == (1.0, 1.0, 1.0)
@@ -493,7 +522,7 @@ def test_reflux_temperature_goes_to_the_column_not_the_specs():
 
 
 def test_pressure_profile_and_efficiency_list():
-    data = mutated(design_data(), "column.pressure", {"profile": [f"{100 + k} kPa" for k in range(20)]})
+    data = mutated(format_data(), "column.pressure", {"profile": [f"{100 + k} kPa" for k in range(20)]})
     data = mutated(data, "column.efficiency", [0.5] * 20)
     column = parse_case(data).column
     assert column.pressures == pytest.approx(tuple(1000.0 * (100 + k) for k in range(20)))
@@ -501,7 +530,7 @@ def test_pressure_profile_and_efficiency_list():
 
 
 def test_case_insensitive_names_and_choices():
-    data = mutated(design_data(), "feeds[0].composition", {"MeThanol": 0.35, "Water": 0.65})
+    data = mutated(format_data(), "feeds[0].composition", {"MeThanol": 0.35, "Water": 0.65})
     data = mutated(data, "thermo.liquid", "NRTL")
     case = parse_case(data)
     assert case.feeds[0].composition == pytest.approx((0.35, 0.65))
@@ -521,7 +550,7 @@ def test_molar_mass_of_coolprop_fluids_case_insensitive():
 
 
 def test_mass_basis_feed_converted_by_hand():
-    data = mutated(design_data(), "feeds[0].composition", {"methanol": 0.5, "water": 0.5})
+    data = mutated(format_data(), "feeds[0].composition", {"methanol": 0.5, "water": 0.5})
     data["feeds"][0]["basis"] = "mass"
     (feed,) = parse_case(data).feeds
     # per kg: 0.5/0.03204216 = 15.6044 mol methanol, 0.5/0.018015268 = 27.7542 mol water;
@@ -534,7 +563,7 @@ def test_mass_basis_feed_converted_by_hand():
 
 
 def test_mass_basis_with_a_user_component():
-    data = mutated(design_data(), "components.names", ["water", "solventX"])
+    data = mutated(format_data(), "components.names", ["water", "solventX"])
     data = mutated(data, "thermo.liquid", "ideal")
     del data["thermo"]["nrtl"]
     data = mutated(data, "feeds[0].composition", {"water": 0.6, "solventx": 0.4})
@@ -546,7 +575,7 @@ def test_mass_basis_with_a_user_component():
 
 
 def test_mass_basis_needs_a_known_molar_mass():
-    data = mutated(design_data(), "components.names", ["methanol", "unobtainium"])
+    data = mutated(format_data(), "components.names", ["methanol", "unobtainium"])
     data = mutated(data, "thermo.liquid", "ideal")
     del data["thermo"]["nrtl"]
     data = mutated(data, "feeds[0].composition", {"methanol": 0.5, "unobtainium": 0.5})
@@ -595,13 +624,13 @@ def test_broken_toml_names_line_and_column(tmp_path):
 
 def test_utf8_byte_order_mark_is_accepted(tmp_path):
     path = tmp_path / "bom.toml"
-    path.write_bytes(b"\xef\xbb\xbf" + DESIGN_CASE.encode("utf-8"))
+    path.write_bytes(b"\xef\xbb\xbf" + FORMAT_CASE.encode("utf-8"))
     assert load_case(path).title == "Solvent recovery column (demo)"
 
 
 def test_load_case_reads_a_file(tmp_path):
-    path = tmp_path / "design.toml"
-    path.write_text(DESIGN_CASE, encoding="utf-8")
+    path = tmp_path / "format.toml"
+    path.write_text(FORMAT_CASE, encoding="utf-8")
     case = load_case(str(path))
     assert isinstance(case, Case) and case.source_file == str(path)
 
@@ -630,7 +659,7 @@ def test_parse_case_needs_a_table():
 # --- errors: every kind names file, key and value ---------------------------------------------
 
 # (path, new value or DELETE, key in the error, value in the error, text in the message)
-DESIGN_ERRORS = [
+FORMAT_ERRORS = [
     ("titel", "x", "titel", "titel", "did you mean 'title'"),
     ("title", 5, "title", 5, "string"),
     ("components", DELETE, "components", None, "missing"),
@@ -674,15 +703,27 @@ DESIGN_ERRORS = [
     ("thermo.vapor", "srk", "thermo.vapor", "srk", "choice"),
     ("thermo.enthalpy", "cmoo", "thermo.enthalpy", "cmoo", "did you mean 'cmo'"),
     ("thermo.enthalpy", 1, "thermo.enthalpy", 1, "string"),
-    ("thermo.nrtl.methanol.water.b", ["-120.0 K"], "thermo.nrtl.methanol.water.b", ["-120.0 K"], "2 entries"),
-    ("thermo.nrtl.methanol.water.b", ["-120 kg", "420 K"], "thermo.nrtl.methanol.water.b[0]", "-120 kg", "temperature difference"),
-    ("thermo.nrtl.methanol.water.b", -120.0, "thermo.nrtl.methanol.water.b", -120.0, "list"),
-    ("thermo.nrtl.methanol.water.f", ["1 K", 0], "thermo.nrtl.methanol.water.f[0]", "1 K", "inverse temperature"),
+    ("thermo.nrtl.methanol.water.term_over_temperature", ["-120.0 K"], "thermo.nrtl.methanol.water.term_over_temperature", ["-120.0 K"], "2 entries"),
+    ("thermo.nrtl.methanol.water.term_over_temperature", ["-120 kg", "420 K"], "thermo.nrtl.methanol.water.term_over_temperature[0]", "-120 kg", "temperature difference"),
+    ("thermo.nrtl.methanol.water.term_over_temperature", -120.0, "thermo.nrtl.methanol.water.term_over_temperature", -120.0, "list"),
+    ("thermo.nrtl.methanol.water.term_times_temperature", ["1 K", 0], "thermo.nrtl.methanol.water.term_times_temperature[0]", "1 K", "inverse temperature"),
     ("thermo.nrtl.methanol.water.alpha", [0.3, 0.4], "thermo.nrtl.methanol.water.alpha", [0.3, 0.4], "equal"),
     ("thermo.nrtl.methanol.water.alpha", True, "thermo.nrtl.methanol.water.alpha", True, "true/false"),
     ("thermo.nrtl.methanol.water.alpha", DELETE, "thermo.nrtl.methanol.water.alpha", None, "missing"),
-    ("thermo.nrtl.methanol.water.dg", ["1 J/mol", "2 J/mol"], "thermo.nrtl.methanol.water.b", ["-120.0 K", "420.0 K"], "energy form"),
+    ("thermo.nrtl.methanol.water.dg", ["1 J/mol", "2 J/mol"], "thermo.nrtl.methanol.water.term_over_temperature", ["-120.0 K", "420.0 K"], "energy form"),
     ("thermo.nrtl.methanol.water.dlambda", ["1 J/mol", "2 J/mol"], "thermo.nrtl.methanol.water.dlambda", "dlambda", "WILSON"),
+    ("thermo.nrtl.methanol.water.alpha", {"value": 0.3, "slope": "0.001 1/K"}, "thermo.nrtl.methanol.water.alpha.reference_temperature", None, "missing"),
+    ("thermo.nrtl.methanol.water.alpha", {"value": 0.3, "reference_temperature": "350 K"}, "thermo.nrtl.methanol.water.alpha.slope", None, "missing"),
+    ("thermo.nrtl.methanol.water.alpha", {"slope": 0.001, "reference_temperature": 350}, "thermo.nrtl.methanol.water.alpha.value", None, "missing"),
+    ("thermo.nrtl.methanol.water.alpha", {"value": 0.3, "slope": "1 K", "reference_temperature": 350}, "thermo.nrtl.methanol.water.alpha.slope", "1 K", "inverse temperature"),
+    ("thermo.nrtl.methanol.water.alpha", {"value": 0.3, "slope": 0.001, "reference_temperature": -5}, "thermo.nrtl.methanol.water.alpha.reference_temperature", -5, "range"),
+    ("thermo.nrtl.methanol.water.alpha", {"value": 0.3, "slop": 0.001}, "thermo.nrtl.methanol.water.alpha.slop", "slop", "did you mean 'slope'"),
+    # names of earlier versions of the pair table: each error says what to write instead
+    ("thermo.nrtl.methanol.water.a", [0.1, 0.2], "thermo.nrtl.methanol.water.a", [0.1, 0.2], "written 'constant_term'"),
+    ("thermo.nrtl.methanol.water.b", ["-1 K", "4 K"], "thermo.nrtl.methanol.water.b", ["-1 K", "4 K"], "written 'term_over_temperature'"),
+    ("thermo.nrtl.methanol.water.e", [0.1, 0.2], "thermo.nrtl.methanol.water.e", [0.1, 0.2], "written 'term_in_ln_temperature'"),
+    ("thermo.nrtl.methanol.water.f", [0.0, 1e-4], "thermo.nrtl.methanol.water.f", [0.0, 1e-4], "written 'term_times_temperature'"),
+    ("thermo.nrtl.methanol.water.alpha_T", 0.001, "thermo.nrtl.methanol.water.alpha_T", 0.001, "reference_temperature"),
     ("thermo.nrtl.methanol.water.sauce", "x", "thermo.nrtl.methanol.water.sauce", "sauce", "did you mean 'source'"),
     ("thermo.nrtl.methanol.water.source", 42, "thermo.nrtl.methanol.water.source", 42, "string"),
     ("thermo.nrtl.methanol.ethanol", {"alpha": 0.3}, "thermo.nrtl.methanol.ethanol", "ethanol", "not a component"),
@@ -775,9 +816,9 @@ DESIGN_ERRORS = [
 ]
 
 
-@pytest.mark.parametrize(("path", "value", "key", "shown", "text"), DESIGN_ERRORS, ids=[e[0] + "-" + repr(e[1])[:20] for e in DESIGN_ERRORS])
+@pytest.mark.parametrize(("path", "value", "key", "shown", "text"), FORMAT_ERRORS, ids=[e[0] + "-" + repr(e[1])[:20] for e in FORMAT_ERRORS])
 def test_error_names_file_key_and_value(path, value, key, shown, text):
-    error = case_error(mutated(design_data(), path, value))
+    error = case_error(mutated(format_data(), path, value))
     assert error.file == "case.toml"
     assert error.key == key
     if isinstance(shown, float) and math.isnan(shown):
@@ -792,9 +833,9 @@ def test_error_names_file_key_and_value(path, value, key, shown, text):
     assert error.exit_code == 2
 
 
-# Errors that need more than one change from the DESIGN case.
+# Errors that need more than one change from the format example.
 def _combined(*changes):
-    data = design_data()
+    data = format_data()
     for path, value in changes:
         data = mutated(data, path, value)
     return data
@@ -839,21 +880,21 @@ def test_error_after_several_changes_names_key_and_value(changes, key, shown, te
 
 
 def test_feeds_second_entry_is_named_by_index():
-    data = design_data()
+    data = format_data()
     data["feeds"].append(dict(data["feeds"][0], stage=99))
     error = case_error(data)
     assert error.key == "feeds[1].stage" and error.value == 99
 
 
 def test_duplicate_feed_names():
-    data = design_data()
+    data = format_data()
     data["feeds"][0]["name"] = "F"
     data["feeds"].append(dict(data["feeds"][0]))
     assert case_error(data).key == "feeds[1].name"
 
 
 def test_unknown_key_lists_allowed_keys_and_suggests():
-    error = case_error(mutated(design_data(), "column.stgaes", 20))
+    error = case_error(mutated(format_data(), "column.stgaes", 20))
     assert error.problem == "unknown key; did you mean 'stages'?"
     assert error.expected is not None
     for allowed in ("stages", "condenser", "reboiler", "pressure", "efficiency", "side_draws", "heaters"):
@@ -861,22 +902,22 @@ def test_unknown_key_lists_allowed_keys_and_suggests():
 
 
 def test_unknown_key_without_a_close_match_has_no_suggestion():
-    error = case_error(mutated(design_data(), "column.xyzzy", 1))
+    error = case_error(mutated(format_data(), "column.xyzzy", 1))
     assert "did you mean" not in error.problem and "stages" in error.expected
 
 
 def test_unknown_key_at_the_top_level_and_in_a_correlation():
-    error = case_error(mutated(design_data(), "spec", {}))
+    error = case_error(mutated(format_data(), "spec", {}))
     assert error.key == "spec" and "did you mean 'specs'" in error.problem
-    data = mutated(design_data(), "components.data.solventX.ideal_gas_cp.coefficent", [1.0])
+    data = mutated(format_data(), "components.data.solventX.ideal_gas_cp.coefficent", [1.0])
     error = case_error(data)
     assert error.key == "components.data.solventX.ideal_gas_cp.coefficent" and "'coefficients'" in error.problem
 
 
 def test_composition_sum_tolerance():
-    ok = mutated(design_data(), "feeds[0].composition", {"methanol": 0.35, "water": 0.65 + 0.9e-6})
+    ok = mutated(format_data(), "feeds[0].composition", {"methanol": 0.35, "water": 0.65 + 0.9e-6})
     assert sum(parse_case(ok).feeds[0].composition) == pytest.approx(1.0, abs=1e-15)
-    bad = mutated(design_data(), "feeds[0].composition", {"methanol": 0.35, "water": 0.65 + 2e-6})
+    bad = mutated(format_data(), "feeds[0].composition", {"methanol": 0.35, "water": 0.65 + 2e-6})
     assert "normalize = true" in case_error(bad).problem
 
 
@@ -887,7 +928,7 @@ def test_toml_syntax_error_from_text_names_line():
 
 
 def test_long_values_are_shortened_in_messages():
-    error = case_error(mutated(design_data(), "title", ["x" * 1000]))
+    error = case_error(mutated(format_data(), "title", ["x" * 1000]))
     assert len(str(error)) < 400
 
 
@@ -925,7 +966,7 @@ def _delete_at(data, path):
     return data
 
 
-BASE_CASES = [tomllib.loads(text) for text in (DESIGN_CASE, FULL_CASE, WILSON_CASE, UNIQUAC_CASE)]
+BASE_CASES = [tomllib.loads(text) for text in (FORMAT_CASE, FULL_CASE, WILSON_CASE, UNIQUAC_CASE)]
 BASE_PATHS = [(index, path) for index, data in enumerate(BASE_CASES) for path in _paths(data)]
 
 _scalars = st.one_of(
@@ -1004,7 +1045,7 @@ _toml_fragments = st.sampled_from(
         "[components]\n", 'names = ["methanol", "water"]\n', "[column]\n", "stages = 20\n", 'condenser = "total"\n',
         'reboiler = "partial"\n', 'pressure = "1 atm"\n', "[[feeds]]\n", "stage = 5\n", 'flow = "1 mol/s"\n',
         "composition = { methanol = 0.5, water = 0.5 }\n", "vapor_fraction = 0\n", "[specs]\n", "reflux_ratio = 2\n",
-        "[thermo]\n", 'liquid = "nrtl"\n', "[thermo.nrtl.methanol.water]\n", "alpha = 0.3\n", "b = [1, 2]\n",
+        "[thermo]\n", 'liquid = "nrtl"\n', "[thermo.nrtl.methanol.water]\n", "alpha = 0.3\n", "term_over_temperature = [1, 2]\n",
         'title = "t"\n', "x = [\n", "]\n", "= 1\n", '"\n', "[[column.side_draws]]\n", "efficiency = { default = 0.5 }\n",
         "1979-05-27T07:32:00Z\n", "a.b.c = 1\n", "\\u0000\n", "inf\n", "nan = nan\n",
     ]
@@ -1047,7 +1088,7 @@ def test_random_bytes_in_a_file_raise_only_case_error(tmp_path_factory, content)
 @settings(max_examples=80, deadline=None)
 @given(weights=st.lists(st.floats(min_value=0.0, max_value=1e3), min_size=2, max_size=2).filter(lambda w: sum(w) > 1e-3))
 def test_normalized_composition_is_proportional_and_sums_to_one(weights):
-    data = mutated(design_data(), "feeds[0].composition", {"methanol": weights[0], "water": weights[1]})
+    data = mutated(format_data(), "feeds[0].composition", {"methanol": weights[0], "water": weights[1]})
     data["feeds"][0]["normalize"] = True
     composition = parse_case(data).feeds[0].composition
     assert math.fsum(composition) == pytest.approx(1.0, abs=1e-12)
@@ -1061,7 +1102,7 @@ def test_normalized_composition_is_proportional_and_sums_to_one(weights):
     drop=st.floats(min_value=0.0, max_value=1e4),
 )
 def test_pressure_profile_from_top_and_drop(stages, top, drop):
-    data = mutated(design_data(), "column.stages", stages)
+    data = mutated(format_data(), "column.stages", stages)
     data = mutated(data, "column.pressure", {"top": top, "drop_per_stage": drop})
     data = mutated(data, "feeds[0].stage", 2)
     pressures = parse_case(data).column.pressures
@@ -1075,7 +1116,7 @@ def test_pressure_profile_from_top_and_drop(stages, top, drop):
 
 
 def _with_solvent_property(prop: str, table) -> dict:
-    data = mutated(design_data(), "components.names", ["methanol", "water", "solventX"])
+    data = mutated(format_data(), "components.names", ["methanol", "water", "solventX"])
     return mutated(data, f"components.data.solventX.{prop}", table)
 
 
@@ -1140,7 +1181,7 @@ def test_correlation_errors(prop, table, key, text):
     ("condenser", "reboiler", "fewest"), [("total", "partial", 3), ("partial", "none", 2), ("none", "none", 1)]
 )
 def test_fewest_stages_depends_on_condenser_and_reboiler(condenser, reboiler, fewest):
-    data = mutated(design_data(), "column.condenser", condenser)
+    data = mutated(format_data(), "column.condenser", condenser)
     data = mutated(data, "column.reboiler", reboiler)
     data = mutated(data, "column.stages", fewest)
     data = mutated(data, "feeds[0].stage", 1)
@@ -1151,7 +1192,7 @@ def test_fewest_stages_depends_on_condenser_and_reboiler(condenser, reboiler, fe
 
 
 def test_single_pressure_value_means_no_drop():
-    data = mutated(design_data(), "column.pressure", "2 bar")
+    data = mutated(format_data(), "column.pressure", "2 bar")
     assert parse_case(data).column.pressures == (2e5,) * 20
 
 
@@ -1159,7 +1200,7 @@ def test_single_pressure_value_means_no_drop():
 
 
 def test_audit_table_reads_targets_reflux_and_thresholds():
-    data = mutated(design_data(), "audit", {
+    data = mutated(format_data(), "audit", {
         "distillate": {"Methanol": 0.99}, "bottoms": {"water": "99.5 %"}, "reflux_factor": 1.3,
         "thresholds": {"cmo_deviation": 0.08, "stage_difference": 2},
     })
@@ -1171,7 +1212,7 @@ def test_audit_table_reads_targets_reflux_and_thresholds():
     ]
     assert audit.reflux_factor == 1.3 and audit.reflux_ratio is None
     assert dict(audit.thresholds) == {"cmo_deviation": 0.08, "stage_difference": 2.0}
-    assert parse_case(design_data()).audit is None
+    assert parse_case(format_data()).audit is None
 
 
 @pytest.mark.parametrize(
@@ -1190,6 +1231,6 @@ def test_audit_table_reads_targets_reflux_and_thresholds():
     ],
 )
 def test_audit_table_errors_name_the_key(table, key, words):
-    error = case_error(mutated(design_data(), "audit", table))
+    error = case_error(mutated(format_data(), "audit", table))
     assert error.key == key and error.file == "case.toml"
     assert words in str(error)

@@ -7,7 +7,7 @@ import CoolProp
 import CoolProp.CoolProp as CP
 import pytest
 
-from solver.case import ComponentData, Correlation
+from solver.thermo.data import ComponentData, Correlation
 from solver.components import ComponentInfo, component_info, coolprop_name, coolprop_source, list_components
 from solver.errors import CaseError
 

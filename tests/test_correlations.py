@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad
 
-from solver.case import Correlation
+from solver.thermo.data import Correlation
 from solver.errors import CaseError, ThermoError
 from solver.thermo import correlations as corr_mod
 from solver.thermo.correlations import (
@@ -100,12 +100,20 @@ def test_watson_by_hand_and_default_exponent():
     assert evaluate(WATSON, np.array([350.0]), TC)[0][0] == pytest.approx(35000.0, rel=1e-14)
 
 
-def test_watson_given_exponent_and_Tc_coefficient():
-    corr = Correlation("watson", {"value": 30000.0, "at": 300.0, "exponent": 0.5, "Tc": 500.0})
-    assert evaluate(corr, np.array([400.0]))[0][0] == pytest.approx(30000.0 * 0.5**0.5, rel=1e-13)
-    alias = Correlation("watson", {"value": 30000.0, "at": 300.0, "n": 0.5, "Tc": 500.0})
-    assert evaluate(alias, np.array([400.0]))[0][0] == pytest.approx(30000.0 * 0.5**0.5, rel=1e-13)
+def test_watson_given_exponent():
+    corr = Correlation("watson", {"value": 30000.0, "at": 300.0, "exponent": 0.5})
+    assert evaluate(corr, np.array([400.0]), 500.0)[0][0] == pytest.approx(30000.0 * 0.5**0.5, rel=1e-13)
     validate_correlation(corr)
+
+
+def test_watson_takes_the_keys_the_case_file_takes():
+    """One definition of the forms (solver.thermo.data.FORMS): no second name for the exponent
+    and no critical temperature of its own (the component's is used)."""
+    for extra in ({"n": 0.5}, {"Tc": 500.0}):
+        with pytest.raises(CaseError, match="unknown coefficient"):
+            validate_correlation(Correlation("watson", {"value": 30000.0, "at": 300.0, **extra}), "x")
+    with pytest.raises(ThermoError, match="critical temperature"):
+        evaluate(Correlation("watson", {"value": 30000.0, "at": 300.0}), np.array([400.0]))
 
 
 def test_correlations_as_the_case_reader_builds_them():

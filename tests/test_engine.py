@@ -249,7 +249,7 @@ def test_a_dry_column_is_not_reported_as_converged():
         [thermo]
         liquid = "nrtl"
         [thermo.nrtl.ethanol.water]
-        a = [-0.178, 1.963]
+        constant_term = [-0.178, 1.963]
         alpha = 0.2974
         [column]
         stages = 3

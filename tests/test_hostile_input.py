@@ -59,6 +59,21 @@ BAD_VALUES = [
     (("thermo", "liquid"), ["unifac", 3, True, ""], "thermo.liquid"),
     (("thermo", "enthalpy"), ["exact", 1], "thermo.enthalpy"),
     (("thermo", "nrtl", "methanol", "water", "alpha"), [NAN, INF, "x", [0.3, 0.4]], "alpha"),
+    (
+        ("thermo", "nrtl", "methanol", "water", "alpha"),
+        [
+            {"value": 0.3, "slope": NAN, "reference_temperature": 350.0},
+            {"value": 0.3, "slope": 0.001},
+            {"value": 0.3, "slope": 0.001, "reference_temperature": "-5 K"},
+            {"slope": 0.001, "reference_temperature": 350.0},
+            {"value": 0.3, "slope": "1 bar", "reference_temperature": 350.0},
+        ],
+        "alpha",
+    ),
+    (("thermo", "nrtl", "methanol", "water", "term_in_ln_temperature"), [[NAN, 1.0], [1.0], "x"], "term_in_ln_temperature"),
+    # names of earlier versions of the pair table, refused with the name to write instead
+    (("thermo", "nrtl", "methanol", "water", "b"), [[1.0, 2.0], "x"], "term_over_temperature"),
+    (("thermo", "nrtl", "methanol", "water", "alpha_T"), [0.001, "1 1/K"], "reference_temperature"),
     (("thermo", "nrtl", "methanol", "water", "dg"), [["1 bar", "2 bar"], [1.0], "x", [NAN, 1.0]], "dg"),
     (("column", "stages"), [0, -5, 2.5, "ten", 100000, True, NAN], "column.stages"),
     (("column", "condenser"), ["half", 1, None], "column.condenser"),

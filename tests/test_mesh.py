@@ -102,22 +102,21 @@ MODEL_PARAMETERS = {
     "ideal": "",
     "wilson": """
 [thermo.wilson.acetone.methanol]
-a = [0.1, -0.2]
-b = ["-100 K", "150 K"]
+constant_term = [0.1, -0.2]
+term_over_temperature = ["-100 K", "150 K"]
 [thermo.wilson.methanol.water]
-b = ["-60 K", "-230 K"]
+term_over_temperature = ["-60 K", "-230 K"]
 """,
     "nrtl": """
 [thermo.nrtl.acetone.methanol]
-b = ["93 K", "112 K"]
+term_over_temperature = ["93 K", "112 K"]
 alpha = 0.3
 [thermo.nrtl.acetone.water]
-b = ["318 K", "603 K"]
-alpha = 0.53
-alpha_T = 0.001
+term_over_temperature = ["318 K", "603 K"]
+alpha = { value = 0.57685, slope = "0.001 1/K", reference_temperature = "320 K" }
 [thermo.nrtl.methanol.water]
-b = ["-128 K", "425 K"]
-e = [0.01, -0.02]
+term_over_temperature = ["-128 K", "425 K"]
+term_in_ln_temperature = [0.01, -0.02]
 alpha = 0.3
 """,
     "uniquac": """
@@ -126,10 +125,10 @@ acetone = { r = 2.57, q = 2.34 }
 methanol = { r = 1.43, q = 1.43 }
 water = { r = 0.92, q = 1.40 }
 [thermo.uniquac.acetone.methanol]
-b = ["-60 K", "20 K"]
+term_over_temperature = ["-60 K", "20 K"]
 [thermo.uniquac.methanol.water]
-b = ["-80 K", "-40 K"]
-f = [0.0001, 0.0002]
+term_over_temperature = ["-80 K", "-40 K"]
+term_times_temperature = [0.0001, 0.0002]
 """,
 }
 

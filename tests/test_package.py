@@ -49,14 +49,15 @@ def _activity(kind: str, c: int, seed: int):
         return IdealSolution(c)
     if kind == "nrtl":
         alpha = np.triu(rng.uniform(0.2, 0.47, (c, c)), 1)
-        alpha_d = np.triu(rng.uniform(-1e-3, 1e-3, (c, c)), 1)
+        alpha_slope = np.triu(rng.uniform(-1e-3, 1e-3, (c, c)), 1)
         return NRTL(
             _off_diagonal(rng, c, -0.5, 0.5),
             _off_diagonal(rng, c, -300.0, 1200.0),
             e,
             f,
-            alpha_c=alpha + alpha.T,
-            alpha_d=alpha_d + alpha_d.T,
+            alpha=alpha + alpha.T,
+            alpha_slope=alpha_slope + alpha_slope.T,
+            alpha_reference_temperature=320.0,  # K, invented
         )
     if kind == "wilson":
         return Wilson(_off_diagonal(rng, c, -0.8, 0.8), _off_diagonal(rng, c, -700.0, 150.0), e, f)
@@ -233,7 +234,7 @@ def test_excess_enthalpy_is_gibbs_helmholtz(pure, kind):
     h = package.liquid_enthalpy(T, x)
     step = 1e-3
     d_ln_gamma_dT = (activity.ln_gamma(T + step, x) - activity.ln_gamma(T - step, x)) / (2 * step)
-    expected = -8.314462618 * T**2 * np.einsum("nc,nc->n", x, d_ln_gamma_dT)
+    expected = -8.31446261815324 * T**2 * np.einsum("nc,nc->n", x, d_ln_gamma_dT)
     np.testing.assert_allclose(h.excess, expected, rtol=1e-6, atol=1e-6)
     np.testing.assert_allclose(h.molar, np.einsum("nc,nc->n", x, h.pure) + h.excess, rtol=1e-13, atol=1e-9)
     if kind == "ideal":
@@ -292,7 +293,7 @@ def test_pure_liquid_enthalpy_is_ideal_gas_minus_latent_heat_from_coolprop(name)
     # a second component with a nonideal NRTL pair: at x = (1, 0) there is no heat of mixing
     other = "water" if name != "water" else "ethanol"
     pure = PureComponents([component_info(name), component_info(other)])
-    activity = NRTL(np.zeros((2, 2)), np.array([[0.0, 300.0], [600.0, 0.0]]), alpha_c=0.3)
+    activity = NRTL(np.zeros((2, 2)), np.array([[0.0, 300.0], [600.0, 0.0]]), alpha=0.3)
     package = ThermoPackage(pure, activity)
     temperatures = np.linspace(300.0, 0.85 * state.T_critical(), 7)
     x = np.tile([1.0, 0.0], (7, 1))
@@ -401,10 +402,14 @@ def test_from_case_builds_nrtl_with_the_case_parameters():
     assert package.enthalpy_model == "rigorous"
     described = package.activity.describe()
     assert described["model"] == "nrtl"
-    # dg = -253.88 and 845.21 cal/mol (conftest, Smith, Van Ness & Abbott Table 12.5): b = dg / R
+    # dg = -253.88 and 845.21 cal/mol (conftest, Smith, Van Ness & Abbott Table 12.5): the term
+    # over temperature is dg / R
     calorie = 4.184
-    np.testing.assert_allclose(described["b"], [[0.0, -253.88 * calorie / 8.314462618], [845.21 * calorie / 8.314462618, 0.0]])
-    np.testing.assert_allclose(described["alpha_c"], [[0.0, 0.2994], [0.2994, 0.0]])
+    np.testing.assert_allclose(
+        described["term_over_temperature"],
+        [[0.0, -253.88 * calorie / 8.31446261815324], [845.21 * calorie / 8.31446261815324, 0.0]],
+    )
+    np.testing.assert_allclose(described["alpha"], [[0.0, 0.2994], [0.2994, 0.0]])
     assert ThermoPackage.from_case(methanol_water_case(enthalpy="cmo")).enthalpy_model == "cmo"
 
 
@@ -431,11 +436,11 @@ def test_pair_order_in_the_case_does_not_matter():
     tail = CASE_TAIL.format(composition="{ methanol = 0.5, water = 0.5 }")
     forward = case_from_text(
         '[components]\nnames = ["methanol", "water"]\n[thermo]\nliquid = "nrtl"\n'
-        '[thermo.nrtl.methanol.water]\nb = [-100.0, 450.0]\nalpha = 0.3\nsource = "invented"\n' + tail
+        '[thermo.nrtl.methanol.water]\nterm_over_temperature = [-100.0, 450.0]\nalpha = 0.3\nsource = "invented"\n' + tail
     )
     backward = case_from_text(
         '[components]\nnames = ["methanol", "water"]\n[thermo]\nliquid = "nrtl"\n'
-        '[thermo.nrtl.water.methanol]\nb = [450.0, -100.0]\nalpha = 0.3\nsource = "invented"\n' + tail
+        '[thermo.nrtl.water.methanol]\nterm_over_temperature = [450.0, -100.0]\nalpha = 0.3\nsource = "invented"\n' + tail
     )
     T, P, x, _ = _states(1, c=2)
     k_forward = ThermoPackage.from_case(forward).k_values(T, P, x).K
@@ -531,7 +536,7 @@ def test_cmo_package_builds_without_a_heat_of_vaporization_correlation():
     boiling = package.pure.normal_boiling_point
     assert np.all(np.isfinite(boiling))
     own = np.arange(2)
-    expected = 8.314462618 * boiling**2 * package.pure.ln_vapor_pressure(boiling)[1][own, own]
+    expected = 8.31446261815324 * boiling**2 * package.pure.ln_vapor_pressure(boiling)[1][own, own]
     assert package.cmo_latent_heat == pytest.approx(expected.mean(), rel=1e-12)
     assert package.reference_latent_heat() == pytest.approx(expected.mean(), rel=1e-12)
     assert 25e3 < package.cmo_latent_heat < 40e3

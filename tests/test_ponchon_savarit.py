@@ -219,7 +219,7 @@ names = ["ethanol", "water"]
 [thermo]
 liquid = "nrtl"
 [thermo.nrtl.ethanol.water]
-a = [-0.178, 1.963]
+constant_term = [-0.178, 1.963]
 alpha = 0.2974
 source = "Gmehling, Kolbe, Kleiber & Rarey 2012, Problem P05.01 (70 degC, tau constant)"
 [column]

@@ -1,7 +1,7 @@
 """Pure-component correlations written by the user, evaluated vectorized with analytic
 temperature derivatives.
 
-A :class:`~solver.case.Correlation` is evaluated as ``value_SI = value_factor * f(T_u)`` with
+A :class:`~solver.thermo.data.Correlation` is evaluated as ``value_SI = value_factor * f(T_u)`` with
 ``T_u = temperature_slope * T + temperature_intercept`` the temperature (T in K) in the unit the
 coefficients were fitted in. The forms and their published sources:
 
@@ -21,7 +21,7 @@ coefficients were fitted in. The forms and their published sources:
     equation 107.
 ``watson``
     ``dH = value ((Tc - T)/(Tc - at))^n`` with ``n = 0.38`` unless given (coefficient
-    ``exponent``, or ``n``); Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
+    ``exponent``); Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
 ``dippr106``
     ``Y = A (1 - Tr)^(B + C Tr + D Tr^2 + E Tr^3)`` with ``Tr = T/Tc``; DIPPR 801 equation 106.
 ``dippr105``
@@ -45,26 +45,22 @@ from typing import Callable
 
 import numpy as np
 
-from solver.case import Correlation
 from solver.errors import CaseError, ThermoError
+from solver.thermo.data import FORMS, WATSON_EXPONENT, Correlation
+
+__all__ = [
+    "FORMS",
+    "REFERENCE_TEMPERATURE",
+    "check_range",
+    "evaluate",
+    "evaluate_log",
+    "integrate_from_reference",
+    "liquid_molar_volume",
+    "validate_correlation",
+]
 
 #: Reference temperature of the ideal-gas enthalpy, K.
 REFERENCE_TEMPERATURE = 298.15
-
-#: Forms this module evaluates, with the coefficients each needs and those it may have.
-FORMS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
-    "antoine": (("A", "B", "C"), ()),
-    "dippr101": (("A", "B"), ("C", "D", "E")),
-    "polynomial": ((), ()),  # c0, c1, ... checked separately
-    "dippr107": (("A", "B", "C"), ("D", "E")),
-    "watson": (("value", "at"), ("exponent", "n", "Tc")),
-    "dippr106": (("A", "B"), ("C", "D", "E", "Tc")),
-    "dippr105": (("A", "B", "C", "D"), ()),
-    "constant": (("value",), ()),
-}
-
-#: Watson's exponent (Watson 1943).
-WATSON_EXPONENT = 0.38
 
 _POLYNOMIAL_KEY = re.compile(r"^c(\d+)$")
 _TINY = 1e-300
@@ -137,7 +133,7 @@ def evaluate(
 ) -> tuple[np.ndarray, np.ndarray]:
     """Value (SI) of the correlation at temperatures ``T`` (K, any shape) and its derivative
     with respect to T (SI per K). ``critical_temperature`` (K) is needed by the watson and
-    dippr106 forms unless the correlation carries a ``Tc`` coefficient."""
+    dippr106 forms."""
     T = np.asarray(T, dtype=float)
     if strict:
         check_range(corr, T, label)
@@ -361,8 +357,6 @@ def _dippr107_antiderivative(c, Tu):
 
 
 def _critical(corr, critical_temperature, label) -> float:
-    if "Tc" in corr.coefficients:
-        return (corr.coefficients["Tc"] - corr.temperature_intercept) / corr.temperature_slope
     if critical_temperature is None:
         raise ThermoError(f"{label} ({corr.form}) needs the critical temperature of the component")
     return float(critical_temperature)
@@ -372,7 +366,7 @@ def _watson(corr, T, critical_temperature, label):
     c = corr.coefficients
     Tc = _critical(corr, critical_temperature, label)
     at = c["at"]
-    n = c.get("exponent", c.get("n", WATSON_EXPONENT))
+    n = c.get("exponent", WATSON_EXPONENT)
     span = Tc - at
     if span <= 0.0:
         raise ThermoError(f"{label} (watson): reference temperature {at:.2f} K is not below Tc = {Tc:.2f} K")

@@ -23,6 +23,18 @@ import numpy as np
 
 from ..errors import ThermoError
 
+__all__ = [
+    "FeedState",
+    "FlashResult",
+    "bubble_temperature",
+    "dew_temperature",
+    "feed_state",
+    "feed_state_by_phase",
+    "flash_p_vapor_fraction",
+    "flash_tp",
+    "rachford_rice",
+]
+
 _MAX_TEMPERATURE_STEP = 25.0  # K per Newton step
 _TOLERANCE = 1e-11
 

@@ -17,6 +17,8 @@ import numpy as np
 from .activity import ActivityResult
 from .package import PhaseEnthalpy, StageProperties, ThermoPackage
 
+__all__ = ["HomotopyThermo", "ScaledActivity"]
+
 
 class ScaledActivity:
     """An activity model whose ln(gamma) (and so excess enthalpy) is multiplied by ``t``."""

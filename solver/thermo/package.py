@@ -1,6 +1,6 @@
 """The thermo package: K-values and phase enthalpies of a mixture, with their derivatives.
 
-Models (DESIGN.md, "Engine shape"):
+Models:
 
 * K-values by the modified Raoult's law with an ideal vapor,
   ``K_i = gamma_i(T, x) Psat_i(T) / P`` (e.g. Smith, Van Ness & Abbott, *Introduction to
@@ -20,18 +20,21 @@ All arrays are stage-major: temperatures ``(n,)``, compositions ``(n, c)``.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 import numpy as np
+from scipy.constants import R as GAS_CONSTANT
+from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of the normal boiling point
 
-from ..case import Case
 from ..components import ComponentInfo, component_info
 from ..errors import CaseError, ThermoError
 from . import activity as activity_models
 from .pure import PureComponents
 
-GAS_CONSTANT = 8.314462618  # J/mol/K, CODATA 2018
-ATMOSPHERIC_PRESSURE = 101325.0  # Pa, the pressure of the normal boiling point
+if TYPE_CHECKING:  # the case reader is upstream; only its data model is read here
+    from ..case import Case
+
+__all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage"]
 
 
 @dataclass(frozen=True)
@@ -67,24 +70,23 @@ def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None
     if options.liquid == "ideal":
         return activity_models.IdealSolution(count)
     index = {name: position for position, name in enumerate(names)}
-    a, b, e, f = (np.zeros((count, count)) for _ in range(4))
-    alpha_c = np.zeros((count, count))
-    alpha_d = np.zeros((count, count))
+    terms = {name: np.zeros((count, count)) for name in activity_models.TERMS}
+    alpha = {name: np.zeros((count, count)) for name in ("alpha", "alpha_slope", "alpha_reference_temperature")}
     for pair in options.pairs:
         if pair.model != options.liquid:
             continue
         i, j = index[pair.first], index[pair.second]
-        for matrix, values in ((a, pair.a), (b, pair.b), (e, pair.e), (f, pair.f)):
-            matrix[i, j], matrix[j, i] = values
-        alpha_c[i, j] = alpha_c[j, i] = pair.alpha_c
-        alpha_d[i, j] = alpha_d[j, i] = pair.alpha_d
+        for name, matrix in terms.items():
+            matrix[i, j], matrix[j, i] = getattr(pair, name)
+        for name, matrix in alpha.items():
+            matrix[i, j] = matrix[j, i] = getattr(pair, name) or 0.0
     if options.liquid == "nrtl":
         # a pair without parameters is ideal (tau = 0); alpha then does not matter but must be finite
-        alpha_c = np.where(alpha_c == 0.0, 0.3, alpha_c)
-        np.fill_diagonal(alpha_c, 0.0)
-        return activity_models.NRTL(a, b, e, f, alpha_c=alpha_c, alpha_d=alpha_d)
+        alpha["alpha"] = np.where(alpha["alpha"] == 0.0, activity_models.NRTL_DEFAULT_ALPHA, alpha["alpha"])
+        np.fill_diagonal(alpha["alpha"], 0.0)
+        return activity_models.NRTL(*terms.values(), **alpha)
     if options.liquid == "wilson":
-        return activity_models.Wilson(a, b, e, f)
+        return activity_models.Wilson(*terms.values())
     if options.liquid == "uniquac":
         missing = [name for name in names if name not in options.uniquac_structure]
         if missing:
@@ -97,7 +99,7 @@ def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None
             )
         r = np.array([options.uniquac_structure[name][0] for name in names])
         q = np.array([options.uniquac_structure[name][1] for name in names])
-        return activity_models.UNIQUAC(a, b, e, f, r=r, q=q)
+        return activity_models.UNIQUAC(*terms.values(), r=r, q=q)
     raise CaseError("unknown liquid model", file=case.source_file, key="thermo.liquid", value=options.liquid)
 
 
@@ -146,12 +148,13 @@ class ThermoPackage:
                     "model": pair.model,
                     "i": pair.first,
                     "j": pair.second,
-                    "a": list(pair.a),
-                    "b_K": list(pair.b),
-                    "e": list(pair.e),
-                    "f_per_K": list(pair.f),
-                    "alpha_c": pair.alpha_c,
-                    "alpha_d_per_K": pair.alpha_d,
+                    "constant_term": list(pair.constant_term),
+                    "term_over_temperature_K": list(pair.term_over_temperature),
+                    "term_in_ln_temperature": list(pair.term_in_ln_temperature),
+                    "term_times_temperature_per_K": list(pair.term_times_temperature),
+                    "alpha": pair.alpha,
+                    "alpha_slope_per_K": pair.alpha_slope,
+                    "alpha_reference_temperature_K": pair.alpha_reference_temperature,
                     "as_written": dict(pair.energy_form),
                     "source": pair.source,
                 }

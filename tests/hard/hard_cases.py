@@ -16,7 +16,7 @@ NRTL = {
     ("acetone", "methanol"): ('dg = ["184.70 cal/mol", "222.64 cal/mol"]', 0.3084, "SVNA"),
     ("methanol", "benzene"): ('dg = ["730.09 cal/mol", "1175.41 cal/mol"]', 0.4743, "SVNA"),
     ("ethanol", "toluene"): ('dg = ["713.57 cal/mol", "1147.86 cal/mol"]', 0.5292, "SVNA"),
-    ("ethanol", "water"): ("a = [-0.178, 1.963]", 0.2974, "Gmehling 2012"),
+    ("ethanol", "water"): ("constant_term = [-0.178, 1.963]", 0.2974, "Gmehling 2012"),
 }
 
 WILSON = {

@@ -8,11 +8,14 @@ parameter data shipped with thermo.
 
 Parameter conventions of thermo (from its docstrings) and how ours map onto them:
 - NRTL: tau_ij = A + B/T + E ln T + F T (+ G/T^2 + H T^2, zero here), alpha_ij = c + d T.
-  Ours is alpha_ij = alpha_c + alpha_d (T - 273.15), so c = alpha_c - 273.15 alpha_d, d = alpha_d.
-- Wilson: Lambda_ij = exp(a + b/T + c ln T + d T (+ e/T^2 + f T^2)); ours a, b, e, f map to a, b, c, d.
+  Ours: tau_ij = constant_term + term_over_temperature/T + term_in_ln_temperature ln T +
+  term_times_temperature T, so those four are A, B, E, F; alpha_ij = alpha + alpha_slope
+  (T - alpha_reference_temperature), so c = alpha - alpha_reference_temperature alpha_slope and
+  d = alpha_slope.
+- Wilson: Lambda_ij = exp(a + b/T + c ln T + d T (+ e/T^2 + f T^2)); our four terms are a, b, c, d.
 - UNIQUAC: tau_ij = exp(a + b/T + c ln T + d T (+ ...)), z = 10; same mapping, r and q as given.
-thermo's gas constant is the exact 8.31446261815324 J/mol/K against our 8.314462618, a relative
-difference of 2e-11 in the excess enthalpy.
+Both use the exact gas constant 8.31446261815324 J/mol/K (CODATA 2018; ours from
+scipy.constants).
 thermo's ``dgammas_dns`` are d gamma_i / d n_j at sum(n) = 1; our ln gamma is homogeneous of
 degree zero in x, so d ln gamma_i / d x_j = (d gamma_i / d n_j) / gamma_i on the simplex.
 """
@@ -31,6 +34,7 @@ from thermo.wilson import Wilson as ThermoWilson  # noqa: E402
 
 CASES = [(seed, c) for seed in range(6) for c in (3, 4, 5)]
 STATES_PER_CASE = 4
+ALPHA_REFERENCE = 320.0  # K, the temperature the random alpha slopes are about (invented)
 
 
 def _off_diagonal(rng: np.random.Generator, c: int, low: float, high: float) -> np.ndarray:
@@ -54,13 +58,14 @@ def _model_pair(kind: str, c: int, rng: np.random.Generator):
     f = _off_diagonal(rng, c, -1e-3, 1e-3)
     if kind == "nrtl":
         a, b = _off_diagonal(rng, c, -2.0, 2.0), _off_diagonal(rng, c, -500.0, 1500.0)
-        alpha_c, alpha_d = _symmetric(rng, c, 0.2, 0.47), _symmetric(rng, c, -1e-3, 1e-3)
-        ours = NRTL(a, b, e, f, alpha_c=alpha_c, alpha_d=alpha_d)
+        alpha, alpha_slope = _symmetric(rng, c, 0.2, 0.47), _symmetric(rng, c, -1e-3, 1e-3)
+        ours = NRTL(a, b, e, f, alpha=alpha, alpha_slope=alpha_slope, alpha_reference_temperature=ALPHA_REFERENCE)
 
         def theirs(temperature, x):
             return ThermoNRTL(
                 T=temperature, xs=list(x), tau_as=a.tolist(), tau_bs=b.tolist(), tau_es=e.tolist(),
-                tau_fs=f.tolist(), alpha_cs=(alpha_c - 273.15 * alpha_d).tolist(), alpha_ds=alpha_d.tolist(),
+                tau_fs=f.tolist(), alpha_cs=(alpha - ALPHA_REFERENCE * alpha_slope).tolist(),
+                alpha_ds=alpha_slope.tolist(),
             )
 
     elif kind == "wilson":

@@ -75,7 +75,7 @@ def _assert_minimum_boiling(thermo: ThermoPackage, x_az: float, T_az: float) -> 
 # used here as temperature-independent tau (a_ij). (Quoted second-hand in the research notes,
 # from the unit test tests/test_nrtl.py of the open-source `thermo` package, which cites that
 # problem; the book itself was not re-read.)
-ETHANOL_WATER_NRTL = "a = [-0.178, 1.963]\nalpha = 0.2974"
+ETHANOL_WATER_NRTL = "constant_term = [-0.178, 1.963]\nalpha = 0.2974"
 ETHANOL_WATER_SOURCE = "Gmehling, Kolbe, Kleiber & Rarey 2012, Problem P05.01 (70 degC, tau constant)"
 # Experimental azeotrope at 1 atm: x = y = 0.894, 78.15 degC; Perry's Chemical Engineers'
 # Handbook, 6th ed. (Perry & Green), p. 13-12, last row of the ethanol-water table.

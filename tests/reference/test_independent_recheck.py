@@ -14,12 +14,13 @@ solve: the properties are recomputed here from outside sources and our own code.
   ``thermo.wilson.Wilson``. Only its model equations are used, with the parameters read from
   the document. None of its data tables are used.
 * Energy-form parameters as written in the case (``dg``, ``dlambda`` in cal/mol) are converted
-  here with the thermochemical calorie (4.184 J) and R = 8.314462618 J/(mol K) (CODATA 2018).
+  here with the thermochemical calorie (4.184 J) and R = 8.31446261815324 J/(mol K) (CODATA 2018, exact).
 
 Conventions of thermo (from its source, ``thermo/nrtl.py`` and ``thermo/wilson.py``):
 ``tau_ij = A + B/T + E ln T + F T`` and ``alpha_ij = c + d T`` for NRTL, and ``Lambda_ij =
-exp(a + b/T + c ln T + d T)`` for Wilson, indexed [i][j]. traystack writes ``p_ij = a + b/T +
-e ln T + f T`` and ``alpha = alpha_c + alpha_d (T - 273.15 K)``.
+exp(a + b/T + c ln T + d T)`` for Wilson, indexed [i][j]. traystack writes ``p_ij =
+constant_term + term_over_temperature/T + term_in_ln_temperature ln T + term_times_temperature T``
+(here a, b, e, f) and ``alpha = alpha + alpha_slope (T - alpha_reference_temperature)``.
 
 Model equations re-checked, for stages numbered from the top:
   component balance  (L_j + U_j) x_j + (V_j + W_j) y_j - L_(j-1) x_(j-1) - V_(j+1) y_(j+1) - F_j z_j = 0
@@ -63,7 +64,7 @@ from thermo.wilson import Wilson as ThermoWilson  # noqa: E402
 
 CASES_DIR = Path(__file__).resolve().parents[2] / "cases"
 
-GAS_CONSTANT = 8.314462618  # J/(mol K), CODATA 2018
+GAS_CONSTANT = 8.31446261815324  # J/(mol K), CODATA 2018: N_A k, exact
 REFERENCE_TEMPERATURE = 298.15  # K, ideal gas = 0
 ENERGY_UNITS = {"J/mol": 1.0, "kJ/mol": 1000.0, "cal/mol": 4.184, "kcal/mol": 4184.0}  # thermochemical calorie
 
@@ -153,12 +154,14 @@ def energy_per_mole(text: str) -> float:
 
 
 def parameter_matrices(document: dict) -> dict[str, np.ndarray]:
-    """a, b (K), e, f (1/K), alpha_c, alpha_d (1/K) as (c, c) matrices, from the document's pair
-    records. An energy form as written is converted here, not taken from traystack's b."""
+    """The four terms a (constant), b (over T, K), e (in ln T), f (times T, 1/K) and alpha,
+    alpha_slope (1/K), alpha_reference (K) as (c, c) matrices, from the document's pair records.
+    An energy form as written is converted here, not taken from traystack's term over
+    temperature."""
     names = document["components"]
     index = {name: k for k, name in enumerate(names)}
     c = len(names)
-    matrices = {key: np.zeros((c, c)) for key in ("a", "b", "e", "f", "alpha_c", "alpha_d")}
+    matrices = {key: np.zeros((c, c)) for key in ("a", "b", "e", "f", "alpha", "alpha_slope", "alpha_reference")}
     model = document["thermo"]["liquid"]
     volumes = document["case"]["thermo"]["wilson_volumes"]
     for pair in document["thermo"]["pairs"]:
@@ -166,7 +169,7 @@ def parameter_matrices(document: dict) -> dict[str, np.ndarray]:
             continue
         i, j = index[pair["i"]], index[pair["j"]]
         written = pair["as_written"]
-        a, b = list(pair["a"]), list(pair["b_K"])
+        a, b = list(pair["constant_term"]), list(pair["term_over_temperature_K"])
         if "dg" in written:  # NRTL: tau_ij = dg_ij / RT
             b = [energy_per_mole(text) / GAS_CONSTANT for text in written["dg"]]
         elif "dlambda" in written:  # Wilson: Lambda_ij = (V_j / V_i) exp(-dlambda_ij / RT)
@@ -174,10 +177,13 @@ def parameter_matrices(document: dict) -> dict[str, np.ndarray]:
             a = [math.log(volumes[pair["j"]] / volumes[pair["i"]]), math.log(volumes[pair["i"]] / volumes[pair["j"]])]
         elif "du" in written:  # UNIQUAC: tau_ij = exp(-du_ij / RT)
             b = [-energy_per_mole(text) / GAS_CONSTANT for text in written["du"]]
-        for key, values in (("a", a), ("b", b), ("e", pair["e"]), ("f", pair["f_per_K"])):
+        terms = (("a", a), ("b", b), ("e", pair["term_in_ln_temperature"]), ("f", pair["term_times_temperature_per_K"]))
+        for key, values in terms:
             matrices[key][i, j], matrices[key][j, i] = values
-        matrices["alpha_c"][i, j] = matrices["alpha_c"][j, i] = pair["alpha_c"]
-        matrices["alpha_d"][i, j] = matrices["alpha_d"][j, i] = pair["alpha_d_per_K"]
+        matrices["alpha"][i, j] = matrices["alpha"][j, i] = pair["alpha"]
+        matrices["alpha_slope"][i, j] = matrices["alpha_slope"][j, i] = pair["alpha_slope_per_K"]
+        reference = pair["alpha_reference_temperature_K"] or 0.0
+        matrices["alpha_reference"][i, j] = matrices["alpha_reference"][j, i] = reference
     return matrices
 
 
@@ -230,8 +236,8 @@ class IndependentProperties:
         if self.model == "nrtl":
             return ThermoNRTL(
                 T=temperature, xs=xs, tau_as=p["a"].tolist(), tau_bs=p["b"].tolist(), tau_es=p["e"].tolist(),
-                tau_fs=p["f"].tolist(), alpha_cs=(p["alpha_c"] - 273.15 * p["alpha_d"]).tolist(),
-                alpha_ds=p["alpha_d"].tolist(),
+                tau_fs=p["f"].tolist(), alpha_cs=(p["alpha"] - p["alpha_reference"] * p["alpha_slope"]).tolist(),
+                alpha_ds=p["alpha_slope"].tolist(),
             )
         if self.model == "wilson":
             return ThermoWilson(
@@ -376,8 +382,8 @@ def test_parameters_used_are_the_parameters_as_written(name):
     index = {n: k for k, n in enumerate(document["components"])}
     for pair in document["thermo"]["pairs"]:
         i, j = index[pair["i"]], index[pair["j"]]
-        np.testing.assert_allclose([ours["b"][i, j], ours["b"][j, i]], pair["b_K"], rtol=1e-12)
-        np.testing.assert_allclose([ours["a"][i, j], ours["a"][j, i]], pair["a"], rtol=1e-12, atol=1e-15)
+        np.testing.assert_allclose([ours["b"][i, j], ours["b"][j, i]], pair["term_over_temperature_K"], rtol=1e-12)
+        np.testing.assert_allclose([ours["a"][i, j], ours["a"][j, i]], pair["constant_term"], rtol=1e-12, atol=1e-15)
 
 
 @pytest.mark.parametrize("name", CASE_NAMES)

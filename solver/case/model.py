@@ -1,0 +1,191 @@
+"""The case as the engine takes it: frozen dataclasses in SI units, built by the case reader
+(:mod:`solver.case.reader`) from a TOML case file. Nothing here reads or checks a file."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import Mapping
+
+from solver.thermo.data import ComponentData
+
+__all__ = [
+    "AUDIT_THRESHOLD_KEYS",
+    "DEFAULT_DISPLAY",
+    "SPEC_KINDS",
+    "TOLERANCE_KEYS",
+    "AuditOptions",
+    "BinaryParameters",
+    "Case",
+    "Column",
+    "Feed",
+    "SideDraw",
+    "Spec",
+    "StageDuty",
+    "ThermoOptions",
+]
+
+#: Spec kinds that use up one of the column's degrees of freedom.
+SPEC_KINDS = (
+    "reflux_ratio",
+    "boilup_ratio",
+    "distillate_rate",
+    "bottoms_rate",
+    "condenser_duty",
+    "reboiler_duty",
+    "mole_fraction",  # written in the file as distillate = {A = 0.99} or bottoms = {B = 0.995}
+    "recovery",
+    "stage_temperature",
+)
+
+
+#: Screen units when [display] does not say otherwise.
+DEFAULT_DISPLAY = {"temperature": "degC", "pressure": "bar", "flow": "kmol/h", "duty": "kW"}
+#: Keys of [check] tolerances.
+TOLERANCE_KEYS = ("duty_rel", "composition_abs", "temperature_abs", "flow_rel")
+#: Keys of [audit] thresholds (their defaults and reasons are in solver.audit). The two stage
+#: thresholds are numbers of stages, the others fractions (or a factor).
+AUDIT_THRESHOLD_KEYS = (
+    "cmo_deviation",
+    "purity_shortfall",
+    "stage_difference",
+    "reflux_difference",
+    "duty_difference",
+    "feed_condition",
+    "feed_q_offset",
+    "tangent_pinch",
+    "pinch_shift",
+    "serious_factor",
+)
+
+
+def _frozen_mapping(mapping: Mapping | None = None) -> Mapping:
+    return MappingProxyType(dict(mapping or {}))
+
+
+@dataclass(frozen=True)
+class BinaryParameters:
+    """Interaction parameters of one pair (i, j) for an activity model, converted on reading to
+    four terms, ``p_ij = constant_term_ij + term_over_temperature_ij / T +
+    term_in_ln_temperature_ij ln T + term_times_temperature_ij T`` (T in K; p is tau for NRTL,
+    ln Lambda for Wilson, ln tau for UNIQUAC). Tuples hold (ij, ji). For NRTL the
+    non-randomness is ``alpha + alpha_slope (T - alpha_reference_temperature)``.
+
+    Energy-form input (``dg``, ``dlambda``, ``du`` in energy per mole) is converted to the term
+    over temperature on reading: ``dg_ij / R`` for NRTL, ``-du_ij / R`` for UNIQUAC,
+    ``-dlambda_ij / R`` for Wilson, whose constant term is then ``ln(V_j / V_i)`` (liquid molar
+    volumes needed).
+    """
+
+    model: str  # "nrtl" | "wilson" | "uniquac"
+    first: str
+    second: str
+    constant_term: tuple[float, float] = (0.0, 0.0)
+    term_over_temperature: tuple[float, float] = (0.0, 0.0)  # K
+    term_in_ln_temperature: tuple[float, float] = (0.0, 0.0)
+    term_times_temperature: tuple[float, float] = (0.0, 0.0)  # 1/K
+    alpha: float = 0.0
+    alpha_slope: float = 0.0  # 1/K
+    alpha_reference_temperature: float | None = None  # K, stated with a slope
+    source: str = ""
+    energy_form: Mapping[str, object] = field(default_factory=_frozen_mapping)  # as written, for the record
+
+
+@dataclass(frozen=True)
+class ThermoOptions:
+    liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac
+    vapor: str = "ideal"
+    enthalpy: str = "rigorous"  # rigorous | cmo
+    pairs: tuple[BinaryParameters, ...] = ()
+    uniquac_structure: Mapping[str, tuple[float, float]] = field(default_factory=_frozen_mapping)  # name -> (r, q)
+    wilson_volumes: Mapping[str, float] = field(default_factory=_frozen_mapping)  # name -> m3/mol, for energy-form Wilson
+
+
+@dataclass(frozen=True)
+class Feed:
+    stage: int
+    flow: float  # mol/s
+    composition: tuple[float, ...]  # mole fractions, in the order of Case.component_names
+    temperature: float | None = None  # K
+    vapor_fraction: float | None = None  # molar, 0 = saturated liquid, 1 = saturated vapor
+    pressure: float | None = None  # Pa; None = the stage pressure
+    name: str = ""
+
+
+@dataclass(frozen=True)
+class SideDraw:
+    stage: int
+    phase: str  # "liquid" | "vapor"
+    flow: float  # mol/s
+    name: str = ""
+
+
+@dataclass(frozen=True)
+class StageDuty:
+    """A side heater (duty > 0) or cooler (duty < 0) on a stage."""
+
+    stage: int
+    duty: float  # W
+
+
+@dataclass(frozen=True)
+class Column:
+    stages: int  # equilibrium stages, condenser and reboiler included
+    condenser: str  # total | partial | none
+    reboiler: str  # partial | none
+    pressures: tuple[float, ...]  # Pa, one per stage, top first
+    efficiencies: tuple[float, ...]  # Murphree vapor efficiency, one per stage
+    side_draws: tuple[SideDraw, ...] = ()
+    stage_duties: tuple[StageDuty, ...] = ()
+    reflux_temperature: float | None = None  # K; subcooled reflux from a total condenser
+    reflux_subcooling: float | None = None  # K below the bubble point
+
+
+@dataclass(frozen=True)
+class Spec:
+    """One specification. ``kind`` is one of :data:`SPEC_KINDS`; ``value`` is SI (mol/s, W,
+    K, or a ratio/fraction). ``component`` and ``product`` ("distillate" | "bottoms") for
+    mole_fraction and recovery; ``stage`` for stage_temperature."""
+
+    kind: str
+    value: float
+    component: str | None = None
+    product: str | None = None
+    stage: int | None = None
+    key: str = ""  # where it came from in the file, for messages: "specs.bottoms.water"
+
+
+@dataclass(frozen=True)
+class AuditOptions:
+    """The optional ``[audit]`` table: product targets for the shortcut (``products``, specs of
+    kind mole_fraction, keyed ``audit.distillate.NAME``), its reflux (``reflux_ratio`` L/D, or
+    ``reflux_factor`` times the minimum reflux ratio; at most one) and flag ``thresholds``
+    (keys :data:`AUDIT_THRESHOLD_KEYS`)."""
+
+    products: tuple[Spec, ...] = ()
+    reflux_ratio: float | None = None
+    reflux_factor: float | None = None
+    thresholds: Mapping[str, float] = field(default_factory=_frozen_mapping)
+
+
+@dataclass(frozen=True)
+class Case:
+    title: str
+    component_names: tuple[str, ...]
+    component_data: Mapping[str, ComponentData]  # only the user-defined ones
+    thermo: ThermoOptions
+    column: Column
+    feeds: tuple[Feed, ...]
+    specs: tuple[Spec, ...]
+    check: Mapping[str, float] = field(default_factory=_frozen_mapping)  # tolerances
+    display: Mapping[str, str] = field(default_factory=_frozen_mapping)  # screen units
+    audit: AuditOptions | None = None  # the optional [audit] table
+    source_file: str = ""
+    raw: Mapping[str, object] = field(default_factory=_frozen_mapping)  # the TOML as read
+    # Added by the parser: notes that are not errors, e.g. a [components.data] entry that
+    # components.names does not list (it is checked, then left out of component_data).
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def component_count(self) -> int:
+        return len(self.component_names)

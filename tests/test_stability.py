@@ -99,7 +99,7 @@ def _nrtl_through_layers(x_water_rich: float, x_organic: float, temperature: flo
     given layers: tau_12, tau_21 solved here from equal activities (computed here)."""
 
     def activities(tau):
-        model = NRTL(np.array([[0.0, tau[0]], [tau[1], 0.0]]), None, alpha_c=alpha)
+        model = NRTL(np.array([[0.0, tau[0]], [tau[1], 0.0]]), None, alpha=alpha)
         x = np.array([[x_water_rich, 1 - x_water_rich], [x_organic, 1 - x_organic]])
         a = x * np.exp(model.ln_gamma(np.full(2, temperature), x))
         return np.log(a[0]) - np.log(a[1])
@@ -107,7 +107,7 @@ def _nrtl_through_layers(x_water_rich: float, x_organic: float, temperature: flo
     tau, info, ok, message = fsolve(activities, [1.0, 3.0], full_output=True)
     assert ok == 1, message
     assert np.abs(activities(tau)).max() < 1e-10
-    return NRTL(np.array([[0.0, tau[0]], [tau[1], 0.0]]), None, alpha_c=alpha)
+    return NRTL(np.array([[0.0, tau[0]], [tau[1], 0.0]]), None, alpha=alpha)
 
 
 def test_nrtl_split_through_the_published_butanol_water_layers():
@@ -128,7 +128,7 @@ def test_nrtl_one_propanol_water_does_not_split():
     # Smith, Van Ness & Abbott, 7th ed., Table 12.5, p. 474 (as quoted in the book's solution
     # manual, stored copy read)
     a, b = nrtl_energy_form(np.array([[0.0, 500.40], [1636.57, 0.0]]) * 4.184)
-    model = NRTL(a, b, alpha_c=0.5081)
+    model = NRTL(a, b, alpha=0.5081)
     results = liquid_stability(model, np.full(GRID.size, 360.0), np.c_[GRID, 1.0 - GRID])
     assert all(r.stable and r.converged for r in results)
 

@@ -1,7 +1,7 @@
 """The handbook component library: pure-component data for compounds by common name,
 synonym, CAS number or molecular formula, every property from a named handbook or paper
 (:mod:`solver.handbook.sources` lists the tables, their order of preference and the tables
-left out), as :class:`~solver.case.ComponentData` in the correlation forms the thermo layer
+left out), as :class:`~solver.thermo.data.ComponentData` in the correlation forms the thermo layer
 evaluates.
 
 ``search``, ``suggest`` and ``find`` read the shipped name index only and answer in

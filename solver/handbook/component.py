@@ -1,4 +1,4 @@
-"""One handbook component: the :class:`~solver.case.ComponentData` (SI) of a compound, each
+"""One handbook component: the :class:`~solver.thermo.data.ComponentData` (SI) of a compound, each
 property from the first table in the order of preference that has it, and the record of
 where each property came from.
 
@@ -17,7 +17,7 @@ from functools import lru_cache
 import numpy as np
 from scipy.optimize import brentq
 
-from solver.case import ComponentData, Correlation
+from solver.thermo.data import ComponentData, Correlation
 from solver.errors import CaseError
 from solver.handbook import tables
 from solver.handbook.formula import molar_mass

@@ -3,7 +3,7 @@ property's source for screens (``traystack components NAME``) and the result fil
 
 from __future__ import annotations
 
-from solver.case import ComponentData
+from solver.thermo.data import ComponentData
 from solver.errors import CaseError
 from solver.handbook.component import HandbookComponent, PropertySource, build_component
 from solver.handbook.names import AmbiguousFormula, find, suggest
@@ -43,7 +43,7 @@ def lookup(name: str, *, key: str | None = None) -> HandbookComponent:
 
 
 def component_data(name: str, *, key: str | None = None) -> ComponentData:
-    """The :class:`~solver.case.ComponentData` (SI) of the handbook component ``name``; see
+    """The :class:`~solver.thermo.data.ComponentData` (SI) of the handbook component ``name``; see
     :func:`lookup`."""
     return lookup(name, key=key).data
 

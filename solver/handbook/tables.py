@@ -10,12 +10,13 @@ method, which would also draw on the tables :data:`solver.handbook.sources.EXCLU
 
 from __future__ import annotations
 
+from scipy.constants import R as GAS_CONSTANT
 import math
 from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Any
 
-from solver.case import Correlation
+from solver.thermo.data import Correlation
 from solver.handbook.sources import PREFERENCE
 
 __all__ = [
@@ -28,8 +29,6 @@ __all__ = [
     "vapor_pressure",
 ]
 
-#: Gas constant, J/(mol K) (CODATA 2018, exact); the tables' cp/R and Rackett's R Tc/Pc.
-GAS_CONSTANT = 8.314462618
 
 
 @dataclass(frozen=True)

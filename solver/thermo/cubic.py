@@ -39,6 +39,7 @@ input (the pure-component fits of :mod:`solver.thermo.pure`), only the departure
 
 from __future__ import annotations
 
+from scipy.constants import R as GAS_CONSTANT
 import threading
 from dataclasses import dataclass, field
 from typing import Callable, Mapping
@@ -65,8 +66,6 @@ __all__ = [
     "peneloux_volume_shift",
 ]
 
-#: Molar gas constant [J/mol/K], CODATA 2018 (exact).
-GAS_CONSTANT = 8.314462618
 
 IdealGas = Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]]
 

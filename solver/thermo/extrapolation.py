@@ -37,12 +37,13 @@ inside the stated range.
 
 from __future__ import annotations
 
+from scipy.constants import R as GAS_CONSTANT, atm
 import math
 import warnings
 
 import numpy as np
 
-from solver.case import Correlation
+from solver.thermo.data import Correlation
 from solver.thermo import correlations
 from solver.thermo.handbook_forms import evaluate, evaluate_log
 
@@ -64,9 +65,7 @@ __all__ = [
 CRITICAL_APPROACH = 0.995
 #: Reference temperature of the ideal-gas enthalpy, K.
 REFERENCE_TEMPERATURE = correlations.REFERENCE_TEMPERATURE
-#: Gas constant, J/(mol K) (CODATA 2018, exact).
-GAS_CONSTANT = 8.314462618
-ATMOSPHERE = 101325.0  # Pa
+ATMOSPHERE = atm  # Pa
 WATSON_EXPONENT_BOUNDS = (0.2, 0.8)
 
 _METHODS = {

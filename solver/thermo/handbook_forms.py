@@ -32,7 +32,7 @@ from typing import Callable
 
 import numpy as np
 
-from solver.case import Correlation
+from solver.thermo.data import Correlation
 from solver.thermo import correlations
 
 __all__ = ["FORMS", "FORM_FUNCTIONS", "evaluate", "evaluate_log", "trc_gas", "wagner", "wagner_log"]

@@ -40,7 +40,9 @@ import numpy as np
 
 from solver.errors import CaseError, ThermoError
 from solver.fluids import loose_key
-from solver.thermo.activity import GAS_CONSTANT, ActivityResult, _states
+from scipy.constants import R as GAS_CONSTANT
+
+from solver.thermo.activity_base import ActivityResult, check_states
 from solver.thermo.unifac_tables import builtin_groups, builtin_source, load_tables
 
 __all__ = ["UNIFAC", "DortmundUNIFAC"]
@@ -188,7 +190,7 @@ class UNIFAC:
     def evaluate(self, temperature: np.ndarray, x: np.ndarray, derivatives: bool = True) -> ActivityResult:
         """ln gamma and derivatives for temperature (n,) [K] and x (n, c); a single state may be
         a scalar temperature and x of shape (c,)."""
-        temperature, x = _states(self.name, self.component_count, temperature, x)
+        temperature, x = check_states(self.name, self.component_count, temperature, x)
         r, q, weights_v = self.r, self.q, self._volume_weights
         area_weights = self._area_weights  # (c, g)
 

@@ -14,7 +14,6 @@ from __future__ import annotations
 import dataclasses
 from dataclasses import dataclass, field
 
-import numpy as np
 
 from .initial import initial_estimate
 from .mesh import MeshSystem

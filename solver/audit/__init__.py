@@ -14,14 +14,14 @@ method misleads.
 * :mod:`.full` -- the full audit of a case (``traystack audit``).
 """
 
-from .basis import AuditBasis, ShortcutReport, audit_basis, shortcut_case, shortcut_designs
+from .basis import audit_basis, shortcut_case, shortcut_designs
 from .cmo import CMOAudit, cmo_audit, composition_steps, effective_q, pinch_stage
 from .flags import Flag
-from .full import AuditReport, audit_case, shortcut_reflux_at
-from .record import shortcut_record
+from .full import audit_case, shortcut_reflux_at
+from .findings import AuditBasis, AuditReport, ShortcutReport, SolutionAudit, shortcut_record
 from .search import _next_count  # noqa: F401 -- the step rule of the search, which tests check on its own
 from .search import CountSearch, StageSearch, search_stage_count, stage_search
-from .solution import SolutionAudit, audit_solution
+from .solution import audit_solution
 from .targets import describe_spec, impurity_ratio
 from .thresholds import DEFAULT_THRESHOLDS, SEVERITIES, THRESHOLD_REASONS, resolve_thresholds
 from .variants import MAX_SOLVES, MIN_SOLVES, RigorousColumns, RigorousRun, column_variant, warm_start

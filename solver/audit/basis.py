@@ -11,8 +11,7 @@ Fenske-Underwood-Gilliland-Kirkbride for more components (:mod:`solver.shortcut`
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass
-from typing import Any, Callable, Mapping
+from typing import Callable
 
 import numpy as np
 
@@ -20,11 +19,11 @@ from ..case import Case, Spec
 from ..engine import simulate
 from ..errors import SpecError, ThermoError
 from ..results import Result
-from ..shortcut import BinaryDesign, MulticomponentDesign, design_binary, design_multicomponent, design_ponchon_savarit
+from ..shortcut import design_binary, design_multicomponent, design_ponchon_savarit
 from ..shortcut.mccabe_thiele import binary_problem, check_simple_column
 from ..thermo.flash import bubble_temperature
 from ..thermo.package import ThermoPackage
-from .record import shortcut_record
+from .findings import AuditBasis, ShortcutReport
 from .targets import describe_spec
 
 __all__ = ["AuditBasis", "ShortcutReport", "audit_basis", "light_index", "shortcut_case", "shortcut_designs"]
@@ -32,54 +31,6 @@ __all__ = ["AuditBasis", "ShortcutReport", "audit_basis", "light_index", "shortc
 #: Spec kinds that fix the split between the products (the shortcut's targets).
 SPLIT_KINDS = ("mole_fraction", "recovery", "distillate_rate", "bottoms_rate")
 _FROM_SOLUTION = "rigorous solution of the case as specified"
-
-
-@dataclass(frozen=True)
-class AuditBasis:
-    """What the shortcut designs for: the product ``targets`` (specs of kind mole_fraction,
-    recovery or product rate), the reflux (``reflux_ratio`` or ``reflux_factor`` times the
-    minimum), where each came from (``sources``: quantity -> "audit table" | "case specs" |
-    "rigorous solution of the case as specified"), and the rigorous solution of the case as
-    specified when one was needed (``case_result``)."""
-
-    method: str  # "binary" | "multicomponent"
-    targets: tuple[Spec, ...]
-    reflux_ratio: float | None
-    reflux_factor: float | None
-    sources: Mapping[str, str]
-    light: str | None = None  # binary: the light component
-    case_result: Result | None = None
-    notes: tuple[str, ...] = ()
-
-    @property
-    def described_targets(self) -> tuple[str, ...]:
-        """The targets as lines of text (:func:`~.targets.describe_spec`)."""
-        return tuple(describe_spec(t) for t in self.targets)
-
-    def design_case(self, case: Case) -> Case:
-        """The case with its specs replaced by the targets (and the reflux ratio, if fixed)."""
-        specs = self.targets + ((Spec("reflux_ratio", self.reflux_ratio, key="reflux_ratio"),) if self.reflux_ratio else ())
-        return dataclasses.replace(case, specs=specs)
-
-
-@dataclass(frozen=True, eq=False)
-class ShortcutReport:
-    """The shortcut designs of a case: ``design`` (McCabe-Thiele or FUGK), for a binary also
-    ``enthalpy_design`` (Ponchon-Savarit, None if it failed, with ``enthalpy_message``), and the
-    basis they were designed for. ``as_json()`` is result.json's "shortcut"."""
-
-    case: Case
-    basis: AuditBasis
-    design: BinaryDesign | MulticomponentDesign
-    enthalpy_design: BinaryDesign | None = None
-    enthalpy_message: str = ""
-
-    @property
-    def is_binary(self) -> bool:
-        return isinstance(self.design, BinaryDesign)
-
-    def as_json(self) -> dict[str, Any]:
-        return shortcut_record(self)
 
 
 class _SolvedOnce:

@@ -21,8 +21,7 @@ from __future__ import annotations
 import math
 import time
 from dataclasses import dataclass
-from functools import cached_property
-from typing import Any, ClassVar, Mapping, Sequence
+from typing import Mapping, Sequence
 
 import numpy as np
 from scipy.optimize import brentq
@@ -34,52 +33,18 @@ from ..shortcut import BinaryDesign, MulticomponentDesign
 from ..shortcut.fug import gilliland_stages
 from ..shortcut.mccabe_thiele import mccabe_thiele
 from ..thermo.package import ThermoPackage
-from .basis import ShortcutReport, audit_basis, shortcut_designs
+from .basis import audit_basis, shortcut_designs
 from .cmo import CMOAudit, cmo_audit
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
                     pinch_moved_in_column, purity_shortfall, reflux_difference, search_incomplete, solve_failed,
                     stage_difference, tangent_pinch)
-from .record import full_audit_record
+from .findings import AuditReport, ShortcutReport
 from .search import StageSearch, stage_search
 from .targets import describe_spec
 from .thresholds import resolve_thresholds
 from .variants import MAX_SOLVES, MIN_SOLVES, RigorousColumns, RigorousRun, run_summary, try_solve
 
 __all__ = ["AuditReport", "audit_case", "shortcut_reflux_at"]
-
-
-@dataclass(frozen=True, eq=False)
-class AuditReport:
-    """Everything :func:`audit_case` found: the ``shortcut`` designs, the rigorous runs (at
-    the shortcut's design, the reflux needed at its stage count, the stage search at its
-    reflux, the case as specified when it was solved), the CMO audit of the run at the design,
-    the flags, the solves used and the time taken. ``solution`` is the rigorous solution of the
-    shortcut's column; ``result`` is that solution with ``extra["shortcut"]`` and
-    ``extra["audit"]`` (this report) attached. ``as_json()`` is result.json's "audit"."""
-
-    scope: ClassVar[str] = "full"
-    applicable: ClassVar[bool] = True
-
-    shortcut: ShortcutReport
-    thresholds: Mapping[str, float]
-    shortcut_reflux_at_stages: float | None
-    at_design: RigorousRun
-    reflux_needed: RigorousRun | None
-    stages_needed: StageSearch | None
-    cmo: CMOAudit | None
-    flags: tuple[Flag, ...]
-    solves: int
-    seconds: float
-    solution: Result
-    case_run: RigorousRun | None = None
-    notes: tuple[str, ...] = ()
-
-    @cached_property
-    def result(self) -> Result:
-        return self.solution.with_extra(shortcut=self.shortcut, audit=self)
-
-    def as_json(self) -> dict[str, Any]:
-        return full_audit_record(self)
 
 
 @dataclass(frozen=True)

@@ -1,12 +1,13 @@
-"""The audit as plain data: what result.json holds under "shortcut" and "audit" (and
-shortcut.json under "shortcut"), built from the audit's typed findings only when a file is
-written. SI units; NaN and infinity become null in the file (:func:`solver.results.json_safe`).
+"""The pieces of the audit as plain data: flags, rigorous runs, the stage search, the CMO audit
+and the shortcut designs, as result.json holds them under "shortcut" and "audit" (and
+shortcut.json under "shortcut"); :mod:`.findings` puts them together when a file is written.
+SI units; NaN and infinity become null in the file (:func:`solver.results.json_safe`).
 """
 
 from __future__ import annotations
 
 import dataclasses
-from typing import TYPE_CHECKING, Any, Sequence
+from typing import Any, Sequence
 
 import numpy as np
 
@@ -15,21 +16,15 @@ from ..shortcut import BinaryDesign, MulticomponentDesign
 from .cmo import CMOAudit
 from .flags import Flag
 from .search import StageSearch
-from .thresholds import THRESHOLD_REASONS
 from .variants import RigorousRun
 
-if TYPE_CHECKING:  # the three kinds of record below; their modules import this one
-    from .basis import ShortcutReport
-    from .full import AuditReport
-    from .solution import SolutionAudit
-
 __all__ = [
+    "binary_design_record",
+    "cmo_deviation_record",
+    "multicomponent_design_record",
     "cmo_record",
     "flag_record",
-    "full_audit_record",
     "run_record",
-    "shortcut_record",
-    "solution_audit_record",
     "stage_search_record",
 ]
 
@@ -104,7 +99,7 @@ def cmo_record(cmo: CMOAudit) -> dict[str, Any]:
     }
 
 
-def _cmo_deviation_record(cmo: CMOAudit) -> list[dict[str, Any]]:
+def cmo_deviation_record(cmo: CMOAudit) -> list[dict[str, Any]]:
     """The relative deviation of the liquid and the vapor from CMO, stage by stage."""
     return [
         {"stage": j + 1, "liquid": json_safe(cmo.liquid_deviation[j]), "vapor": json_safe(cmo.vapor_deviation[j])}
@@ -112,63 +107,7 @@ def _cmo_deviation_record(cmo: CMOAudit) -> list[dict[str, Any]]:
     ]
 
 
-def solution_audit_record(audit: SolutionAudit) -> dict[str, Any]:
-    """result.json "audit" of :func:`~.solution.audit_solution` (``scope`` "solution")."""
-    if not audit.applicable:
-        return {"scope": "solution", "applicable": False, "reason": audit.reason, "flags": []}
-    if audit.minimum_reflux_error:
-        minimum_reflux: dict[str, Any] | None = {"error": audit.minimum_reflux_error}
-    elif audit.minimum_reflux is not None:
-        mccabe_thiele, ponchon_savarit = audit.minimum_reflux
-        minimum_reflux = {"mccabe_thiele": dataclasses.asdict(mccabe_thiele),
-                          "ponchon_savarit": dataclasses.asdict(ponchon_savarit)}
-    else:
-        minimum_reflux = None
-    condenser, reboiler = audit.duty_estimates
-    return {
-        "scope": "solution",
-        "applicable": True,
-        "thresholds": dict(audit.thresholds),
-        "cmo": cmo_record(audit.cmo),
-        "cmo_deviation": _cmo_deviation_record(audit.cmo),
-        "cmo_duty_estimates": {"condenser": condenser, "reboiler": reboiler},
-        "minimum_reflux": minimum_reflux,
-        "flags": [flag_record(flag) for flag in audit.flags],
-    }
-
-
-def full_audit_record(report: AuditReport) -> dict[str, Any]:
-    """result.json "audit" of :func:`~.full.audit_case` (``scope`` "full")."""
-    names = list(report.shortcut.case.component_names)
-    basis, cmo, case_run = report.shortcut.basis, report.cmo, report.case_run
-    needed, search = report.reflux_needed, report.stages_needed
-    return {
-        "scope": "full",
-        "applicable": True,
-        "basis": {
-            "method": basis.method,
-            "targets": list(basis.described_targets),
-            "reflux_ratio": report.shortcut.design.reflux_ratio,
-            "reflux_factor": basis.reflux_factor,
-            "sources": dict(basis.sources),
-        },
-        "thresholds": dict(report.thresholds),
-        "threshold_reasons": dict(THRESHOLD_REASONS),
-        "shortcut_reflux_at_shortcut_stages": report.shortcut_reflux_at_stages,
-        "rigorous_at_shortcut_design": run_record(report.at_design, names),
-        "reflux_at_shortcut_stages": None if needed is None else run_record(needed, names),
-        "stages_at_shortcut_reflux": None if search is None else stage_search_record(search, names),
-        "case_as_specified": None if case_run is None else run_record(case_run, names),
-        "cmo": None if cmo is None else cmo_record(cmo),
-        "cmo_deviation": None if cmo is None else _cmo_deviation_record(cmo),
-        "flags": [flag_record(flag) for flag in report.flags],
-        "rigorous_solves": report.solves,
-        "seconds": report.seconds,
-        "notes": list(report.notes),
-    }
-
-
-def _binary_record(design: BinaryDesign) -> dict[str, Any]:
+def binary_design_record(design: BinaryDesign) -> dict[str, Any]:
     pinch = design.minimum_reflux
     record = {
         "method": design.method,
@@ -221,7 +160,7 @@ def _binary_record(design: BinaryDesign) -> dict[str, Any]:
     return record
 
 
-def _multicomponent_record(design: MulticomponentDesign) -> dict[str, Any]:
+def multicomponent_design_record(design: MulticomponentDesign) -> dict[str, Any]:
     names = design.components
     per = lambda values: dict(zip(names, np.asarray(values, dtype=float).tolist()))  # noqa: E731
     return {
@@ -262,22 +201,3 @@ def _multicomponent_record(design: MulticomponentDesign) -> dict[str, Any]:
         "reboiler_duty": design.reboiler_duty,
         "notes": list(design.notes),
     }
-
-
-def shortcut_record(report: ShortcutReport) -> dict[str, Any]:
-    """The shortcut designs and their basis as plain data (SI): result.json and shortcut.json
-    "shortcut"."""
-    design = report.design
-    record = _binary_record(design) if isinstance(design, BinaryDesign) else _multicomponent_record(design)
-    record["basis"] = {
-        "targets": list(report.basis.described_targets),
-        "reflux_ratio": report.basis.reflux_ratio,
-        "reflux_factor": report.basis.reflux_factor,
-        "sources": dict(report.basis.sources),
-        "notes": list(report.basis.notes),
-    }
-    if report.is_binary:
-        record["ponchon_savarit"] = None if report.enthalpy_design is None else _binary_record(report.enthalpy_design)
-        if report.enthalpy_message:
-            record["ponchon_savarit_error"] = report.enthalpy_message
-    return record

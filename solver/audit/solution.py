@@ -7,8 +7,7 @@ its products."""
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass, field
-from typing import Any, ClassVar, Mapping
+from typing import Mapping
 
 import numpy as np
 
@@ -20,36 +19,13 @@ from ..shortcut.mccabe_thiele import binary_problem, check_simple_column, minimu
 from ..shortcut.ponchon_savarit import enthalpy_minimum_reflux
 from ..thermo.package import ThermoPackage
 from .basis import light_index
-from .cmo import CMOAudit, cmo_audit, cmo_duty_estimates
+from .cmo import cmo_audit, cmo_duty_estimates
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
                     tangent_pinch)
-from .record import solution_audit_record
+from .findings import SolutionAudit
 from .thresholds import resolve_thresholds
 
 __all__ = ["SolutionAudit", "audit_solution"]
-
-
-@dataclass(frozen=True, eq=False)
-class SolutionAudit:
-    """What :func:`audit_solution` found. ``applicable`` False (with the ``reason``) for a case
-    the shortcut does not treat or a solution that did not converge; otherwise the ``cmo``
-    audit, the CMO ``duty_estimates`` (condenser, reboiler; W), for a binary the
-    ``minimum_reflux`` pinches (McCabe-Thiele, Ponchon-Savarit) or the ``minimum_reflux_error``
-    that prevented them, and the ``flags``. ``as_json()`` is result.json's "audit"."""
-
-    scope: ClassVar[str] = "solution"
-
-    applicable: bool
-    reason: str = ""
-    thresholds: Mapping[str, float] = field(default_factory=dict)
-    cmo: CMOAudit | None = None
-    duty_estimates: tuple[float, float] | None = None
-    minimum_reflux: tuple[MinimumReflux, MinimumReflux] | None = None
-    minimum_reflux_error: str = ""
-    flags: tuple[Flag, ...] = ()
-
-    def as_json(self) -> dict[str, Any]:
-        return solution_audit_record(self)
 
 
 def audit_solution(

@@ -38,7 +38,7 @@ from typing import Mapping, Sequence
 
 import numpy as np
 
-from solver.errors import CaseError, ThermoError
+from solver.errors import CaseError
 from solver.fluids import loose_key
 from scipy.constants import R as GAS_CONSTANT
 

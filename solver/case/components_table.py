@@ -23,6 +23,9 @@ from solver.case.fields import (
     read_table,
     read_text,
 )
+from scipy.constants import R as GAS_CONSTANT
+
+from solver.thermo.handbook_forms import WAGNER_DEFAULT_EXPONENTS
 from solver.thermo.data import FORMS, PROPERTY_FORMS, WATSON_EXPONENT, ComponentData, Correlation
 from solver.units import UnitParseError, temperature_scale, unit_factor
 
@@ -39,7 +42,8 @@ _PROPERTY_KINDS = {
 #: Keys of a correlation table that say in which units its coefficients are, per form
 #: (forms not listed take ``units = "VALUE_UNIT, TEMPERATURE_UNIT"``; watson and constant
 #: write their values as quantities with units).
-_UNIT_KEYS = {"antoine": ("base", "pressure_unit", "temperature_unit"), "watson": (), "constant": ()}
+_UNIT_KEYS = {"antoine": ("base", "pressure_unit", "temperature_unit"), "watson": (), "constant": (), "wagner": (),
+              "trc_gas": ()}
 #: The polynomial's coefficients are written as one list.
 _POLYNOMIAL_KEY = "coefficients"
 #: The heaviest molar mass taken for a distillable component, kg/mol.
@@ -264,7 +268,25 @@ def _constant(table: Mapping, form: str, kind: str, critical_temperature: float,
     return _Coefficients({"value": read_quantity(table["value"], kind, at.child("value"), above=0.0)})
 
 
+def _wagner(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
+    """Wagner: A to D are numbers, the equation's own Tc and Pc quantities (K and Pa when bare),
+    the exponents of the third and fourth terms 2.5 and 5 unless given."""
+    coefficients = _letters(table, "ABCD", at)
+    coefficients["Tc"] = read_quantity(table["Tc"], "temperature", at.child("Tc"), above=0.0)
+    coefficients["Pc"] = read_quantity(table["Pc"], "pressure", at.child("Pc"), above=0.0)
+    for key, default in zip(("exponent_C", "exponent_D"), WAGNER_DEFAULT_EXPONENTS):
+        coefficients[key] = read_real(table[key], at.child(key)) if key in table else default
+    return _Coefficients(coefficients)
+
+
+def _trc_gas(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
+    """TRC ideal-gas heat capacity: a0 to a7 give cp/R (T in K)."""
+    return _Coefficients({f"a{k}": read_real(table[f"a{k}"], at.child(f"a{k}")) for k in range(8)}, GAS_CONSTANT)
+
+
 _FORM_READERS: dict[str, Callable[..., _Coefficients]] = {
+    "wagner": _wagner,
+    "trc_gas": _trc_gas,
     "antoine": _antoine,
     "dippr": _dippr,
     "dippr105": _dippr105,

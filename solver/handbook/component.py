@@ -22,8 +22,7 @@ from solver.errors import CaseError
 from solver.handbook import tables
 from solver.handbook.formula import molar_mass
 from solver.handbook.sources import TABLES
-from solver.thermo.extrapolation import acentric_factor
-from solver.thermo.handbook_forms import evaluate_log
+from solver.thermo.extrapolation import acentric_factor, evaluate_log
 
 __all__ = [
     "BOILING_POINT_TOLERANCE",

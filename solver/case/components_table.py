@@ -1,6 +1,11 @@
 """The ``[components]`` table: the component names, and the data of components the user
 defines under ``[components.data.NAME]`` with their correlations, checked against the
-correlation forms of :mod:`solver.thermo.data` and built into its :class:`ComponentData`."""
+correlation forms of :mod:`solver.thermo.data` and built into its :class:`ComponentData`.
+
+A listed name not defined under ``[components.data]`` is a CoolProp fluid when CoolProp has it
+(its reference equation of state); otherwise, or when ``from_handbook`` lists it, the
+compound of the handbook library (:mod:`solver.handbook`) of that name, synonym, CAS number or
+formula. An unknown name gets the closest names of both."""
 
 from __future__ import annotations
 
@@ -54,7 +59,7 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
     """(names in file order, data of the user-defined components that names lists, warnings
     about defined components that it does not list)."""
     table = read_table(value, at)
-    check_keys(table, at, ("names", "data"), required=("names",))
+    check_keys(table, at, ("names", "data", "from_handbook"), required=("names",))
     names_at = at.child("names")
     written = read_list(table["names"], names_at, min_length=1, max_length=200)
     names: list[str] = []
@@ -82,7 +87,53 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
                 f"{entry_at.file}: {entry_at.key}: {written_name!r} is defined but not listed in components.names;"
                 " it was checked and is not used"
             )
+    chosen = _read_from_handbook(table.get("from_handbook", []), names, component_data, at.child("from_handbook"))
+    for index, name in enumerate(names):
+        if name not in component_data:
+            data = _library_component(name, name in chosen, names_at.item(index))
+            if data is not None:
+                component_data[name] = data
     return tuple(names), component_data, warnings
+
+
+def _read_from_handbook(value: Any, names: list[str], defined: Mapping[str, ComponentData], at: At) -> set[str]:
+    """``from_handbook = [...]``: listed components to take from the handbook library even
+    when CoolProp has them."""
+    chosen: set[str] = set()
+    for index, item in enumerate(read_list(value, at, max_length=200)):
+        name = read_component_name(item, at.item(index))
+        if name not in names:
+            at.item(index).fail("not one of components.names", item, "a name listed in components.names")
+        if name in defined:
+            at.item(index).fail("defined under [components.data]; a component has one source", item)
+        chosen.add(name)
+    return chosen
+
+
+def _library_component(name: str, handbook: bool, at: At) -> ComponentData | None:
+    """None for a CoolProp fluid (unless ``handbook``); else the handbook compound ``name``,
+    every error naming the file and key."""
+    from solver.components import closest_names, usable_coolprop_name
+    from solver.errors import CaseError
+    from solver.handbook import component_data, find
+    from solver.handbook.names import AmbiguousFormula
+
+    if not handbook and usable_coolprop_name(name) is not None:
+        return None
+    try:
+        found = find(name)
+    except AmbiguousFormula as exc:
+        at.fail(str(exc), name)
+    if found is None:
+        close = closest_names(name)
+        hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
+        where = "in the handbook library" if handbook else "a CoolProp fluid or in the handbook library"
+        at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", name,
+                "a name, synonym, CAS number or formula (list them with `traystack components PATTERN`)")
+    try:
+        return component_data(name, key=at.key)
+    except CaseError as exc:
+        raise CaseError(exc.problem, file=at.file, key=at.key, value=name, expected=exc.expected) from None
 
 
 _COMPONENT_FIELDS = {

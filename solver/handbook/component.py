@@ -164,6 +164,7 @@ def build_component(cas: str, name: str, formula: str) -> HandbookComponent:
         liquid_molar_volume=correlations["liquid molar volume"][1],
         normal_boiling_point=Tb,
         source="; ".join(f"{s.prop}: {s.title}" for s in sources),
+        origin="handbook",
     )
     omega = acentric_factor(pressure, Tc, Pc, Tb)
     return HandbookComponent(cas, name, formula, data, omega, tuple(sources), tuple(notes))

@@ -10,6 +10,7 @@ formula. An unknown name gets the closest names of both."""
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NamedTuple
 
@@ -115,7 +116,7 @@ def _library_component(name: str, handbook: bool, at: At) -> ComponentData | Non
     every error naming the file and key."""
     from solver.components import closest_names, usable_coolprop_name
     from solver.errors import CaseError
-    from solver.handbook import component_data, find
+    from solver.handbook import describe, find, lookup
     from solver.handbook.names import AmbiguousFormula
 
     if not handbook and usable_coolprop_name(name) is not None:
@@ -131,9 +132,10 @@ def _library_component(name: str, handbook: bool, at: At) -> ComponentData | Non
         at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", name,
                 "a name, synonym, CAS number or formula (list them with `traystack components PATTERN`)")
     try:
-        return component_data(name, key=at.key)
+        component = lookup(name, key=at.key)
     except CaseError as exc:
         raise CaseError(exc.problem, file=at.file, key=at.key, value=name, expected=exc.expected) from None
+    return replace(component.data, provenance=describe(component))
 
 
 _COMPONENT_FIELDS = {
@@ -280,6 +282,8 @@ def _antoine(table: Mapping, form: str, kind: str, critical_temperature: float, 
 def _dippr(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
     """DIPPR 101, 106 and 107 (coefficients A to E, those not given 0)."""
     coefficients = _letters(table, "ABCDE", at, default=0.0)
+    if form == "dippr106" and "Tc" in table:
+        coefficients["Tc"] = read_quantity(table["Tc"], "temperature", at.child("Tc"), above=0.0)
     units = _read_units(table.get("units"), kind, at.child("units"), with_temperature=form != "dippr106")
     if form == "dippr107":
         if coefficients["C"] == 0.0:

@@ -47,6 +47,7 @@ def cautions(result: Result) -> list[str]:
             "constant molar overflow by construction; the duties are estimates on that basis."
         )
     found.extend(result.case_warnings)
+    found.extend(f"Beyond a handbook correlation's range: {note}." for note in (result.thermo or {}).get("range_notes", []))
     audit = result.extra.get("audit")
     for flag in audit.flags if audit is not None else ():
         found.append(f"[{flag.severity}] {flag.code}: {flag.message}".strip())

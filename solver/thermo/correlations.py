@@ -24,6 +24,8 @@ coefficients were fitted in. The forms and their published sources:
     ``exponent``); Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
 ``dippr106``
     ``Y = A (1 - Tr)^(B + C Tr + D Tr^2 + E Tr^3)`` with ``Tr = T/Tc``; DIPPR 801 equation 106.
+    ``Tc`` is the correlation's own coefficient (K) when it has one (Perry's Table 2-150
+    gives it), else the component's critical temperature.
 ``dippr105``
     molar density ``rho = A / B^(1 + (1 - T_u/C)^D)``; DIPPR 801 equation 105 (a Rackett-type
     form). The liquid molar volume is ``1/rho`` (see :func:`liquid_molar_volume`).
@@ -395,7 +397,7 @@ def _watson(corr, T, critical_temperature, label):
 
 def _dippr106(corr, T, critical_temperature, label):
     c = corr.coefficients
-    Tc = _critical(corr, critical_temperature, label)
+    Tc = float(c["Tc"]) if "Tc" in c else _critical(corr, critical_temperature, label)
     A, B, C, D, E = c["A"], c["B"], c.get("C", 0.0), c.get("D", 0.0), c.get("E", 0.0)
     Tr = T / Tc
     tau = np.maximum(1.0 - Tr, 0.0)

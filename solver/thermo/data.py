@@ -9,7 +9,7 @@ evaluates them. It imports nothing of ours.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Mapping
 
 __all__ = [
@@ -29,7 +29,7 @@ FORMS: Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "polynomial": ((), ()),
     "dippr107": (("A", "B", "C"), ("D", "E")),
     "watson": (("value", "at"), ("exponent",)),
-    "dippr106": (("A", "B"), ("C", "D", "E")),
+    "dippr106": (("A", "B"), ("C", "D", "E", "Tc")),
     "dippr105": (("A", "B", "C", "D"), ()),
     "constant": (("value",), ()),
     "wagner": (("A", "B", "C", "D", "Tc", "Pc"), ("exponent_C", "exponent_D")),
@@ -90,3 +90,5 @@ class ComponentData:
     normal_boiling_point: float | None = None  # K
     source: str = ""
     origin: str = "user"  # "user" ([components.data]) or "handbook" (solver.handbook library)
+    #: for handbook components, the record of every property's table, form and range
+    provenance: dict | None = field(default=None, compare=False, repr=False)

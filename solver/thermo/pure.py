@@ -227,6 +227,8 @@ class PureComponents:
                 entry["fit_tolerance"] = FIT_TOLERANCE
             else:
                 entry["correlations"] = users[index].describe()
+                if "handbook" in entry["correlations"]:
+                    entry["handbook"] = entry["correlations"].pop("handbook")
             described.append(entry)
         return described
 

@@ -30,7 +30,7 @@ from solver.errors import CaseError
 from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter, loose_key, name_index
 from solver.thermo.data import ComponentData
 
-__all__ = ["ComponentInfo", "closest_names", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]
+__all__ = ["ComponentInfo", "coolprop_rows", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]
 
 
 @dataclass(frozen=True)
@@ -60,7 +60,9 @@ def component_info(name: str, user_data: Mapping[str, ComponentData] | None = No
         return _user_info(name, data)
     fluid = coolprop_name(name)
     if fluid is None:
-        close = closest_names(name, user_data or {})
+        from solver.catalog import close_names
+
+        close = close_names(name, user_data or {})
         hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
         raise CaseError(
             f"unknown component {name.strip()!r}" + hint,
@@ -106,32 +108,15 @@ def usable_coolprop_name(name: str) -> str | None:
     return fluid if fluid is not None and _unusable_reason(fluid) is None else None
 
 
-def closest_names(name: str, extra: Mapping | tuple = (), count: int = 3) -> list[str]:
-    """Up to ``count`` names close to ``name`` (difflib's ratio, best first) among the usable
-    CoolProp fluids and their aliases, the handbook library's compounds and their synonyms, and
-    the names in ``extra`` (user-defined components); each answer is the canonical name."""
-    from solver.handbook.names import entries
-
-    exact, _ = name_index()
-    candidates: dict[str, str] = {key.lower(): key.lower() for key in extra}
-    for key, fluid in exact.items():
-        if _unusable_reason(fluid) is None:
-            candidates.setdefault(key, fluid.lower())
-    for entry in entries():
-        if not entry.refused:
-            for key in (entry.name, *entry.synonyms):
-                candidates.setdefault(key.lower(), entry.name)
-    key = name.strip().lower()
-    matches = difflib.get_close_matches(key, candidates, n=4 * count, cutoff=0.6)
-    if not matches:
-        loose = {loose_key(k): v for k, v in candidates.items()}
-        candidates = loose
-        matches = difflib.get_close_matches(loose_key(key), loose, n=4 * count, cutoff=0.6)
-    names: list[str] = []
-    for match in matches:
-        if candidates[match] not in names:
-            names.append(candidates[match])
-    return names[:count]
+def coolprop_rows() -> tuple[tuple, ...]:
+    """The usable CoolProp fluids as rows (name, CoolProp name, aliases, molar mass, normal
+    boiling point, critical temperature, critical pressure), SI, sorted by name: the content of
+    the shipped index :mod:`solver._coolprop_index`."""
+    return tuple(
+        (info.name, info.coolprop_name, fluid_aliases(info.coolprop_name), info.molar_mass,
+         info.normal_boiling_point, info.critical_temperature, info.critical_pressure)
+        for info in _all_coolprop_infos()
+    )
 
 
 def coolprop_source(fluid: str) -> str:

@@ -114,7 +114,8 @@ def _read_from_handbook(value: Any, names: list[str], defined: Mapping[str, Comp
 def _library_component(name: str, handbook: bool, at: At) -> ComponentData | None:
     """None for a CoolProp fluid (unless ``handbook``); else the handbook compound ``name``,
     every error naming the file and key."""
-    from solver.components import closest_names, usable_coolprop_name
+    from solver.catalog import close_names
+    from solver.components import usable_coolprop_name
     from solver.errors import CaseError
     from solver.handbook import describe, find, lookup
     from solver.handbook.names import AmbiguousFormula
@@ -126,7 +127,7 @@ def _library_component(name: str, handbook: bool, at: At) -> ComponentData | Non
     except AmbiguousFormula as exc:
         at.fail(str(exc), name)
     if found is None:
-        close = closest_names(name)
+        close = close_names(name)
         hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
         where = "in the handbook library" if handbook else "a CoolProp fluid or in the handbook library"
         at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", name,

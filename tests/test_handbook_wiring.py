@@ -89,6 +89,12 @@ def test_an_unknown_name_names_file_key_value_and_the_closest_names_of_both_cata
     assert info.value.key == "components.names[1]"
 
 
+def test_a_coolprop_fluid_a_column_cannot_use_is_refused_with_the_reason_and_the_file():
+    with pytest.raises(CaseError, match="pseudo-pure mixture") as info:
+        components({"names": ["R404A", "water"]})
+    assert (info.value.file, info.value.key, info.value.value) == ("plant.toml", "components.names[0]", "R404A")
+
+
 def test_a_compound_the_boiling_point_check_refuses_is_refused_with_the_numbers_and_the_file():
     """3-heptanone is in the index as refused: no vapor-pressure table reproduces its CRC normal
     boiling point within 0.5 K; the case reader re-raises the library's numbers with the file."""

@@ -91,7 +91,7 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
     chosen = _read_from_handbook(table.get("from_handbook", []), names, component_data, at.child("from_handbook"))
     for index, name in enumerate(names):
         if name not in component_data:
-            data = _library_component(name, name in chosen, names_at.item(index))
+            data = _library_component(name, name in chosen, names_at.item(index), written[index])
             if data is not None:
                 component_data[name] = data
     return tuple(names), component_data, warnings
@@ -111,11 +111,12 @@ def _read_from_handbook(value: Any, names: list[str], defined: Mapping[str, Comp
     return chosen
 
 
-def _library_component(name: str, handbook: bool, at: At) -> ComponentData | None:
+def _library_component(name: str, handbook: bool, at: At, written: str) -> ComponentData | None:
     """None for a CoolProp fluid (unless ``handbook``); else the handbook compound ``name``,
-    every error naming the file and key."""
+    every error naming the file, the key and the name as ``written``."""
     from solver.catalog import close_names
-    from solver.components import usable_coolprop_name
+    from solver.components import component_info, usable_coolprop_name
+    from solver.fluids import coolprop_name
     from solver.errors import CaseError
     from solver.handbook import describe, find, lookup
     from solver.handbook.names import AmbiguousFormula
@@ -125,17 +126,23 @@ def _library_component(name: str, handbook: bool, at: At) -> ComponentData | Non
     try:
         found = find(name)
     except AmbiguousFormula as exc:
-        at.fail(str(exc), name)
+        at.fail(str(exc), written)
+    if found is None and not handbook and coolprop_name(name) is not None:
+        try:  # a CoolProp fluid a column cannot use: the component registry says why
+            component_info(name)
+        except CaseError as exc:
+            at.fail(exc.problem, written)
+        return None
     if found is None:
         close = close_names(name)
         hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
         where = "in the handbook library" if handbook else "a CoolProp fluid or in the handbook library"
-        at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", name,
+        at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", written,
                 "a name, synonym, CAS number or formula (list them with `traystack components PATTERN`)")
     try:
         component = lookup(name, key=at.key)
     except CaseError as exc:
-        raise CaseError(exc.problem, file=at.file, key=at.key, value=name, expected=exc.expected) from None
+        raise CaseError(exc.problem, file=at.file, key=at.key, value=written, expected=exc.expected) from None
     return replace(component.data, provenance=describe(component))
 
 

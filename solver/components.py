@@ -1,7 +1,9 @@
-"""Identity and constants of pure components: CoolProp fluids and user-defined components.
+"""Identity and constants of pure components: CoolProp fluids, handbook-library compounds and
+user-defined components.
 
 A component named in a case is looked up first among the components the user defined under
-``[components.data.NAME]`` and then among CoolProp's pure fluids, by name or alias, ignoring
+``[components.data.NAME]`` (and those the case reader took from the handbook library,
+:mod:`solver.handbook`), then among CoolProp's pure fluids, by name or alias, ignoring
 case (``"n-heptane"``, ``"N-HEPTANE"``, ``"heptane"`` and ``"nC7H16"`` all give CoolProp's
 ``n-Heptane``). Constants of CoolProp fluids come from the fluid's reference equation of state
 through ``AbstractState("HEOS", name)`` (Bell et al. 2014, Ind. Eng. Chem. Res. 53, 2498-2508,
@@ -28,7 +30,7 @@ from solver.errors import CaseError
 from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter, loose_key, name_index
 from solver.thermo.data import ComponentData
 
-__all__ = ["ComponentInfo", "component_info", "coolprop_source", "list_components"]
+__all__ = ["ComponentInfo", "coolprop_rows", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]
 
 
 @dataclass(frozen=True)
@@ -41,7 +43,7 @@ class ComponentInfo:
     critical_pressure: float  # Pa
     normal_boiling_point: float | None  # K, at 101325 Pa
     triple_temperature: float | None  # K
-    backend: str  # "coolprop" | "user"
+    backend: str  # "coolprop" | "handbook" | "user"
     coolprop_name: str | None
     source: str
 
@@ -58,10 +60,15 @@ def component_info(name: str, user_data: Mapping[str, ComponentData] | None = No
         return _user_info(name, data)
     fluid = coolprop_name(name)
     if fluid is None:
+        from solver.catalog import close_names
+
+        close = close_names(name, user_data or {})
+        hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
         raise CaseError(
-            f"unknown component {name.strip()!r}" + _suggestion(name, user_data),
+            f"unknown component {name.strip()!r}" + hint,
             key="components.names",
-            expected="a CoolProp fluid (list them with `traystack components`) or a name defined under [components.data]",
+            expected="a CoolProp fluid or a handbook-library compound (list them with `traystack components`) or a "
+            "name defined under [components.data]",
         )
     reason = _unusable_reason(fluid)
     if reason is not None:
@@ -92,6 +99,24 @@ def list_components(pattern: str | None = None) -> list[ComponentInfo]:
         if hit:
             chosen.append(info)
     return chosen
+
+
+def usable_coolprop_name(name: str) -> str | None:
+    """CoolProp's name of the fluid ``name`` when CoolProp has it as a pure fluid with a
+    saturation curve (a column can use it), else None."""
+    fluid = coolprop_name(name)
+    return fluid if fluid is not None and _unusable_reason(fluid) is None else None
+
+
+def coolprop_rows() -> tuple[tuple, ...]:
+    """The usable CoolProp fluids as rows (name, CoolProp name, aliases, molar mass, normal
+    boiling point, critical temperature, critical pressure), SI, sorted by name: the content of
+    the shipped index :mod:`solver._coolprop_index`."""
+    return tuple(
+        (info.name, info.coolprop_name, fluid_aliases(info.coolprop_name), info.molar_mass,
+         info.normal_boiling_point, info.critical_temperature, info.critical_pressure)
+        for info in _all_coolprop_infos()
+    )
 
 
 def coolprop_source(fluid: str) -> str:
@@ -182,6 +207,7 @@ def _find_user_data(name: str, user_data: Mapping[str, ComponentData] | None) ->
 
 
 def _user_info(name: str, data: ComponentData) -> ComponentInfo:
+    default_source = "handbook library" if data.origin == "handbook" else "user data (no source given)"
     return ComponentInfo(
         name=name.strip().lower(),
         molar_mass=data.molar_mass,
@@ -189,29 +215,7 @@ def _user_info(name: str, data: ComponentData) -> ComponentInfo:
         critical_pressure=data.critical_pressure,
         normal_boiling_point=data.normal_boiling_point,
         triple_temperature=None,
-        backend="user",
+        backend="handbook" if data.origin == "handbook" else "user",
         coolprop_name=None,
-        source=data.source or "user data (no source given)",
+        source=data.source or default_source,
     )
-
-
-def _suggestion(name: str, user_data: Mapping[str, ComponentData] | None) -> str:
-    exact, _ = name_index()
-    candidates: dict[str, str] = {}
-    for key, fluid in exact.items():
-        if _unusable_reason(fluid) is None:
-            candidates[key] = fluid.lower()
-    for data_key in user_data or {}:
-        candidates[data_key.lower()] = data_key.lower()
-    key = name.strip().lower()
-    matches = difflib.get_close_matches(key, candidates, n=6, cutoff=0.6)
-    if not matches:
-        matches = difflib.get_close_matches(loose_key(key), candidates, n=6, cutoff=0.6)
-    names: list[str] = []
-    for match in matches:
-        canonical = candidates[match]
-        if canonical not in names:
-            names.append(canonical)
-    if not names:
-        return ""
-    return "; did you mean " + " or ".join(repr(n) for n in names[:3]) + "?"

@@ -407,4 +407,15 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
         except ThermoError as exc:
             converged = False
             message = f"solution outside the property models' range: {exc}"
-    return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy,
+                               thermo=_with_range_notes(result.thermo, thermo.pure, result.temperature))
+
+
+def _with_range_notes(record: dict, pure: Any, temperature: np.ndarray) -> dict:
+    """The thermo record with, per handbook component, the notes on properties evaluated
+    beyond their correlation's range at the solution's stage temperatures."""
+    notes = pure.range_notes(temperature) if hasattr(pure, "range_notes") else {}
+    if not notes:
+        return record
+    components = [dict(entry, range_notes=notes.get(entry.get("name"), [])) for entry in record.get("components", [])]
+    return {**record, "components": components, "range_notes": [n for found in notes.values() for n in found]}

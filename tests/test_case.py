@@ -574,18 +574,20 @@ def test_mass_basis_with_a_user_component():
     assert feed.composition == pytest.approx((moles[0] / sum(moles), moles[1] / sum(moles)))
 
 
-def test_mass_basis_needs_a_known_molar_mass():
+def test_an_unknown_component_is_refused_by_the_case_reader_whatever_the_basis():
+    """Every listed name is now resolved when the case is read (CoolProp, the handbook library,
+    or [components.data]), so an unknown one is named at components.names with the file, on a
+    mass basis (which needs its molar mass) and on a mole basis alike."""
     data = mutated(format_data(), "components.names", ["methanol", "unobtainium"])
     data = mutated(data, "thermo.liquid", "ideal")
     del data["thermo"]["nrtl"]
     data = mutated(data, "feeds[0].composition", {"methanol": 0.5, "unobtainium": 0.5})
     data = mutated(data, "specs.bottoms", {"unobtainium": 0.995})
-    data["feeds"][0]["basis"] = "mass"
-    error = case_error(data)
-    assert error.key == "feeds[0].basis" and error.value == "mass" and "unobtainium" in error.problem
-    # a mole-basis feed does not need it: CoolProp availability is checked later, not here
-    data["feeds"][0]["basis"] = "mole"
-    assert parse_case(data).component_names == ("methanol", "unobtainium")
+    for basis in ("mass", "mole"):
+        data["feeds"][0]["basis"] = basis
+        error = case_error(data)
+        assert error.file == "case.toml" and error.key == "components.names[1]" and error.value == "unobtainium"
+        assert "unknown component" in error.problem and "handbook library" in error.problem
 
 
 # --- errors: file problems ------------------------------------------------------------------
@@ -865,7 +867,7 @@ COMBINED_ERRORS = [
      "column.pressure.profile", [1e5] * 4, "5 entries"),
     ([("feeds[0].basis", "mass"), ("components.names", ["methanol", "nosuchfluid"]), ("thermo.liquid", "ideal"),
       ("thermo.nrtl", DELETE), ("feeds[0].composition", {"methanol": 0.5, "nosuchfluid": 0.5})],
-     "feeds[0].basis", "mass", "molar mass of 'nosuchfluid'"),
+     "components.names[1]", "nosuchfluid", "unknown component"),
     ([("components.data.solventx", {"molar_mass": 0.1})], "components.data.solventx", "solventx", "defined twice"),
     ([("column.side_draws", [{"stage": 5, "phase": "liquid", "flow": 1, "name": "a"}, {"stage": 6, "phase": "liquid", "flow": 1, "name": "a"}])],
      "column.side_draws[1].name", "a", "another side draw"),

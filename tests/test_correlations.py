@@ -279,6 +279,8 @@ def test_watson_needs_a_critical_temperature():
 
 def test_validate_rejects_unknown_form_missing_and_unknown_coefficients():
     with pytest.raises(CaseError, match="unknown correlation form"):
+        validate_correlation(Correlation("riedel", {"A": 1.0}), "vapor pressure of X")
+    with pytest.raises(CaseError, match="lacks coefficient"):
         validate_correlation(Correlation("wagner", {"A": 1.0}), "vapor pressure of X")
     with pytest.raises(CaseError, match="lacks coefficient"):
         validate_correlation(Correlation("antoine", {"A": 1.0, "B": 2.0}), "vapor pressure of X")
@@ -300,7 +302,9 @@ def test_evaluate_reports_missing_coefficient_as_case_error():
 
 
 def test_forms_listed_are_the_forms_evaluated():
-    assert set(corr_mod.FORMS) == {"antoine", "dippr101", "polynomial", "dippr107", "watson", "dippr106", "dippr105", "constant"}
+    assert set(corr_mod.FORMS) == {"antoine", "dippr101", "polynomial", "dippr107", "watson", "dippr106", "dippr105",
+                                   "constant", "wagner", "trc_gas"}
+    assert set(corr_mod._FORM_FUNCTIONS) == set(corr_mod.FORMS)
 
 
 def test_vectorized_over_any_shape():

@@ -16,7 +16,7 @@ from scipy.integrate import quad
 
 from solver.case import Correlation
 from solver.thermo import extrapolation as ex
-from solver.thermo.handbook_forms import evaluate, evaluate_log
+from solver.thermo.extrapolation import evaluate, evaluate_log
 
 # 2-propanol: Wagner constants of Poling et al. (2001) Appendix A; Perry's 8th ed. Table 2-150
 # (DIPPR 106) heat of vaporization; Perry's liquid density (DIPPR 105); Poling's cp polynomial;

@@ -1,4 +1,4 @@
-"""Tests of solver.thermo.handbook_forms: the Wagner and TRC forms against the independent
+"""Tests of the Wagner and TRC forms against the independent
 implementations of the registry package ``chemicals`` (chemicals.vapor_pressure.Wagner and
 Wagner_original, chemicals.heat_capacity.TRCCp), and their analytic temperature derivatives
 against central finite differences."""
@@ -13,8 +13,9 @@ from chemicals.heat_capacity import TRCCp
 from chemicals.vapor_pressure import Wagner, Wagner_original
 
 from solver.case import Correlation
-from solver.thermo import handbook_forms
-from solver.thermo.handbook_forms import evaluate, evaluate_log
+from solver.thermo import correlations
+from solver.thermo.data import FORMS, PROPERTY_FORMS
+from solver.thermo.extrapolation import evaluate, evaluate_log
 
 R = 8.314462618
 
@@ -89,8 +90,29 @@ def test_built_in_forms_pass_through_to_correlations():
 
 
 def test_forms_table_entries_name_every_coefficient_the_functions_read():
-    assert set(handbook_forms.FORMS) == set(handbook_forms.FORM_FUNCTIONS)
-    required, optional = handbook_forms.FORMS["wagner"]
+    required, optional = FORMS["wagner"]
     assert set(IPA_WAGNER.coefficients) <= set(required + optional)
     assert set(ETHYL_ACETATE_WAGNER.coefficients) <= set(required + optional)
-    assert set(TRC.coefficients) == set(handbook_forms.FORMS["trc_gas"][0])
+    assert set(TRC.coefficients) == set(FORMS["trc_gas"][0])
+    assert "wagner" in PROPERTY_FORMS["vapor_pressure"] and "trc_gas" in PROPERTY_FORMS["ideal_gas_cp"]
+
+
+@pytest.mark.parametrize("corr", [IPA_WAGNER, ETHYL_ACETATE_WAGNER, TRC])
+def test_the_one_evaluation_dispatches_the_new_forms_with_derivatives(corr):
+    """solver.thermo.correlations evaluates the new forms (strict range check included), and
+    its analytic derivative matches central differences (step 1e-3 K)."""
+    T = np.array([300.0, 400.0, 480.0])
+    value, slope = correlations.evaluate(corr, T, strict=True)
+    plus, _ = correlations.evaluate(corr, T + 1e-3, strict=True)
+    minus, _ = correlations.evaluate(corr, T - 1e-3, strict=True)
+    assert slope == pytest.approx((plus - minus) / 2e-3, rel=1e-6)
+    ln_value, ln_slope = correlations.evaluate_log(corr, T)
+    assert ln_value == pytest.approx(np.log(value), rel=1e-12)
+    assert ln_slope == pytest.approx(slope / value, rel=1e-6)
+
+
+def test_the_one_evaluation_checks_the_range_of_the_new_forms():
+    from solver.errors import ThermoError
+
+    with pytest.raises(ThermoError, match="valid from 289.00 K"):
+        correlations.evaluate(ETHYL_ACETATE_WAGNER, np.array([250.0]))

@@ -1,10 +1,16 @@
 """The ``[components]`` table: the component names, and the data of components the user
 defines under ``[components.data.NAME]`` with their correlations, checked against the
-correlation forms of :mod:`solver.thermo.data` and built into its :class:`ComponentData`."""
+correlation forms of :mod:`solver.thermo.data` and built into its :class:`ComponentData`.
+
+A listed name not defined under ``[components.data]`` is a CoolProp fluid when CoolProp has it
+(its reference equation of state); otherwise, or when ``from_handbook`` lists it, the
+compound of the handbook library (:mod:`solver.handbook`) of that name, synonym, CAS number or
+formula. An unknown name gets the closest names of both."""
 
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NamedTuple
 
@@ -23,6 +29,9 @@ from solver.case.fields import (
     read_table,
     read_text,
 )
+from scipy.constants import R as GAS_CONSTANT
+
+from solver.thermo.handbook_forms import WAGNER_DEFAULT_EXPONENTS
 from solver.thermo.data import FORMS, PROPERTY_FORMS, WATSON_EXPONENT, ComponentData, Correlation
 from solver.units import UnitParseError, temperature_scale, unit_factor
 
@@ -39,7 +48,8 @@ _PROPERTY_KINDS = {
 #: Keys of a correlation table that say in which units its coefficients are, per form
 #: (forms not listed take ``units = "VALUE_UNIT, TEMPERATURE_UNIT"``; watson and constant
 #: write their values as quantities with units).
-_UNIT_KEYS = {"antoine": ("base", "pressure_unit", "temperature_unit"), "watson": (), "constant": ()}
+_UNIT_KEYS = {"antoine": ("base", "pressure_unit", "temperature_unit"), "watson": (), "constant": (), "wagner": (),
+              "trc_gas": ()}
 #: The polynomial's coefficients are written as one list.
 _POLYNOMIAL_KEY = "coefficients"
 #: The heaviest molar mass taken for a distillable component, kg/mol.
@@ -50,7 +60,7 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
     """(names in file order, data of the user-defined components that names lists, warnings
     about defined components that it does not list)."""
     table = read_table(value, at)
-    check_keys(table, at, ("names", "data"), required=("names",))
+    check_keys(table, at, ("names", "data", "from_handbook"), required=("names",))
     names_at = at.child("names")
     written = read_list(table["names"], names_at, min_length=1, max_length=200)
     names: list[str] = []
@@ -78,7 +88,62 @@ def read_components_table(value: Any, at: At) -> tuple[tuple[str, ...], dict[str
                 f"{entry_at.file}: {entry_at.key}: {written_name!r} is defined but not listed in components.names;"
                 " it was checked and is not used"
             )
+    chosen = _read_from_handbook(table.get("from_handbook", []), names, component_data, at.child("from_handbook"))
+    for index, name in enumerate(names):
+        if name not in component_data:
+            data = _library_component(name, name in chosen, names_at.item(index), written[index])
+            if data is not None:
+                component_data[name] = data
     return tuple(names), component_data, warnings
+
+
+def _read_from_handbook(value: Any, names: list[str], defined: Mapping[str, ComponentData], at: At) -> set[str]:
+    """``from_handbook = [...]``: listed components to take from the handbook library even
+    when CoolProp has them."""
+    chosen: set[str] = set()
+    for index, item in enumerate(read_list(value, at, max_length=200)):
+        name = read_component_name(item, at.item(index))
+        if name not in names:
+            at.item(index).fail("not one of components.names", item, "a name listed in components.names")
+        if name in defined:
+            at.item(index).fail("defined under [components.data]; a component has one source", item)
+        chosen.add(name)
+    return chosen
+
+
+def _library_component(name: str, handbook: bool, at: At, written: str) -> ComponentData | None:
+    """None for a CoolProp fluid (unless ``handbook``); else the handbook compound ``name``,
+    every error naming the file, the key and the name as ``written``."""
+    from solver.catalog import close_names
+    from solver.components import component_info, usable_coolprop_name
+    from solver.fluids import coolprop_name
+    from solver.errors import CaseError
+    from solver.handbook import describe, find, lookup
+    from solver.handbook.names import AmbiguousFormula
+
+    if not handbook and usable_coolprop_name(name) is not None:
+        return None
+    try:
+        found = find(name)
+    except AmbiguousFormula as exc:
+        at.fail(str(exc), written)
+    if found is None and not handbook and coolprop_name(name) is not None:
+        try:  # a CoolProp fluid a column cannot use: the component registry says why
+            component_info(name)
+        except CaseError as exc:
+            at.fail(exc.problem, written)
+        return None
+    if found is None:
+        close = close_names(name)
+        hint = "; did you mean " + " or ".join(repr(n) for n in close) + "?" if close else ""
+        where = "in the handbook library" if handbook else "a CoolProp fluid or in the handbook library"
+        at.fail(f"unknown component: not {where}, nor defined under [components.data]{hint}", written,
+                "a name, synonym, CAS number or formula (list them with `traystack components PATTERN`)")
+    try:
+        component = lookup(name, key=at.key)
+    except CaseError as exc:
+        raise CaseError(exc.problem, file=at.file, key=at.key, value=written, expected=exc.expected) from None
+    return replace(component.data, provenance=describe(component))
 
 
 _COMPONENT_FIELDS = {
@@ -225,6 +290,8 @@ def _antoine(table: Mapping, form: str, kind: str, critical_temperature: float, 
 def _dippr(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
     """DIPPR 101, 106 and 107 (coefficients A to E, those not given 0)."""
     coefficients = _letters(table, "ABCDE", at, default=0.0)
+    if form == "dippr106" and "Tc" in table:
+        coefficients["Tc"] = read_quantity(table["Tc"], "temperature", at.child("Tc"), above=0.0)
     units = _read_units(table.get("units"), kind, at.child("units"), with_temperature=form != "dippr106")
     if form == "dippr107":
         if coefficients["C"] == 0.0:
@@ -264,7 +331,25 @@ def _constant(table: Mapping, form: str, kind: str, critical_temperature: float,
     return _Coefficients({"value": read_quantity(table["value"], kind, at.child("value"), above=0.0)})
 
 
+def _wagner(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
+    """Wagner: A to D are numbers, the equation's own Tc and Pc quantities (K and Pa when bare),
+    the exponents of the third and fourth terms 2.5 and 5 unless given."""
+    coefficients = _letters(table, "ABCD", at)
+    coefficients["Tc"] = read_quantity(table["Tc"], "temperature", at.child("Tc"), above=0.0)
+    coefficients["Pc"] = read_quantity(table["Pc"], "pressure", at.child("Pc"), above=0.0)
+    for key, default in zip(("exponent_C", "exponent_D"), WAGNER_DEFAULT_EXPONENTS):
+        coefficients[key] = read_real(table[key], at.child(key)) if key in table else default
+    return _Coefficients(coefficients)
+
+
+def _trc_gas(table: Mapping, form: str, kind: str, critical_temperature: float, at: At) -> _Coefficients:
+    """TRC ideal-gas heat capacity: a0 to a7 give cp/R (T in K)."""
+    return _Coefficients({f"a{k}": read_real(table[f"a{k}"], at.child(f"a{k}")) for k in range(8)}, GAS_CONSTANT)
+
+
 _FORM_READERS: dict[str, Callable[..., _Coefficients]] = {
+    "wagner": _wagner,
+    "trc_gas": _trc_gas,
     "antoine": _antoine,
     "dippr": _dippr,
     "dippr105": _dippr105,

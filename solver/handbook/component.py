@@ -22,8 +22,7 @@ from solver.errors import CaseError
 from solver.handbook import tables
 from solver.handbook.formula import molar_mass
 from solver.handbook.sources import TABLES
-from solver.thermo.extrapolation import acentric_factor
-from solver.thermo.handbook_forms import evaluate_log
+from solver.thermo.extrapolation import acentric_factor, evaluate_log
 
 __all__ = [
     "BOILING_POINT_TOLERANCE",
@@ -165,6 +164,7 @@ def build_component(cas: str, name: str, formula: str) -> HandbookComponent:
         liquid_molar_volume=correlations["liquid molar volume"][1],
         normal_boiling_point=Tb,
         source="; ".join(f"{s.prop}: {s.title}" for s in sources),
+        origin="handbook",
     )
     omega = acentric_factor(pressure, Tc, Pc, Tb)
     return HandbookComponent(cas, name, formula, data, omega, tuple(sources), tuple(notes))

@@ -7,16 +7,10 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..caution import CAUTION
 from ..results import Result
 
 __all__ = ["CAUTION", "ELEVATED_PRESSURE", "NEAR_CRITICAL_REDUCED_TEMPERATURE", "PRESENT_FRACTION", "cautions"]
-
-#: The general caution, shown under every result.
-CAUTION = (
-    "Engineering estimate from models and data of limited accuracy. It does not replace review by a "
-    "qualified engineer, vendor data, or the codes and standards that apply where the column is built "
-    "(pressure equipment, relief, hazardous areas, flammable/toxic service, thermal stability of bottoms)."
-)
 
 #: Above this pressure ideal-vapor K-values deserve a check against data (a rule of thumb,
 #: common practice: vapor fugacity coefficients of light hydrocarbons fall below about 0.9).
@@ -47,6 +41,7 @@ def cautions(result: Result) -> list[str]:
             "constant molar overflow by construction; the duties are estimates on that basis."
         )
     found.extend(result.case_warnings)
+    found.extend(f"Beyond a handbook correlation's range: {note}." for note in (result.thermo or {}).get("range_notes", []))
     audit = result.extra.get("audit")
     for flag in audit.flags if audit is not None else ():
         found.append(f"[{flag.severity}] {flag.code}: {flag.message}".strip())

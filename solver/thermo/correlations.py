@@ -24,11 +24,24 @@ coefficients were fitted in. The forms and their published sources:
     ``exponent``); Watson, K. M. (1943), Ind. Eng. Chem. 35, 398-406. ``at`` is in K.
 ``dippr106``
     ``Y = A (1 - Tr)^(B + C Tr + D Tr^2 + E Tr^3)`` with ``Tr = T/Tc``; DIPPR 801 equation 106.
+    ``Tc`` is the correlation's own coefficient (K) when it has one (Perry's Table 2-150
+    gives it), else the component's critical temperature.
 ``dippr105``
     molar density ``rho = A / B^(1 + (1 - T_u/C)^D)``; DIPPR 801 equation 105 (a Rackett-type
     form). The liquid molar volume is ``1/rho`` (see :func:`liquid_molar_volume`).
 ``constant``
     ``Y = value``.
+``wagner``
+    ``ln(P/Pc) = (A tau + B tau^1.5 + C tau^m + D tau^n)/Tr``, ``Tr = T/Tc``, ``tau = 1 - Tr``
+    with the equation's own ``Tc`` (K) and ``Pc`` (Pa); m = 2.5, n = 5 unless ``exponent_C``,
+    ``exponent_D`` say otherwise. Wagner, W. (1973), Cryogenics 13, 470-482; Poling, Prausnitz
+    and O'Connell (2001), The Properties of Gases and Liquids, 5th ed., eq. 7-3.3. T in K.
+``trc_gas``
+    ``cp/R`` by the TRC equation (coefficients a0 to a7; ``value_factor`` the gas constant):
+    Frenkel, M. et al. (1994), Thermodynamics of Organic Compounds in the Gas State, TRC Data
+    Series, vol. I, eq. (2.9). T in K.
+
+Both are evaluated in :mod:`solver.thermo.handbook_forms`.
 
 Validity range: with ``strict=True`` (the default) a temperature outside ``[T_min, T_max]``
 raises :class:`~solver.errors.ThermoError` naming the correlation, the temperature and the
@@ -47,6 +60,7 @@ import numpy as np
 
 from solver.errors import CaseError, ThermoError
 from solver.thermo.data import FORMS, WATSON_EXPONENT, Correlation
+from solver.thermo.handbook_forms import trc_gas, wagner, wagner_log
 
 __all__ = [
     "FORMS",
@@ -159,10 +173,14 @@ def evaluate_log(
 ) -> tuple[np.ndarray, np.ndarray]:
     """Natural logarithm of the (positive) SI value and its temperature derivative,
     ``(ln Y, d ln Y/dT)``. Exact for antoine and dippr101 (no overflow for tiny or huge
-    values); for other forms computed from :func:`evaluate`."""
+    values); exact for wagner as well; for other forms computed from :func:`evaluate`."""
     T = np.asarray(T, dtype=float)
     if strict:
         check_range(corr, T, label)
+    if corr.form == "wagner":
+        ln_value, slope = wagner_log(corr, T)
+        with np.errstate(divide="ignore"):
+            return ln_value + np.log(corr.value_factor), slope
     if corr.form in ("antoine", "dippr101"):
         try:
             return _log_of_exponential_form(corr, T)
@@ -379,7 +397,7 @@ def _watson(corr, T, critical_temperature, label):
 
 def _dippr106(corr, T, critical_temperature, label):
     c = corr.coefficients
-    Tc = _critical(corr, critical_temperature, label)
+    Tc = float(c["Tc"]) if "Tc" in c else _critical(corr, critical_temperature, label)
     A, B, C, D, E = c["A"], c["B"], c.get("C", 0.0), c.get("D", 0.0), c.get("E", 0.0)
     Tr = T / Tc
     tau = np.maximum(1.0 - Tr, 0.0)
@@ -417,6 +435,8 @@ _FORM_FUNCTIONS: dict[str, Callable] = {
     "dippr106": _dippr106,
     "dippr105": _dippr105,
     "constant": _constant,
+    "wagner": wagner,
+    "trc_gas": trc_gas,
 }
 
 

@@ -9,7 +9,7 @@ evaluates them. It imports nothing of ours.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from typing import Mapping
 
 __all__ = [
@@ -29,16 +29,18 @@ FORMS: Mapping[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
     "polynomial": ((), ()),
     "dippr107": (("A", "B", "C"), ("D", "E")),
     "watson": (("value", "at"), ("exponent",)),
-    "dippr106": (("A", "B"), ("C", "D", "E")),
+    "dippr106": (("A", "B"), ("C", "D", "E", "Tc")),
     "dippr105": (("A", "B", "C", "D"), ()),
     "constant": (("value",), ()),
+    "wagner": (("A", "B", "C", "D", "Tc", "Pc"), ("exponent_C", "exponent_D")),
+    "trc_gas": (("a0", "a1", "a2", "a3", "a4", "a5", "a6", "a7"), ()),
 }
 
 #: Property of a user component -> the forms that may give it (dippr105 gives the liquid molar
 #: density, whose reciprocal is the molar volume).
 PROPERTY_FORMS: Mapping[str, tuple[str, ...]] = {
-    "vapor_pressure": ("antoine", "dippr101"),
-    "ideal_gas_cp": ("polynomial", "dippr107", "constant"),
+    "vapor_pressure": ("antoine", "dippr101", "wagner"),
+    "ideal_gas_cp": ("polynomial", "dippr107", "constant", "trc_gas"),
     "heat_of_vaporization": ("watson", "dippr106", "polynomial", "constant"),
     "liquid_molar_volume": ("dippr105", "polynomial", "constant"),
 }
@@ -57,7 +59,9 @@ class Correlation:
     ``form`` is a key of :data:`FORMS`: "antoine" (log_base P = A - B/(T + C)), "dippr101"
     (ln Y = A + B/T + C ln T + D T^E), "polynomial" (sum c_k T^k; coefficients named c0, c1,
     ...), "dippr107", "watson" (coefficients value, at [K]; exponent 0.38 unless given),
-    "dippr106", "dippr105", "constant" (coefficient value).
+    "dippr106", "dippr105", "constant" (coefficient value), "wagner" (ln(P/Pc) = (A tau +
+    B tau^1.5 + C tau^m + D tau^n)/Tr; coefficients A, B, C, D, Tc [K], Pc [Pa], optional
+    exponent_C = m and exponent_D = n), "trc_gas" (TRC ideal-gas cp/R, coefficients a0 to a7).
     """
 
     form: str
@@ -72,7 +76,8 @@ class Correlation:
 
 @dataclass(frozen=True)
 class ComponentData:
-    """A user-defined component from ``[components.data.NAME]`` (all SI)."""
+    """A component defined by correlations (all SI): from ``[components.data.NAME]``
+    (``origin`` "user") or from the handbook library (``origin`` "handbook")."""
 
     name: str
     molar_mass: float  # kg/mol
@@ -84,3 +89,6 @@ class ComponentData:
     liquid_molar_volume: Correlation | None = None  # m3/mol
     normal_boiling_point: float | None = None  # K
     source: str = ""
+    origin: str = "user"  # "user" ([components.data]) or "handbook" (solver.handbook library)
+    #: for handbook components, the record of every property's table, form and range
+    provenance: dict | None = field(default=None, compare=False, repr=False)

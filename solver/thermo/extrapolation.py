@@ -45,12 +45,13 @@ import numpy as np
 
 from solver.thermo.data import Correlation
 from solver.thermo import correlations
-from solver.thermo.handbook_forms import evaluate, evaluate_log
 
 __all__ = [
     "CRITICAL_APPROACH",
     "PropertyRangeWarning",
     "acentric_factor",
+    "evaluate",
+    "evaluate_log",
     "heat_of_vaporization",
     "ideal_gas_cp",
     "ideal_gas_enthalpy",
@@ -277,6 +278,16 @@ def _warn_outside(corr: Correlation, T: np.ndarray, component: str, prop: str, w
         warnings.warn(_note(corr, component, prop, "above"), PropertyRangeWarning, stacklevel=3)
     if corr.T_min is not None and np.any(T < corr.T_min):
         warnings.warn(_note(corr, component, prop, "below"), PropertyRangeWarning, stacklevel=3)
+
+
+def evaluate(corr: Correlation, T: np.ndarray, Tc: float | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """SI value and temperature derivative of the correlation, without a range check."""
+    return correlations.evaluate(corr, T, Tc, strict=False)
+
+
+def evaluate_log(corr: Correlation, T: np.ndarray, Tc: float | None = None) -> tuple[np.ndarray, np.ndarray]:
+    """``(ln Y, d ln Y/dT)`` of the correlation, without a range check."""
+    return correlations.evaluate_log(corr, T, Tc, strict=False)
 
 
 def _saturation_range(corr: Correlation, Tc: float) -> tuple[float, float]:

@@ -18,30 +18,20 @@ analytic temperature derivatives.
     (1994), Thermodynamics of Organic Compounds in the Gas State, TRC Data Series, Thermodynamics
     Research Center, College Station TX, vol. I, eq. (2.9).
 
-Each form function has the signature of the functions in the forms table of
-:mod:`solver.thermo.correlations`: ``(corr, T, critical_temperature, label) -> (f, df/dT)``
-before ``value_factor``. :data:`FORMS` and :data:`FORM_FUNCTIONS` are the entries to add to
-that module's ``FORMS`` and ``_FORM_FUNCTIONS``; until they are added, :func:`evaluate` and
-:func:`evaluate_log` here evaluate any form (the new ones here, the others there).
+Each form function has the signature of the form functions of
+:mod:`solver.thermo.correlations`, which dispatches to them: ``(corr, T, critical_temperature,
+label) -> (f, df/dT)`` before ``value_factor``; both take T in K (``temperature_slope`` and
+``temperature_intercept`` are not used: the Wagner equation carries its own Tc in K).
 """
 
 from __future__ import annotations
 
 import math
-from typing import Callable
-
 import numpy as np
 
 from solver.thermo.data import Correlation
-from solver.thermo import correlations
 
-__all__ = ["FORMS", "FORM_FUNCTIONS", "evaluate", "evaluate_log", "trc_gas", "wagner", "wagner_log"]
-
-#: Coefficients each new form needs and those it may have (the layout of correlations.FORMS).
-FORMS: dict[str, tuple[tuple[str, ...], tuple[str, ...]]] = {
-    "wagner": (("A", "B", "C", "D", "Tc", "Pc"), ("exponent_C", "exponent_D")),
-    "trc_gas": (("a0", "a1", "a2", "a3", "a4", "a5", "a6", "a7"), ()),
-}
+__all__ = ["WAGNER_DEFAULT_EXPONENTS", "trc_gas", "wagner", "wagner_log"]
 
 #: Exponents of the third and fourth Wagner terms unless the correlation gives them.
 WAGNER_DEFAULT_EXPONENTS = (2.5, 5.0)
@@ -88,29 +78,3 @@ def trc_gas(corr: Correlation, T: np.ndarray, critical_temperature, label) -> tu
         value = a0 + first + a3 * y * y + bracket * y7 * y
         slope = d_first + 2.0 * a3 * y * dy + np.where(above, 2.0 * a5 / gap**3, 0.0) * y7 * y + bracket * 8.0 * y7 * dy
     return value, slope
-
-
-FORM_FUNCTIONS: dict[str, Callable] = {"wagner": wagner, "trc_gas": trc_gas}
-
-
-def evaluate(corr: Correlation, T: np.ndarray, critical_temperature: float | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """SI value and temperature derivative of any correlation, without a range check."""
-    function = FORM_FUNCTIONS.get(corr.form)
-    if function is None:
-        return correlations.evaluate(corr, T, critical_temperature, strict=False)
-    T = np.asarray(T, dtype=float)
-    value, slope = function(corr, T, critical_temperature, corr.form)
-    return corr.value_factor * value, corr.value_factor * slope
-
-
-def evaluate_log(corr: Correlation, T: np.ndarray, critical_temperature: float | None = None) -> tuple[np.ndarray, np.ndarray]:
-    """``(ln Y, d ln Y/dT)`` of any (positive) correlation, without a range check; exact for
-    the Wagner form."""
-    if corr.form == "wagner":
-        ln_value, slope = wagner_log(corr, T)
-        return ln_value + math.log(corr.value_factor), slope
-    if corr.form in FORM_FUNCTIONS:
-        value, slope = evaluate(corr, T, critical_temperature)
-        with np.errstate(all="ignore"):
-            return np.log(value), slope / value
-    return correlations.evaluate_log(corr, T, critical_temperature, strict=False)

@@ -14,7 +14,9 @@ exponent of the fit at its end (zero at and above Tc), ``cp0`` constant, liquid 
 :meth:`PureComponents.check_temperature` is the explicit guard against temperatures at or above
 a critical temperature or outside a user correlation's range.
 
-User-defined components use their correlations (:mod:`solver.thermo.user_components`).
+User-defined components use their correlations (:mod:`solver.thermo.user_components`);
+handbook components theirs with the documented extrapolation beyond each range
+(:mod:`solver.thermo.library_components`).
 """
 
 from __future__ import annotations
@@ -37,6 +39,7 @@ from solver.thermo.chebyshev_fits import (
 )
 from solver.thermo.data import ComponentData
 from solver.thermo.piecewise_table import PiecewiseTable
+from solver.thermo.library_components import LibraryComponent
 from solver.thermo.user_components import UserComponent, extend_in_inverse_temperature, rackett_volume
 
 __all__ = ["REFERENCE_TEMPERATURE", "PureComponents", "ideal_gas_fit", "rackett_volume", "saturation_fits"]
@@ -76,11 +79,12 @@ class PureComponents:
             if info.backend == "coolprop":
                 if not info.coolprop_name:
                     raise ThermoError(f"component {info.name} is marked coolprop but has no CoolProp name")
-            elif info.backend == "user":
+            elif info.backend in ("user", "handbook"):
                 data = _find_data(info.name, user_data)
                 if data is None:
-                    raise ThermoError(f"no data given for the user-defined component {info.name}")
-                self._users.append((index, UserComponent(info, data)))
+                    raise ThermoError(f"no data given for the {info.backend} component {info.name}")
+                kind = LibraryComponent if info.backend == "handbook" else UserComponent
+                self._users.append((index, kind(info, data)))
             else:
                 raise ThermoError(f"component {info.name} has an unknown backend {info.backend!r}")
         self._all_coolprop = len(self._users) == 0
@@ -183,6 +187,16 @@ class PureComponents:
         for _, user in self._users:
             user.check_temperature(T)
 
+    def range_notes(self, T: np.ndarray) -> dict[str, list[str]]:
+        """Per handbook component with any: the notes on the properties evaluated beyond their
+        correlation's range at the temperatures ``T`` (K), by the documented extrapolation."""
+        T = _temperatures(T)
+        notes = {}
+        for _, user in self._users:
+            if isinstance(user, LibraryComponent) and (found := user.range_notes(T)):
+                notes[user.info.name] = found
+        return notes
+
     def describe(self) -> list[dict]:
         """Per component: name, backend, source, constants and, for CoolProp components, the
         fits (variable, range, pieces, degree, achieved maximum error against CoolProp); for
@@ -213,6 +227,8 @@ class PureComponents:
                 entry["fit_tolerance"] = FIT_TOLERANCE
             else:
                 entry["correlations"] = users[index].describe()
+                if "handbook" in entry["correlations"]:
+                    entry["handbook"] = entry["correlations"].pop("handbook")
             described.append(entry)
         return described
 

@@ -23,7 +23,7 @@ from CoolProp.CoolProp import PropsSI
 
 from solver.handbook import lookup
 from solver.handbook.component import BOILING_POINT_TOLERANCE, boiling_point_of
-from solver.thermo.handbook_forms import evaluate_log
+from solver.thermo.extrapolation import evaluate_log
 
 # name: (Tb / K, Tc / K, Pc / bar), Poling et al. (2001) Appendix A, all from memory
 POLING_APPENDIX_A = {

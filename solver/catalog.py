@@ -1,0 +1,111 @@
+"""What ``traystack components`` shows: CoolProp's usable pure fluids (from the shipped index
+:mod:`solver._coolprop_index`, so a search imports neither CoolProp nor ``chemicals``) beside
+the compounds of the handbook library (:mod:`solver.handbook`, its shipped name index), found by
+name, alias or synonym, CAS number or formula; and, for one exact name, where each of its
+properties comes from."""
+
+from __future__ import annotations
+
+import difflib
+import fnmatch
+from dataclasses import dataclass
+from functools import lru_cache
+
+from solver import _coolprop_index
+from solver.handbook.names import AmbiguousFormula, IndexEntry, entries, find, loose, search
+
+__all__ = ["CoolPropFluid", "Matches", "close_names", "coolprop_fluid", "exact_handbook", "matches"]
+
+
+@dataclass(frozen=True)
+class CoolPropFluid:
+    """One usable CoolProp fluid as the index records it (SI)."""
+
+    name: str  # lower case
+    coolprop_name: str
+    aliases: tuple[str, ...]
+    molar_mass: float
+    normal_boiling_point: float | None
+    critical_temperature: float
+    critical_pressure: float
+
+
+@dataclass(frozen=True)
+class Matches:
+    """The CoolProp fluids and the handbook compounds a pattern finds."""
+
+    coolprop: tuple[CoolPropFluid, ...]
+    handbook: tuple[IndexEntry, ...]
+
+
+@lru_cache(maxsize=1)
+def _fluids() -> tuple[CoolPropFluid, ...]:
+    return tuple(CoolPropFluid(*row) for row in _coolprop_index.FLUIDS)
+
+
+@lru_cache(maxsize=1)
+def _fluid_keys() -> tuple[dict[str, CoolPropFluid], dict[str, CoolPropFluid]]:
+    exact: dict[str, CoolPropFluid] = {}
+    for fluid in _fluids():
+        for key in (fluid.name, fluid.coolprop_name, *fluid.aliases):
+            exact.setdefault(key.lower(), fluid)
+    by_loose: dict[str, CoolPropFluid] = {}
+    for key, fluid in exact.items():
+        by_loose.setdefault(loose(key), fluid)
+    return exact, by_loose
+
+
+def coolprop_fluid(name: str) -> CoolPropFluid | None:
+    """The usable CoolProp fluid called ``name`` (name or alias, any case; spaces, hyphens and
+    underscores optional), or None."""
+    exact, by_loose = _fluid_keys()
+    key = name.strip().lower()
+    return exact.get(key) or by_loose.get(loose(key))
+
+
+def matches(pattern: str | None) -> Matches:
+    """The CoolProp fluids whose name or an alias contains ``pattern`` (ignoring case; a shell
+    glob when it has ``*``, ``?`` or ``[``) and the handbook compounds whose name, a synonym,
+    the CAS number or the formula does; everything without a pattern."""
+    fluids = _fluids()
+    if pattern:
+        text = pattern.strip().lower()
+        glob = any(ch in text for ch in "*?[")
+        fluids = tuple(
+            f for f in fluids
+            if any(fnmatch.fnmatchcase(k.lower(), text) if glob else text in k.lower()
+                   for k in (f.name, f.coolprop_name, *f.aliases))
+        )
+    return Matches(tuple(fluids), tuple(search(pattern)))
+
+
+def exact_handbook(name: str) -> IndexEntry | None:
+    """The handbook compound of exactly this name, synonym, CAS number or unique formula."""
+    try:
+        return find(name)
+    except AmbiguousFormula:
+        return None
+
+
+def close_names(name: str, extra=(), count: int = 3) -> list[str]:
+    """Up to ``count`` names close to ``name`` (difflib's ratio, best first; then on names
+    without spaces, hyphens, underscores and commas) among the usable CoolProp fluids and their
+    aliases, the handbook library's compounds and their synonyms, and the names in ``extra``
+    (user-defined components); each answer is the canonical name."""
+    candidates: dict[str, str] = {key.lower(): key.lower() for key in extra}
+    for fluid in _fluids():
+        for key in (fluid.name, *fluid.aliases):
+            candidates.setdefault(key.lower(), fluid.name)
+    for entry in entries():
+        if not entry.refused:
+            for key in (entry.name, *entry.synonyms):
+                candidates.setdefault(key.lower(), entry.name)
+    found = difflib.get_close_matches(name.strip().lower(), candidates, n=4 * count, cutoff=0.6)
+    if not found:
+        candidates = {loose(key): value for key, value in candidates.items()}
+        found = difflib.get_close_matches(loose(name), candidates, n=4 * count, cutoff=0.6)
+    names: list[str] = []
+    for key in found:
+        if candidates[key] not in names:
+            names.append(candidates[key])
+    return names[:count]

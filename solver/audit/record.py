@@ -13,7 +13,7 @@ import numpy as np
 from ..results import json_safe
 from ..shortcut import BinaryDesign, MulticomponentDesign
 from .cmo import CMOAudit
-from .flags import Flag
+from .flags import Flag, two_liquids
 from .search import StageSearch
 from .thresholds import THRESHOLD_REASONS
 from .variants import RigorousRun
@@ -115,7 +115,8 @@ def _cmo_deviation_record(cmo: CMOAudit) -> list[dict[str, Any]]:
 def solution_audit_record(audit: SolutionAudit) -> dict[str, Any]:
     """result.json "audit" of :func:`~.solution.audit_solution` (``scope`` "solution")."""
     if not audit.applicable:
-        return {"scope": "solution", "applicable": False, "reason": audit.reason, "flags": []}
+        return {"scope": "solution", "applicable": False, "reason": audit.reason,
+                "flags": [flag_record(flag) for flag in audit.flags]}
     if audit.minimum_reflux_error:
         minimum_reflux: dict[str, Any] | None = {"error": audit.minimum_reflux_error}
     elif audit.minimum_reflux is not None:
@@ -276,6 +277,10 @@ def shortcut_record(report: ShortcutReport) -> dict[str, Any]:
         "sources": dict(report.basis.sources),
         "notes": list(report.basis.notes),
     }
+    if report.liquid_split is not None:
+        record["liquid_stability"] = report.liquid_split.as_json()
+        flag = two_liquids(report.liquid_split, "equilibrium-curve point")
+        record["flags"] = [] if flag is None else [flag_record(flag)]
     if report.is_binary:
         record["ponchon_savarit"] = None if report.enthalpy_design is None else _binary_record(report.enthalpy_design)
         if report.enthalpy_message:

@@ -22,11 +22,28 @@ from ..thermo.package import ThermoPackage
 from .basis import light_index
 from .cmo import CMOAudit, cmo_audit, cmo_duty_estimates
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
-                    tangent_pinch)
-from .record import solution_audit_record
+                    predicted_pairs, tangent_pinch, two_liquids)
+from .record import flag_record, solution_audit_record
 from .thresholds import resolve_thresholds
 
-__all__ = ["SolutionAudit", "audit_solution"]
+__all__ = ["RunFlags", "SolutionAudit", "audit_solution", "run_flags"]
+
+
+def run_flags(result: Result) -> tuple[Flag, ...]:
+    """The flags any solution raises without the shortcut: stages whose liquid would split
+    (TWO_LIQUIDS) and binary parameters predicted rather than given (PREDICTED_PAIRS)."""
+    return by_severity([two_liquids(result.liquid_split), predicted_pairs(result.thermo)])
+
+
+@dataclass(frozen=True)
+class RunFlags:
+    """The flags of :func:`run_flags`, attached to a result by ``traystack run`` under
+    ``extra["flags"]``; ``as_json()`` is result.json's "flags"."""
+
+    flags: tuple[Flag, ...] = ()
+
+    def as_json(self) -> list[dict[str, Any]]:
+        return [flag_record(flag) for flag in self.flags]
 
 
 @dataclass(frozen=True, eq=False)
@@ -64,17 +81,20 @@ def audit_solution(
     treat (side draws, several feeds, no condenser or reboiler) gets ``applicable`` False and
     no flags."""
     chosen = resolve_thresholds(case, thresholds)
+    own = run_flags(result)
     try:
         check_simple_column(case, "audit's")
     except SpecError as exc:
-        return result.with_extra(audit=SolutionAudit(False, str(exc)))
+        return result.with_extra(audit=SolutionAudit(False, str(exc), flags=own))
     if not result.converged:
-        return result.with_extra(audit=SolutionAudit(False, "the solution did not converge"))
+        return result.with_extra(audit=SolutionAudit(False, "the solution did not converge", flags=own))
     thermo = thermo or ThermoPackage.from_case(case)
     try:
         audit = _audit(case, result, thermo, chosen)
     except (SpecError, ThermoError) as exc:
-        audit = SolutionAudit(False, str(exc))
+        audit = SolutionAudit(False, str(exc), flags=own)
+    else:
+        audit = dataclasses.replace(audit, flags=by_severity([*audit.flags, *own]))
     return result.with_extra(audit=audit)
 
 

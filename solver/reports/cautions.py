@@ -47,8 +47,8 @@ def cautions(result: Result) -> list[str]:
             "constant molar overflow by construction; the duties are estimates on that basis."
         )
     found.extend(result.case_warnings)
-    audit = result.extra.get("audit")
-    for flag in audit.flags if audit is not None else ():
+    audit, own = result.extra.get("audit"), result.extra.get("flags")
+    for flag in (*(audit.flags if audit is not None else ()), *(own.flags if own is not None else ())):
         found.append(f"[{flag.severity}] {flag.code}: {flag.message}".strip())
     found.append(CAUTION)
     return found

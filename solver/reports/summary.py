@@ -13,7 +13,7 @@ from ..results import Result, write_atomic
 from .audit_tables import audit_markdown
 from .cautions import cautions
 from .display import DisplayUnits, markdown_table
-from .run_tables import spec_rows, stage_label
+from .run_tables import PAIR_HEADER, pair_rows, spec_rows, stage_label
 
 __all__ = ["summary_markdown", "write_summary"]
 
@@ -23,7 +23,7 @@ def summary_markdown(result: Result, units: DisplayUnits, plots: Sequence[str] =
     duties, stage table, convergence and balances, the audit, plots (file names relative to
     the summary), cautions."""
     lines = [f"# {result.title or 'traystack result'}", "", _status(result), ""]
-    for section in (_specifications, _feeds, _products, _duties, _stages, _convergence, audit_markdown):
+    for section in (_specifications, _feeds, _products, _duties, _stages, _pairs, _convergence, audit_markdown):
         lines += section(result, units)
     if plots:
         lines += ["## Plots", ""]
@@ -120,6 +120,12 @@ def _stages(result: Result, units: DisplayUnits) -> list[str]:
         for j, r in enumerate(result.stage_records())
     ]
     return ["## Stages", "", *markdown_table(header, rows), ""]
+
+
+def _pairs(result: Result, units: DisplayUnits) -> list[str]:
+    """The binary pairs of the activity model, each with its origin."""
+    rows = pair_rows(result)
+    return ["## Binary parameters", "", *markdown_table(list(PAIR_HEADER), rows, [False] * 3), ""] if rows else []
 
 
 def _convergence(result: Result, units: DisplayUnits) -> list[str]:

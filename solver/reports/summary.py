@@ -23,7 +23,7 @@ def summary_markdown(result: Result, units: DisplayUnits, plots: Sequence[str] =
     duties, stage table, convergence and balances, the audit, plots (file names relative to
     the summary), cautions."""
     lines = [f"# {result.title or 'traystack result'}", "", _status(result), ""]
-    for section in (_specifications, _feeds, _products, _duties, _stages, _pairs, _convergence, audit_markdown):
+    for section in (_specifications, _feeds, _products, _duties, _stages, _convergence, audit_markdown):
         lines += section(result, units)
     if plots:
         lines += ["## Plots", ""]
@@ -62,8 +62,10 @@ def _specifications(result: Result, units: DisplayUnits) -> list[str]:
         f"{efficiency}. Thermo: liquid {result.thermo.get('liquid', '?')}, vapor {result.thermo.get('vapor', '?')}, "
         f"enthalpy {result.enthalpy_model}.",
     ]
-    sources = sorted({pair.get("source", "") for pair in result.thermo.get("pairs", []) if pair.get("source")})
-    lines += [f"Binary parameters: {source}" for source in sources]
+    rows = pair_rows(result)
+    if rows:
+        lines += ["", "Binary parameters, each with its origin:", "",
+                  *markdown_table(list(PAIR_HEADER), rows, [False] * 3)]
     return lines + [""]
 
 
@@ -120,12 +122,6 @@ def _stages(result: Result, units: DisplayUnits) -> list[str]:
         for j, r in enumerate(result.stage_records())
     ]
     return ["## Stages", "", *markdown_table(header, rows), ""]
-
-
-def _pairs(result: Result, units: DisplayUnits) -> list[str]:
-    """The binary pairs of the activity model, each with its origin."""
-    rows = pair_rows(result)
-    return ["## Binary parameters", "", *markdown_table(list(PAIR_HEADER), rows, [False] * 3), ""] if rows else []
 
 
 def _convergence(result: Result, units: DisplayUnits) -> list[str]:

@@ -24,6 +24,7 @@ try:
     from pathlib import Path
 
     from rich.console import Console
+    from rich.markup import escape
     from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
     from rich.table import Table
 
@@ -91,6 +92,7 @@ def command_run(args: argparse.Namespace) -> int:
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
     from .results import Result, write_result_json, write_stages_csv
+    from .audit.solution import RunFlags, run_flags
     from .engine import simulate
     from .thermo.package import ThermoPackage
 
@@ -105,6 +107,7 @@ def command_run(args: argparse.Namespace) -> int:
         if not isinstance(exc.result, Result):
             raise
         result = exc.result
+    result = result.with_extra(flags=RunFlags(run_flags(result)))
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
@@ -120,7 +123,7 @@ def command_run(args: argparse.Namespace) -> int:
     for table in summary_tables(result, units):
         console.print(table)
     for text in cautions(result)[:-1]:
-        console.print(f"[yellow]caution:[/] {text}")
+        console.print(f"[yellow]caution:[/] {escape(text)}")
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
     if not result.converged:
@@ -154,6 +157,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
     from .audit import shortcut_case
+    from .audit.flags import two_liquids
     from .case import load_case
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
@@ -181,6 +185,8 @@ def command_shortcut(args: argparse.Namespace) -> int:
         console.print(f"note: {note}")
     if report.enthalpy_message:
         console.print(f"[yellow]Ponchon-Savarit design not possible:[/] {report.enthalpy_message}")
+    for flag in filter(None, [two_liquids(report.liquid_split, "equilibrium-curve point")]):
+        console.print(f"[red]\\[{flag.severity}] {flag.code}:[/] {flag.message}")
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
     return 0
@@ -239,7 +245,7 @@ def command_audit(args: argparse.Namespace) -> int:
     console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
     for text in cautions(result)[:-1]:
         if not text.startswith("["):  # the flags are in their table
-            console.print(f"[yellow]caution:[/] {text}")
+            console.print(f"[yellow]caution:[/] {escape(text)}")
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
     if not result.converged:

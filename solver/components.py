@@ -15,7 +15,6 @@ are not offered: a distillation column needs each component's vapor pressure.
 
 from __future__ import annotations
 
-import difflib
 import fnmatch
 import math
 from dataclasses import dataclass
@@ -27,7 +26,7 @@ import CoolProp.CoolProp as CP
 from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of the normal boiling point
 
 from solver.errors import CaseError
-from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter, loose_key, name_index
+from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter
 from solver.thermo.data import ComponentData
 
 __all__ = ["ComponentInfo", "coolprop_rows", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]

@@ -26,6 +26,7 @@ from .results import Result
 from .shortening import MIN_STAGES, shortened_case, stretched_start
 from .streams import FlashedFeed, StageProfile
 from .thermo.flash import feed_state, feed_state_by_phase
+from .thermo.liquid_split import check_liquids
 from .thermo.package import ThermoPackage
 
 __all__ = [
@@ -407,8 +408,13 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
         except ThermoError as exc:
             converged = False
             message = f"solution outside the property models' range: {exc}"
+    split = None
+    if converged:
+        split = check_liquids(thermo.activity, result.temperature, result.x,
+                              range(1, result.temperature.size + 1), result.components)
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy,
-                               thermo=_with_range_notes(result.thermo, thermo.pure, result.temperature))
+                               thermo=_with_range_notes(result.thermo, thermo.pure, result.temperature),
+                               liquid_split=split)
 
 
 def _with_range_notes(record: dict, pure: Any, temperature: np.ndarray) -> dict:

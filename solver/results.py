@@ -31,6 +31,7 @@ import numpy as np
 
 from .case import Spec, StageDuty
 from .streams import FlashedFeed
+from .thermo.liquid_split import LiquidSplitCheck
 
 __all__ = [
     "SCHEMA",
@@ -88,6 +89,7 @@ class Result:
     post_check: Mapping[str, float] = field(default_factory=dict)
     strategy: Mapping[str, Any] = field(default_factory=dict)  # which rung of the fallback chain solved it
     extra: Mapping[str, ResultSection] = field(default_factory=dict)  # "shortcut", "audit": added downstream
+    liquid_split: LiquidSplitCheck | None = None  # every stage's liquid tested for two liquid phases
 
     @property
     def stage_count(self) -> int:
@@ -289,6 +291,7 @@ class Result:
                 "balances": self.balances(),
                 "post_check": dict(self.post_check),
                 "solution_strategy": dict(self.strategy),
+                "liquid_stability": None if self.liquid_split is None else self.liquid_split.as_json(),
                 "thermo": self.thermo,
                 "iteration_log": [dict(entry) for entry in self.iteration_log],
                 **{key: section.as_json() for key, section in self.extra.items()},

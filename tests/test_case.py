@@ -49,6 +49,7 @@ source = "handbook and edition, or paper"  # invented numbers above
 liquid = "nrtl"                        # ideal | wilson | nrtl | uniquac
 vapor = "ideal"
 enthalpy = "rigorous"                  # rigorous | cmo (equal molar latent heats, no sensible heat)
+missing_pairs = "ideal"                # the pairs with solventX are taken as ideal knowingly
 [thermo.nrtl.methanol.water]           # pair (i, j) = (methanol, water)
 term_over_temperature = ["-120.0 K", "420.0 K"]   # tau_ij = constant_term + term_over_temperature/T + ...; invented numbers
 # or energy form: dg = ["-250 cal/mol", "850 cal/mol"]   -> tau_ij = dg_ij / (R T)
@@ -102,6 +103,7 @@ source = "invented for tests"
 [thermo]
 liquid = "nrtl"
 enthalpy = "rigorous"
+missing_pairs = "ideal"
 [thermo.nrtl.methanol.water]
 dg = ["-250 cal/mol", "850 cal/mol"]
 alpha = { value = 0.3, slope = "0.001 1/K", reference_temperature = "350 K" }

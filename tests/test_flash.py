@@ -3,7 +3,7 @@ thermal condition q.
 
 The mixtures are methanol-water with the NRTL set of Smith, Van Ness & Abbott, *Introduction to
 Chemical Engineering Thermodynamics*, 7th ed., Table 12.5 (the conftest case), a
-methanol-ethanol-water ternary with that pair only, and benzene-toluene as an ideal solution.
+methanol-ethanol-water ternary with that pair only (the others taken as ideal, missing_pairs = "ideal"), and benzene-toluene as an ideal solution.
 Saturation temperatures of pure components are checked against CoolProp's ``AbstractState``.
 """
 
@@ -40,6 +40,7 @@ def ternary() -> ThermoPackage:
         names = ["methanol", "ethanol", "water"]
         [thermo]
         liquid = "nrtl"
+        missing_pairs = "ideal"
         [thermo.nrtl.methanol.water]
         dg = ["-253.88 cal/mol", "845.21 cal/mol"]
         alpha = 0.2994

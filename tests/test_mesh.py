@@ -100,7 +100,7 @@ distillate_rate = "4 mol/s"
 
 MODEL_PARAMETERS = {
     "ideal": "",
-    "wilson": """
+    "wilson": """missing_pairs = "unifac"
 [thermo.wilson.acetone.methanol]
 constant_term = [0.1, -0.2]
 term_over_temperature = ["-100 K", "150 K"]
@@ -119,7 +119,7 @@ term_over_temperature = ["-128 K", "425 K"]
 term_in_ln_temperature = [0.01, -0.02]
 alpha = 0.3
 """,
-    "uniquac": """
+    "uniquac": """missing_pairs = "unifac-dortmund"
 [thermo.uniquac_structure]
 acetone = { r = 2.57, q = 2.34 }
 methanol = { r = 1.43, q = 1.43 }
@@ -130,6 +130,8 @@ term_over_temperature = ["-60 K", "20 K"]
 term_over_temperature = ["-80 K", "-40 K"]
 term_times_temperature = [0.0001, 0.0002]
 """,
+    "unifac": "",  # built-in group assignments of acetone, methanol and water
+    "unifac-dortmund": "",
 }
 
 

@@ -451,11 +451,12 @@ def test_pair_order_in_the_case_does_not_matter():
     assert np.max(np.abs(k_forward / ideal.k_values(T, P, x).K - 1.0)) > 0.05
 
 
-def test_a_pair_without_parameters_is_ideal():
-    """In a ternary NRTL case that gives only the methanol-water pair, a methanol-ethanol
-    liquid (no water) is an ideal solution."""
+def test_a_pair_taken_as_ideal_is_ideal():
+    """In a ternary NRTL case that gives only the methanol-water pair and takes the missing
+    pairs as ideal (missing_pairs = "ideal"), a methanol-ethanol liquid (no water) is an ideal
+    solution."""
     case = case_from_text(
-        '[components]\nnames = ["methanol", "ethanol", "water"]\n[thermo]\nliquid = "nrtl"\n'
+        '[components]\nnames = ["methanol", "ethanol", "water"]\n[thermo]\nliquid = "nrtl"\nmissing_pairs = "ideal"\n'
         '[thermo.nrtl.methanol.water]\ndg = ["-253.88 cal/mol", "845.21 cal/mol"]\nalpha = 0.2994\n'
         'source = "Smith, Van Ness & Abbott, 7th ed., Table 12.5"\n'
         + CASE_TAIL.format(composition="{ methanol = 0.3, ethanol = 0.3, water = 0.4 }")

@@ -19,9 +19,10 @@ from ..case import Case, Spec
 from ..engine import simulate
 from ..errors import SpecError, ThermoError
 from ..results import Result
-from ..shortcut import design_binary, design_multicomponent, design_ponchon_savarit
+from ..shortcut import BinaryDesign, design_binary, design_multicomponent, design_ponchon_savarit
 from ..shortcut.mccabe_thiele import binary_problem, check_simple_column
 from ..thermo.flash import bubble_temperature
+from ..thermo.liquid_split import LiquidSplitCheck, check_liquids
 from ..thermo.package import ThermoPackage
 from .findings import AuditBasis, ShortcutReport
 from .targets import describe_spec
@@ -191,6 +192,7 @@ def shortcut_designs(case: Case, basis: AuditBasis, thermo: ThermoPackage) -> Sh
         if basis.method != "binary":
             return ShortcutReport(case, basis, design_multicomponent(design_case, thermo, reflux_factor=basis.reflux_factor))
         design = design_binary(design_case, thermo, reflux_factor=basis.reflux_factor)
+        split = _curve_split(design, thermo)
     except SpecError as exc:
         origin = "; ".join(f"{what}: {source}" for what, source in basis.sources.items())
         raise SpecError(
@@ -202,8 +204,18 @@ def shortcut_designs(case: Case, basis: AuditBasis, thermo: ThermoPackage) -> Sh
             design_case, thermo, reflux_ratio=design.reflux_ratio if basis.reflux_factor is not None else None
         )
     except (SpecError, ThermoError) as exc:
-        return ShortcutReport(case, basis, design, None, str(exc))
-    return ShortcutReport(case, basis, design, enthalpy_design)
+        return ShortcutReport(case, basis, design, None, str(exc), split)
+    return ShortcutReport(case, basis, design, enthalpy_design, liquid_split=split)
+
+
+def _curve_split(design: BinaryDesign, thermo: ThermoPackage) -> LiquidSplitCheck:
+    """The liquids of the McCabe-Thiele equilibrium curve at their bubble temperatures,
+    tested for a split into two liquid phases, one vectorized call (labels: light x)."""
+    curve = design.curve
+    light = thermo.names.index(curve.light)
+    x = np.zeros((curve.x.size, 2))
+    x[:, light], x[:, 1 - light] = curve.x, 1.0 - curve.x
+    return check_liquids(thermo.activity, curve.temperature, x, [round(float(v), 6) for v in curve.x], thermo.names)
 
 
 def shortcut_case(case: Case, *, thermo: ThermoPackage | None = None) -> ShortcutReport:

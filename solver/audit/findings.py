@@ -16,7 +16,8 @@ from ..case import Case, Spec
 from ..results import Result
 from ..shortcut import BinaryDesign, MinimumReflux, MulticomponentDesign
 from .cmo import CMOAudit
-from .flags import Flag
+from ..thermo.liquid_split import LiquidSplitCheck
+from .flags import Flag, two_liquids
 from .record import binary_design_record, cmo_deviation_record, multicomponent_design_record, cmo_record, flag_record, run_record, stage_search_record
 from .search import StageSearch
 from .targets import describe_spec
@@ -26,6 +27,7 @@ from .variants import RigorousRun
 __all__ = [
     "AuditBasis",
     "AuditReport",
+    "RunFlags",
     "ShortcutReport",
     "SolutionAudit",
     "full_audit_record",
@@ -73,6 +75,7 @@ class ShortcutReport:
     design: BinaryDesign | MulticomponentDesign
     enthalpy_design: BinaryDesign | None = None
     enthalpy_message: str = ""
+    liquid_split: LiquidSplitCheck | None = None  # the binary equilibrium curve's liquids tested for a split
 
     @property
     def is_binary(self) -> bool:
@@ -94,12 +97,27 @@ def shortcut_record(report: ShortcutReport) -> dict[str, Any]:
         "sources": dict(report.basis.sources),
         "notes": list(report.basis.notes),
     }
+    if report.liquid_split is not None:
+        record["liquid_stability"] = report.liquid_split.as_json()
+        flag = two_liquids(report.liquid_split, "equilibrium-curve point")
+        record["flags"] = [] if flag is None else [flag_record(flag)]
     if report.is_binary:
         record["ponchon_savarit"] = None if report.enthalpy_design is None else binary_design_record(report.enthalpy_design)
         if report.enthalpy_message:
             record["ponchon_savarit_error"] = report.enthalpy_message
     return record
 
+
+
+@dataclass(frozen=True)
+class RunFlags:
+    """The flags of :func:`~.solution.run_flags`, attached to a result by ``traystack run`` under
+    ``extra["flags"]``; ``as_json()`` is result.json's "flags"."""
+
+    flags: tuple[Flag, ...] = ()
+
+    def as_json(self) -> list[dict[str, Any]]:
+        return [flag_record(flag) for flag in self.flags]
 
 
 @dataclass(frozen=True, eq=False)
@@ -128,7 +146,8 @@ class SolutionAudit:
 def solution_audit_record(audit: SolutionAudit) -> dict[str, Any]:
     """result.json "audit" of :func:`~.solution.audit_solution` (``scope`` "solution")."""
     if not audit.applicable:
-        return {"scope": "solution", "applicable": False, "reason": audit.reason, "flags": []}
+        return {"scope": "solution", "applicable": False, "reason": audit.reason,
+                "flags": [flag_record(flag) for flag in audit.flags]}
     if audit.minimum_reflux_error:
         minimum_reflux: dict[str, Any] | None = {"error": audit.minimum_reflux_error}
     elif audit.minimum_reflux is not None:

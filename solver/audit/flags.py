@@ -4,7 +4,7 @@ the difference it measures stays within its threshold (:mod:`.thresholds`).
 
 Codes: PURITY_SHORTFALL, CMO_DEVIATION, FEED_CONDITION, DUTY_DIFFERENCE, TANGENT_PINCH,
 PINCH_MOVED, REFLUX_UNDER / REFLUX_OVER, STAGES_UNDER / STAGES_OVER, SEARCH_INCOMPLETE,
-SOLVE_FAILED. Numbers are SI.
+SOLVE_FAILED, TWO_LIQUIDS, PREDICTED_PAIRS. Numbers are SI.
 """
 
 from __future__ import annotations
@@ -17,6 +17,7 @@ import numpy as np
 
 from ..results import json_safe
 from ..shortcut import MinimumReflux
+from ..thermo.liquid_split import LiquidSplitCheck
 from .cmo import PINCH_CONTRAST, CMOAudit, composition_steps
 from .search import StageSearch
 from .thresholds import SEVERITIES, severity_of
@@ -36,6 +37,8 @@ __all__ = [
     "solve_failed",
     "stage_difference",
     "tangent_pinch",
+    "predicted_pairs",
+    "two_liquids",
 ]
 
 
@@ -318,4 +321,47 @@ def solve_failed(stages: int, feed_stage: int, reflux_ratio: float, message: str
         f"the shortcut's column ({stages} stages, feed on stage {feed_stage}, R = {reflux_ratio:.4g}) did not "
         f"converge rigorously: {message}",
         {"stages": stages, "feed_stage": feed_stage, "reflux_ratio": reflux_ratio},
+    )
+
+
+def _composition(names: Sequence[str], x: np.ndarray) -> str:
+    return ", ".join(f"{name} {value:.4f}" for name, value in zip(names, x))
+
+
+def two_liquids(check: LiquidSplitCheck | None, where: str = "stage") -> Flag | None:
+    """TWO_LIQUIDS: liquids (stages of a solution, or points of the shortcut's equilibrium
+    curve) that the activity model says would split into two liquid phases (tangent-plane test,
+    Michelsen 1982); the one-liquid answer is not physical there. Always serious."""
+    if check is None or not check.split:
+        return None
+    names = check.components
+    worst = min(check.split, key=lambda k: check.minimum_tpd[k])
+    labels = ", ".join(str(label) for label in check.split_labels)
+    return Flag(
+        "TWO_LIQUIDS", "serious",
+        f"the {check.model} liquid would split into two liquid phases on {where}(s) {labels}: e.g. on {where} "
+        f"{check.labels[worst]} the liquid ({_composition(names, check.compositions[worst])}) is unstable against a "
+        f"second liquid ({_composition(names, check.trial_compositions[worst])}); a one-liquid solution is not "
+        "physical there (a decanter, or a model and parameters fitted to liquid-liquid data, is needed)",
+        {
+            where + "s": list(check.split_labels),
+            "liquids": [check.compositions[k].tolist() for k in check.split],
+            "second_liquids": [check.trial_compositions[k].tolist() for k in check.split],
+            "minimum_tpd": [float(check.minimum_tpd[k]) for k in check.split],
+        },
+    )
+
+
+def predicted_pairs(thermo_record: Mapping[str, Any]) -> Flag | None:
+    """PREDICTED_PAIRS: binary parameters the case did not give, predicted from UNIFAC
+    (``missing_pairs``); named so that a reviewer checks them against data. Info."""
+    predicted = [o for o in thermo_record.get("pair_origins", ()) if o.get("origin") == "predicted"]
+    if not predicted:
+        return None
+    pairs = ", ".join(f"{o['pair'][0]}-{o['pair'][1]} (from {o['unifac_model']})" for o in predicted)
+    return Flag(
+        "PREDICTED_PAIRS", "info",
+        f"{thermo_record.get('liquid', '').upper()} parameters predicted, not measured, for {pairs}: fitted to UNIFAC "
+        "ln gamma over the column's temperature range; check them against equilibrium data where it matters",
+        {"pairs": [list(o["pair"]) for o in predicted], "rms_ln_gamma": [o["rms_ln_gamma"] for o in predicted]},
     )

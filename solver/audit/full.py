@@ -37,9 +37,10 @@ from .basis import audit_basis, shortcut_designs
 from .cmo import CMOAudit, cmo_audit
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
                     pinch_moved_in_column, purity_shortfall, reflux_difference, search_incomplete, solve_failed,
-                    stage_difference, tangent_pinch)
+                    stage_difference, tangent_pinch, two_liquids)
 from .findings import AuditReport, ShortcutReport
 from .search import StageSearch, stage_search
+from .solution import run_flags
 from .targets import describe_spec
 from .thresholds import resolve_thresholds
 from .variants import MAX_SOLVES, MIN_SOLVES, RigorousColumns, RigorousRun, run_summary, try_solve
@@ -111,6 +112,8 @@ def audit_case(
     else:
         flags = [solve_failed(column.stages, column.feed_stage, column.reflux_ratio, solution.message)]
     case_result = shortcut.basis.case_result
+    flags += run_flags(case_result if case_result is not None and case_result.converged else solution)
+    flags.append(two_liquids(shortcut.liquid_split, "equilibrium-curve point"))
     case_run = None if case_result is None else run_summary(
         "rigorous, the case as specified", case_result, case.column.stages, case.feeds[0].stage, case.specs,
         column.targets, column.feed_composition)

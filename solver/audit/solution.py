@@ -21,11 +21,17 @@ from ..thermo.package import ThermoPackage
 from .basis import light_index
 from .cmo import cmo_audit, cmo_duty_estimates
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
-                    tangent_pinch)
-from .findings import SolutionAudit
+                    predicted_pairs, tangent_pinch, two_liquids)
+from .findings import RunFlags, SolutionAudit
 from .thresholds import resolve_thresholds
 
-__all__ = ["SolutionAudit", "audit_solution"]
+__all__ = ["RunFlags", "SolutionAudit", "audit_solution", "run_flags"]
+
+
+def run_flags(result: Result) -> tuple[Flag, ...]:
+    """The flags any solution raises without the shortcut: stages whose liquid would split
+    (TWO_LIQUIDS) and binary parameters predicted rather than given (PREDICTED_PAIRS)."""
+    return by_severity([two_liquids(result.liquid_split), predicted_pairs(result.thermo)])
 
 
 def audit_solution(
@@ -40,17 +46,20 @@ def audit_solution(
     treat (side draws, several feeds, no condenser or reboiler) gets ``applicable`` False and
     no flags."""
     chosen = resolve_thresholds(case, thresholds)
+    own = run_flags(result)
     try:
         check_simple_column(case, "audit's")
     except SpecError as exc:
-        return result.with_extra(audit=SolutionAudit(False, str(exc)))
+        return result.with_extra(audit=SolutionAudit(False, str(exc), flags=own))
     if not result.converged:
-        return result.with_extra(audit=SolutionAudit(False, "the solution did not converge"))
+        return result.with_extra(audit=SolutionAudit(False, "the solution did not converge", flags=own))
     thermo = thermo or ThermoPackage.from_case(case)
     try:
         audit = _audit(case, result, thermo, chosen)
     except (SpecError, ThermoError) as exc:
-        audit = SolutionAudit(False, str(exc))
+        audit = SolutionAudit(False, str(exc), flags=own)
+    else:
+        audit = dataclasses.replace(audit, flags=by_severity([*audit.flags, *own]))
     return result.with_extra(audit=audit)
 
 

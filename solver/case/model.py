@@ -93,12 +93,14 @@ class BinaryParameters:
 
 @dataclass(frozen=True)
 class ThermoOptions:
-    liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac
+    liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac | unifac | unifac-dortmund
     vapor: str = "ideal"
     enthalpy: str = "rigorous"  # rigorous | cmo
     pairs: tuple[BinaryParameters, ...] = ()
     uniquac_structure: Mapping[str, tuple[float, float]] = field(default_factory=_frozen_mapping)  # name -> (r, q)
     wilson_volumes: Mapping[str, float] = field(default_factory=_frozen_mapping)  # name -> m3/mol, for energy-form Wilson
+    groups: Mapping[str, Mapping[str, int]] = field(default_factory=_frozen_mapping)  # name -> {UNIFAC subgroup: count}
+    missing_pairs: str = ""  # "" (a missing pair is an error) | unifac | unifac-dortmund | ideal
 
 
 @dataclass(frozen=True)

@@ -28,12 +28,16 @@ from solver.case.fields import (
     read_text,
 )
 from solver.case.model import BinaryParameters, ThermoOptions
+from solver.errors import CaseError
 
 __all__ = ["read_thermo_table"]
 
-_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac")
+_UNIFAC_MODELS = ("unifac", "unifac-dortmund")
+_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac") + _UNIFAC_MODELS
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
-_THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + ("wilson_volumes", "uniquac_structure")
+_MISSING_PAIRS = _UNIFAC_MODELS + ("ideal",)
+_THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + (
+    "wilson_volumes", "uniquac_structure", "groups", "missing_pairs")
 #: model -> the key of its energy form
 _ENERGY_FORM_KEY = {"nrtl": "dg", "wilson": "dlambda", "uniquac": "du"}
 #: The four terms of a binary parameter: key -> (kind of quantity, how a message names it)
@@ -77,6 +81,8 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
     pairs: tuple[BinaryParameters, ...] = ()
     if liquid in _ACTIVITY_MODELS and liquid in table:
         pairs = _read_pairs(liquid, table[liquid], names, wilson_volumes, at)
+    missing_pairs = _read_missing_pairs(table, liquid, pairs, names, at)
+    groups = read_unifac_groups(table, liquid, missing_pairs, names, at)
     return ThermoOptions(
         liquid=liquid,
         vapor=vapor,
@@ -84,7 +90,62 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
         pairs=pairs,
         uniquac_structure=MappingProxyType(uniquac_structure),
         wilson_volumes=MappingProxyType(wilson_volumes),
+        groups=MappingProxyType(groups),
+        missing_pairs=missing_pairs,
     )
+
+
+def _read_missing_pairs(
+    table: Mapping, liquid: str, pairs: tuple[BinaryParameters, ...], names: tuple[str, ...], at: At
+) -> str:
+    """``missing_pairs``: how the pairs of a binary-parameter model without parameters in the
+    case are taken. Without it a missing pair is an error naming the pair."""
+    if "missing_pairs" in table and liquid in _UNIFAC_MODELS:
+        at.child("missing_pairs").fail(
+            f"not used: thermo.liquid is {liquid!r}", table["missing_pairs"], "missing_pairs only with " + ", ".join(_ACTIVITY_MODELS) + " (an ideal liquid ignores it)"
+        )
+    if liquid not in _ACTIVITY_MODELS:
+        return ""
+    choice = ""
+    if "missing_pairs" in table:
+        choice = read_choice(table["missing_pairs"], at.child("missing_pairs"), _MISSING_PAIRS)
+    given = {frozenset((pair.first, pair.second)) for pair in pairs}
+    missing = [f"{a}.{b}" for k, a in enumerate(names) for b in names[k + 1:] if frozenset((a, b)) not in given]
+    if missing and not choice:
+        at.child(liquid).fail(
+            f"no {liquid.upper()} parameters for the pair(s) " + ", ".join(missing)
+            + f"; give each as [thermo.{liquid}.{missing[0]}], or set missing_pairs = \"unifac\" (or"
+            " \"unifac-dortmund\") in [thermo] to predict them from UNIFAC, or missing_pairs = \"ideal\" to take"
+            " them as ideal knowingly",
+            expected="a parameter table for every pair of components",
+        )
+    return choice
+
+
+def read_unifac_groups(
+    table: Mapping, liquid: str, missing_pairs: str, names: tuple[str, ...], at: At
+) -> dict[str, dict[str, int]]:
+    """``[thermo.groups.NAME]`` subgroup = count, for the components without a built-in UNIFAC
+    group assignment (or to replace it); checked against the published tables of the variant in
+    use, every component then having groups and every group pair published interactions."""
+    model = liquid if liquid in _UNIFAC_MODELS else missing_pairs if missing_pairs in _UNIFAC_MODELS else ""
+    if not model:
+        if "groups" in table:
+            at.child("groups").fail(
+                "not used: neither thermo.liquid nor thermo.missing_pairs is a UNIFAC model",
+                expected='groups with liquid = "unifac" or "unifac-dortmund", or missing_pairs = "unifac"',
+            )
+        return {}
+    from solver.thermo.unifac import DortmundUNIFAC, UNIFAC
+
+    groups_at = at.child("groups")
+    written = _per_component(table.get("groups", {}), names, groups_at, lambda value, item_at: dict(read_table(value, item_at)))
+    model_class = UNIFAC if model == "unifac" else DortmundUNIFAC
+    try:
+        model_class.from_components(names, written, where=groups_at.key)
+    except CaseError as exc:
+        raise CaseError(exc.problem, file=at.file, key=exc.key, value=exc.value, expected=exc.expected) from None
+    return written
 
 
 def _per_component(value: Any, names: tuple[str, ...], at: At, read: Reader) -> dict[str, Any]:

@@ -42,8 +42,8 @@ def cautions(result: Result) -> list[str]:
         )
     found.extend(result.case_warnings)
     found.extend(f"Beyond a handbook correlation's range: {note}." for note in (result.thermo or {}).get("range_notes", []))
-    audit = result.extra.get("audit")
-    for flag in audit.flags if audit is not None else ():
+    audit, own = result.extra.get("audit"), result.extra.get("flags")
+    for flag in (*(audit.flags if audit is not None else ()), *(own.flags if own is not None else ())):
         found.append(f"[{flag.severity}] {flag.code}: {flag.message}".strip())
     found.append(CAUTION)
     return found

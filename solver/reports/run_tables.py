@@ -6,9 +6,28 @@ from __future__ import annotations
 from rich.table import Table
 
 from ..results import Result
-from .display import DisplayUnits
+from .display import DisplayUnits, screen_table
 
-__all__ = ["spec_rows", "stage_label", "summary_tables"]
+__all__ = ["PAIR_HEADER", "pair_rows", "spec_rows", "stage_label", "summary_tables"]
+
+PAIR_HEADER = ("pair", "origin", "source, or how it was predicted")
+
+
+def pair_rows(result: Result) -> list[list[str]]:
+    """The binary pairs of the activity model and where each comes from: the case file (with
+    its source) or predicted (method, UNIFAC variant, fitted terms and the fit's rms)."""
+    rows = []
+    for origin in result.thermo.get("pair_origins", ()):
+        pair = "-".join(origin["pair"])
+        if origin["origin"] == "predicted":
+            const, over = origin["constant_term"], origin["term_over_temperature_K"]
+            how = (f"fitted to {origin['unifac_model']} ln gamma, {origin['temperature_range_K'][0]:.1f}-"
+                   f"{origin['temperature_range_K'][1]:.1f} K: constant terms {const[0]:.4g}, {const[1]:.4g}; terms over T "
+                   f"{over[0]:.5g} K, {over[1]:.5g} K; rms ln gamma {origin['rms_ln_gamma']:.2g}")
+            rows.append([pair, "predicted", how])
+        else:
+            rows.append([pair, "case file", origin.get("source") or "(no source given)"])
+    return rows
 
 
 def stage_label(result: Result, j: int) -> str:
@@ -46,7 +65,11 @@ def spec_rows(result: Result, units: DisplayUnits) -> list[tuple[str, str]]:
 def summary_tables(result: Result, units: DisplayUnits) -> list[Table]:
     """Overview (status, ratios, duties, closures), specifications, products and the stage
     table, in display units."""
-    return [_overview(result, units), _specifications(result, units), _products(result, units), _stages(result, units)]
+    tables = [_overview(result, units), _specifications(result, units), _products(result, units), _stages(result, units)]
+    rows = pair_rows(result)
+    if rows:
+        tables.append(screen_table("binary parameters", PAIR_HEADER, rows, left=3))
+    return tables
 
 
 def _overview(result: Result, units: DisplayUnits) -> Table:

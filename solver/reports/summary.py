@@ -13,7 +13,7 @@ from ..results import Result, write_atomic
 from .audit_tables import audit_markdown
 from .cautions import cautions
 from .display import DisplayUnits, markdown_table
-from .run_tables import spec_rows, stage_label
+from .run_tables import PAIR_HEADER, pair_rows, spec_rows, stage_label
 
 __all__ = ["summary_markdown", "write_summary"]
 
@@ -62,8 +62,10 @@ def _specifications(result: Result, units: DisplayUnits) -> list[str]:
         f"{efficiency}. Thermo: liquid {result.thermo.get('liquid', '?')}, vapor {result.thermo.get('vapor', '?')}, "
         f"enthalpy {result.enthalpy_model}.",
     ]
-    sources = sorted({pair.get("source", "") for pair in result.thermo.get("pairs", []) if pair.get("source")})
-    lines += [f"Binary parameters: {source}" for source in sources]
+    rows = pair_rows(result)
+    if rows:
+        lines += ["", "Binary parameters, each with its origin:", "",
+                  *markdown_table(list(PAIR_HEADER), rows, [False] * 3)]
     return lines + [""]
 
 

@@ -29,7 +29,9 @@ from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of t
 from ..components import ComponentInfo, component_info
 from ..errors import CaseError, ThermoError
 from . import activity as activity_models
+from .predicted_pairs import PredictedPair, missing_pairs, predict_pair
 from .pure import PureComponents
+from .unifac import DortmundUNIFAC, UNIFAC
 
 if TYPE_CHECKING:  # the case reader is upstream; only its data model is read here
     from ..case import Case
@@ -63,16 +65,20 @@ class PhaseEnthalpy:
     excess: np.ndarray
 
 
-def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None):
-    """Build the case's activity model, with parameter matrices in the component order."""
+def _activity_model(case: Case, names: Sequence[str], pairs: Sequence = ()):
+    """Build the case's activity model, with parameter matrices in the component order;
+    ``pairs`` are predicted pairs added to the case's own."""
     options = case.thermo
     count = len(names)
     if options.liquid == "ideal":
         return activity_models.IdealSolution(count)
+    if options.liquid in ("unifac", "unifac-dortmund"):
+        model = UNIFAC if options.liquid == "unifac" else DortmundUNIFAC
+        return model.from_components(list(names), dict(options.groups), where="thermo.groups")
     index = {name: position for position, name in enumerate(names)}
     terms = {name: np.zeros((count, count)) for name in activity_models.TERMS}
     alpha = {name: np.zeros((count, count)) for name in ("alpha", "alpha_slope", "alpha_reference_temperature")}
-    for pair in options.pairs:
+    for pair in (*options.pairs, *pairs):
         if pair.model != options.liquid:
             continue
         i, j = index[pair.first], index[pair.second]
@@ -81,7 +87,7 @@ def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None
         for name, matrix in alpha.items():
             matrix[i, j] = matrix[j, i] = getattr(pair, name) or 0.0
     if options.liquid == "nrtl":
-        # a pair without parameters is ideal (tau = 0); alpha then does not matter but must be finite
+        # a pair taken as ideal (missing_pairs = "ideal") has tau = 0; alpha must still be finite
         alpha["alpha"] = np.where(alpha["alpha"] == 0.0, activity_models.NRTL_DEFAULT_ALPHA, alpha["alpha"])
         np.fill_diagonal(alpha["alpha"], 0.0)
         return activity_models.NRTL(*terms.values(), **alpha)
@@ -101,6 +107,30 @@ def _activity_model(case: Case, names: Sequence[str], volumes: np.ndarray | None
         q = np.array([options.uniquac_structure[name][1] for name in names])
         return activity_models.UNIQUAC(*terms.values(), r=r, q=q)
     raise CaseError("unknown liquid model", file=case.source_file, key="thermo.liquid", value=options.liquid)
+
+
+def _predicted_pairs(case: Case, pure: PureComponents) -> list[PredictedPair]:
+    """The pairs the case does not give, fitted to UNIFAC over the column's temperature range
+    when ``missing_pairs`` asks for it (:mod:`.predicted_pairs`)."""
+    options = case.thermo
+    if options.liquid not in ("nrtl", "wilson", "uniquac") or options.missing_pairs not in ("unifac", "unifac-dortmund"):
+        return []
+    wanted = missing_pairs(case.component_names, options.pairs)
+    if not wanted:
+        return []
+    pressures = np.array([min(case.column.pressures), max(case.column.pressures)])
+    boiling = ThermoPackage(pure, activity_models.IdealSolution(len(case.component_names))).saturation_temperatures(pressures)
+    index = {name: k for k, name in enumerate(case.component_names)}
+    predicted = []
+    for first, second in wanted:
+        i, j = index[first], index[second]
+        temperatures = (float(min(boiling[0, i], boiling[0, j])), float(max(boiling[1, i], boiling[1, j])))
+        structure = None
+        if options.liquid == "uniquac":
+            structure = tuple(zip(options.uniquac_structure[first], options.uniquac_structure[second]))
+        predicted.append(predict_pair(options.liquid, (first, second), options.missing_pairs, temperatures,
+                                      groups=dict(options.groups), structure=structure))
+    return predicted
 
 
 class ThermoPackage:
@@ -136,7 +166,8 @@ class ThermoPackage:
     def from_case(cls, case: Case) -> "ThermoPackage":
         infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
         pure = PureComponents(infos, case.component_data)
-        activity = _activity_model(case, case.component_names, None)
+        predicted = _predicted_pairs(case, pure)
+        activity = _activity_model(case, case.component_names, [p.parameters for p in predicted])
         description = {
             "liquid": case.thermo.liquid,
             "vapor": case.thermo.vapor,
@@ -160,6 +191,12 @@ class ThermoPackage:
                 }
                 for pair in case.thermo.pairs
             ],
+            "pair_origins": [
+                {"pair": [pair.first, pair.second], "origin": "case file", "source": pair.source}
+                for pair in case.thermo.pairs
+            ]
+            + [p.describe() for p in predicted],
+            "missing_pairs": case.thermo.missing_pairs or None,
             "uniquac_structure": {name: list(rq) for name, rq in case.thermo.uniquac_structure.items()},
         }
         return cls(pure, activity, enthalpy=case.thermo.enthalpy, description=description)

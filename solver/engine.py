@@ -120,7 +120,7 @@ def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict
     l, v = L[:, None] * x, V[:, None] * y
     A_L, A_V = graph.liquid_inflow, graph.vapor_inflow
     balance = l + U[:, None] * x + v + W[:, None] * y - A_L @ l - A_V @ v - feeds
-    K = thermo.k_values(T, P, x, derivatives=False).K
+    K = thermo.k_values(T, P, x, derivatives=False, y=y).K
     vapor_in = A_V @ v
     V_in = vapor_in.sum(axis=1)
     y_in = vapor_in / np.maximum(V_in, 1e-300)[:, None]
@@ -128,11 +128,11 @@ def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict
     equilibrium = y - E * K * x - (1 - E) * y_in
     if result.condenser == "total":
         equilibrium[0] = y[0] - x[0]
-    h_L = thermo.liquid_enthalpy(T, x).molar
-    h_V = thermo.vapor_enthalpy(T, y).molar
+    h_L = thermo.liquid_enthalpy(T, x, pressure=P).molar
+    h_V = thermo.vapor_enthalpy(T, y, pressure=P).molar
     if result.condenser == "total":
         h_V = h_V.copy()
-        h_V[0] = thermo.liquid_enthalpy(T[:1], y[:1]).molar[0]
+        h_V[0] = thermo.liquid_enthalpy(T[:1], y[:1], pressure=P[:1]).molar[0]
     energy = (L + U) * h_L + (V + W) * h_V - A_L @ (L * h_L) - A_V @ (V * h_V) - feed_h - result.duty
     energy_scale = scale * thermo.cmo_latent_heat
     balances = result.balances()
@@ -213,7 +213,7 @@ def result_from_solution(case: Case, system: MeshSystem, newton: NewtonResult) -
     post-check comes after)."""
     thermo, graph = system.thermo, system.graph
     profile = system.profile(newton.X)
-    K = thermo.k_values(profile.temperature, graph.pressures, profile.x, derivatives=False).K
+    K = thermo.k_values(profile.temperature, graph.pressures, profile.x, derivatives=False, y=profile.y).K
     h_L, h_V = system.stage_enthalpies(newton.X)
     duties = system.stage_duties(newton.X)
     return Result(
@@ -402,9 +402,10 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
                 "or too hot for them)"
             )
     if converged:
-        try:
-            thermo.pure.check_temperature(result.temperature)
-        except ThermoError as exc:
+        problem = thermo.range_problem(
+            result.temperature, result.pressure, result.x, result.y, skip_first=result.condenser == "total"
+        )
+        if problem is not None:
             converged = False
-            message = f"solution outside the property models' range: {exc}"
+            message = f"solution outside the property models' range: {problem}"
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)

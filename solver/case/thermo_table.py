@@ -27,13 +27,14 @@ from solver.case.fields import (
     read_table,
     read_text,
 )
-from solver.case.model import BinaryParameters, ThermoOptions
+from solver.case.model import BinaryParameters, InteractionParameter, ThermoOptions
 
 __all__ = ["read_thermo_table"]
 
-_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac")
+_CUBIC_MODELS = ("peng-robinson", "soave-redlich-kwong")
+_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac") + _CUBIC_MODELS
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
-_THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + ("wilson_volumes", "uniquac_structure")
+_THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + ("wilson_volumes", "uniquac_structure", "interaction")
 #: model -> the key of its energy form
 _ENERGY_FORM_KEY = {"nrtl": "dg", "wilson": "dlambda", "uniquac": "du"}
 #: The four terms of a binary parameter: key -> (kind of quantity, how a message names it)
@@ -59,7 +60,7 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
     table = read_table(value, at)
     check_keys(table, at, _THERMO_KEYS)
     liquid = read_choice(table.get("liquid", "ideal"), at.child("liquid"), _LIQUID_MODELS)
-    vapor = read_choice(table.get("vapor", "ideal"), at.child("vapor"), ("ideal",))
+    vapor = _read_vapor(table, liquid, at)
     enthalpy = read_choice(table.get("enthalpy", "rigorous"), at.child("enthalpy"), ("rigorous", "cmo"))
     for model in _ACTIVITY_MODELS:
         if model in table and model != liquid:
@@ -77,7 +78,16 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
     pairs: tuple[BinaryParameters, ...] = ()
     if liquid in _ACTIVITY_MODELS and liquid in table:
         pairs = _read_pairs(liquid, table[liquid], names, wilson_volumes, at)
+    interaction: tuple[InteractionParameter, ...] = ()
+    if "interaction" in table:
+        if liquid not in _CUBIC_MODELS:
+            at.child("interaction").fail(
+                f"not used: thermo.liquid is {liquid!r}", "interaction", "k_ij only with an equation of state: "
+                + " or ".join(repr(m) for m in _CUBIC_MODELS)
+            )
+        interaction = _read_interaction(table["interaction"], names, at.child("interaction"))
     return ThermoOptions(
+        interaction=interaction,
         liquid=liquid,
         vapor=vapor,
         enthalpy=enthalpy,
@@ -85,6 +95,44 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
         uniquac_structure=MappingProxyType(uniquac_structure),
         wilson_volumes=MappingProxyType(wilson_volumes),
     )
+
+
+def _read_vapor(table: Mapping, liquid: str, at: At) -> str:
+    """With an equation of state for the liquid the vapor is the same equation (the default);
+    otherwise the vapor is ideal."""
+    vapor_at = at.child("vapor")
+    if liquid in _CUBIC_MODELS:
+        vapor = read_choice(table.get("vapor", liquid), vapor_at, _CUBIC_MODELS + ("ideal",))
+        if vapor != liquid:
+            vapor_at.fail(f"with liquid = {liquid!r} both phases come from that equation of state", vapor,
+                          f"{liquid!r} (or leave vapor out)")
+        return vapor
+    return read_choice(table.get("vapor", "ideal"), vapor_at, ("ideal",))
+
+
+_INTERACTION_FIELDS = {
+    "k": Field(lambda value, at: read_real(value, at, minimum=-1.0, maximum=1.0), required=True),
+    "source": Field(lambda value, at: read_text(value, at, allow_empty=False), required=True),
+}
+
+
+def _read_interaction(value: Any, names: tuple[str, ...], at: At) -> tuple[InteractionParameter, ...]:
+    """[thermo.interaction.I.J] k = ..., source = "..." for each pair given (others zero)."""
+    expected = 'tables [thermo.interaction.NAME1.NAME2] with k = 0.01 and source = "..."'
+    found: dict[frozenset, InteractionParameter] = {}
+    for first_written, inner in read_table(value, at, expected).items():
+        first_at = at.child(first_written)
+        first = component_key(first_written, names, first_at)
+        for second_written, entry in read_table(inner, first_at, expected).items():
+            pair_at = first_at.child(second_written)
+            second = component_key(second_written, names, pair_at)
+            if first == second:
+                pair_at.fail("a pair needs two different components", second_written)
+            if frozenset((first, second)) in found:
+                pair_at.fail("pair given twice (k_ij = k_ji: give it once)", second_written)
+            fields = read_fields(entry, pair_at, _INTERACTION_FIELDS, '{ k = 0.01, source = "..." }')
+            found[frozenset((first, second))] = InteractionParameter(first, second, fields["k"], fields["source"])
+    return tuple(found.values())
 
 
 def _per_component(value: Any, names: tuple[str, ...], at: At, read: Reader) -> dict[str, Any]:

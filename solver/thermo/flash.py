@@ -105,7 +105,7 @@ def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) 
     lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
     x = y.copy()
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         ratio = y / k.K
         total = ratio.sum(axis=1)
         new_x = ratio / total[:, None]
@@ -175,7 +175,7 @@ def flash_tp(thermo, temperature, pressure, z, max_iterations: int = 300) -> Fla
     y = z.copy()
     beta = np.full(z.shape[0], 0.5)
     for _ in range(max_iterations):
-        K = thermo.k_values(temperature, pressure, x, derivatives=False).K
+        K = thermo.k_values(temperature, pressure, x, derivatives=False, y=y).K
         beta = rachford_rice(z, K)
         denominator = 1.0 + beta[:, None] * (K - 1.0)
         new_x = z / denominator
@@ -207,9 +207,10 @@ def flash_p_vapor_fraction(thermo, pressure, z, vapor_fraction, max_iterations: 
     dew, x_dew = dew_temperature(thermo, pressure, z)
     temperature = bubble + beta * (dew - bubble)
     x = z * (1 - beta[:, None]) + x_dew * beta[:, None]
+    y = y_bubble * (1 - beta[:, None]) + z * beta[:, None]
     upper = _upper_temperature(thermo)
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         denominator = 1.0 + beta[:, None] * (k.K - 1.0)
         value = np.einsum("nc,nc->n", z, (k.K - 1.0) / denominator)
         slope = np.einsum("nc,nc,nc->n", z, k.K * k.d_ln_K_dT, 1.0 / denominator**2)
@@ -217,13 +218,15 @@ def flash_p_vapor_fraction(thermo, pressure, z, vapor_fraction, max_iterations: 
         temperature = np.clip(temperature + step, np.minimum(bubble, dew) - 1.0, min(upper, float(np.max(dew)) + 1.0))
         new_x = z / denominator
         new_x = new_x / new_x.sum(axis=1, keepdims=True)
-        change = np.max(np.abs(new_x - x))
-        x = new_x
+        new_y = k.K * new_x
+        new_y = new_y / new_y.sum(axis=1, keepdims=True)
+        change = max(np.max(np.abs(new_x - x)), np.max(np.abs(new_y - y)))
+        x, y = new_x, new_y
         if np.all(np.abs(value) < 1e-12) and change < 1e-12:
             break
     else:
         raise ThermoError(f"flash at vapor fraction {beta.tolist()} did not converge")
-    K = thermo.k_values(temperature, pressure, x, derivatives=False).K
+    K = thermo.k_values(temperature, pressure, x, derivatives=False, y=y).K
     y = K * x
     y = y / y.sum(axis=1, keepdims=True)
     return FlashResult(temperature, pressure, beta, x, y)
@@ -296,7 +299,7 @@ def feed_state(
     liquid and vapor of the feed composition at ``reference_pressure`` (the pressure of the
     stage it enters; default ``pressure``): the feed's enthalpy is kept across the valve."""
     z, p, flash, bubble, dew = _feed_phases(thermo, composition, pressure, temperature, vapor_fraction)
-    h_liquid, h_vapor = thermo.rigorous_enthalpies(flash.temperature, flash.x, flash.y)
+    h_liquid, h_vapor = thermo.rigorous_enthalpies(flash.temperature, flash.x, flash.y, pressure=p)
     beta = float(flash.vapor_fraction[0])
     enthalpy = (1.0 - beta) * float(h_liquid[0]) + beta * float(h_vapor[0])
     if reference_pressure is not None and reference_pressure != pressure:
@@ -305,8 +308,9 @@ def feed_state(
         dew_ref, _ = dew_temperature(thermo, p_ref, z)
     else:
         bubble_ref, dew_ref = bubble, dew
-    saturated_liquid, _ = thermo.rigorous_enthalpies(bubble_ref, z, z)
-    _, saturated_vapor = thermo.rigorous_enthalpies(dew_ref, z, z)
+        p_ref = p
+    saturated_liquid, _ = thermo.rigorous_enthalpies(bubble_ref, z, z, pressure=p_ref)
+    _, saturated_vapor = thermo.rigorous_enthalpies(dew_ref, z, z, pressure=p_ref)
     q = (float(saturated_vapor[0]) - enthalpy) / (float(saturated_vapor[0]) - float(saturated_liquid[0]))
     return FeedState(
         temperature=float(flash.temperature[0]),

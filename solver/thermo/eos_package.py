@@ -148,6 +148,28 @@ class CubicThermoPackage(ThermoPackage):
                 break
         return y
 
+    def wilson_bubble_point(self, pressure, x) -> tuple[np.ndarray, np.ndarray]:
+        """Bubble temperature (K) and vapor of ``x (n,c)`` at ``pressure (n,)`` Pa by Wilson's
+        K-values, ``K_i = (Pc_i/P) exp(5.373 (1 + w_i)(1 - Tc_i/T))`` (Wilson 1968, as in
+        Michelsen and Mollerup ch. 6): K depends on T alone, so the bubble point has no
+        trivial solution; a start for the equation of state. Newton's method in 1/T."""
+        x = np.atleast_2d(np.asarray(x, dtype=float))
+        x = x / x.sum(axis=1, keepdims=True)
+        P = np.broadcast_to(np.asarray(pressure, dtype=float), (x.shape[0],))
+        par = self.parameters
+        slope = 5.373 * (1.0 + par.acentric_factor) * par.critical_temperature  # d ln K / d(1/T) = -slope
+        inverse = np.full(x.shape[0], 1.0 / np.mean(par.critical_temperature))
+        for _ in range(100):
+            K = wilson_k_values(par, 1.0 / inverse, P)
+            total = np.einsum("nc,nc->n", K, x)
+            step = np.log(total) / (np.einsum("nc,nc,c->n", K, x, slope) / total)
+            inverse = np.clip(inverse + step, 1.0 / (2.0 * np.max(par.critical_temperature)), 10.0 / np.min(par.critical_temperature))
+            if np.all(np.abs(step) < 1e-12 * inverse):
+                break
+        K = wilson_k_values(par, 1.0 / inverse, P)
+        y = K * x
+        return 1.0 / inverse, y / y.sum(axis=1, keepdims=True)
+
     # ------------------------------------------------------------------ enthalpies
     def _pressure(self, temperature: np.ndarray, pressure) -> np.ndarray:
         if pressure is None:
@@ -183,6 +205,7 @@ class CubicThermoPackage(ThermoPackage):
     def stage_properties(self, temperature, pressure, x, y) -> StageProperties:
         """K-values, enthalpies and all derivatives in one pass of the equation of state."""
         T = np.asarray(temperature, dtype=float)
+        x, y = _phase_composition(x), _phase_composition(y)
         props = cubic_stage_properties(self.parameters, T, pressure, x, y, self.pure.ideal_gas_enthalpy)
         kv = props.k_values
         k_values = KValues(kv.K, kv.d_ln_K_dT, kv.d_ln_K_dx, kv.d_ln_K_dy)
@@ -214,6 +237,18 @@ class CubicThermoPackage(ThermoPackage):
             f"{check.largest_ln_k[j]:.3g} at {T[j]:.2f} K and {P[j] / 1e5:.4g} bar; the stage is at or above "
             f"the critical point of its mixture ({int(one_phase.sum())} such stage(s))"
         )
+
+
+def _phase_composition(x) -> np.ndarray:
+    """``x (n,c)`` with the rows of a phase that is not there (all flows zero, a trial point of
+    Newton's line search) replaced by equal fractions, so the equation of state stays finite."""
+    x = np.asarray(x, dtype=float)
+    empty = ~(x.sum(axis=1) > 0.0)
+    if not empty.any():
+        return x
+    x = x.copy()
+    x[empty] = 1.0 / x.shape[1]
+    return x
 
 
 def _as_phase_enthalpy(h) -> PhaseEnthalpy:

@@ -63,32 +63,70 @@ def _lower_temperature(thermo) -> float:
     return float(np.min(thermo.pure.critical_temperature)) * 0.1
 
 
-def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 100) -> tuple[np.ndarray, np.ndarray]:
+def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 100,
+                       vapor_guess=None) -> tuple[np.ndarray, np.ndarray]:
     """Bubble-point temperature (K) and incipient vapor composition of liquid ``x (n,c)`` at
-    ``pressure (n,)`` Pa. Raises :class:`ThermoError` if it does not converge."""
+    ``pressure (n,)`` Pa; ``vapor_guess (n,c)`` starts the incipient vapor where K depends on
+    it. Raises :class:`ThermoError` if it does not converge."""
     x = np.atleast_2d(np.asarray(x, dtype=float))
     x = x / x.sum(axis=1, keepdims=True)
     pressure = _as_rows(pressure, x.shape[0])
     temperature = _starting_temperature(thermo, pressure, x) if guess is None else _as_rows(guess, x.shape[0]).copy()
     lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
+    # where K depends on the vapor, the incipient vapor y = K x / sum(K x) moves by one
+    # successive substitution per Newton step (the package finds it from scratch only at the
+    # start); with that y the partial T-derivative is exact (see solver.thermo.eos_package)
+    if vapor_guess is _FROM_WILSON:
+        y = thermo.wilson_bubble_point(pressure, x)[1]
+    else:
+        y = None if vapor_guess is None or not thermo.vapor_dependent else np.array(vapor_guess, dtype=float)
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         total = np.einsum("nc,nc->n", k.K, x)
         residual = np.log(total)
         slope = np.einsum("nc,nc,nc->n", k.K, x, k.d_ln_K_dT) / total
         step = -residual / np.where(np.abs(slope) > 1e-12, slope, 1e-12)
         step = np.clip(step, -_MAX_TEMPERATURE_STEP, _MAX_TEMPERATURE_STEP)
         temperature = np.clip(temperature + step, lower, upper)
-        if np.all(np.abs(residual) < _TOLERANCE):
+        settled = True
+        if thermo.vapor_dependent:
+            new_y = k.K * x / total[:, None]
+            settled = y is not None and float(np.max(np.abs(new_y - y))) < 1e-10
+            y = new_y
+        if settled and np.all(np.abs(residual) < _TOLERANCE):
             break
     else:
         bad = int(np.argmax(np.abs(residual)))
         raise ThermoError(
             f"bubble point did not converge at {pressure[bad] / 1e5:.4g} bar for x = {np.round(x[bad], 6).tolist()}"
         )
-    k = thermo.k_values(temperature, pressure, x, derivatives=False)
+    k = thermo.k_values(temperature, pressure, x, derivatives=False, y=y)
     y = k.K * x
-    return temperature, y / y.sum(axis=1, keepdims=True)
+    y = y / y.sum(axis=1, keepdims=True)
+    if thermo.vapor_dependent and vapor_guess is not _FROM_WILSON:
+        temperature, y = _leave_trivial_bubble_points(thermo, pressure, x, temperature, y, k.K, max_iterations)
+    return temperature, y
+
+
+_FROM_WILSON = object()  # marks a bubble-point iteration restarted from Wilson's K-values
+#: a bubble point whose every |ln K_i| is below this has found the trivial solution (y = x)
+_TRIVIAL_LN_K = 1e-3
+
+
+def _leave_trivial_bubble_points(thermo, pressure, x, temperature, y, K, max_iterations):
+    """Rows whose bubble point is the trivial solution of an equation of state (K = 1: the
+    liquid and vapor roots one phase, reached from a start above the mixture's critical
+    point) are started again from Wilson's estimate of the temperature and the vapor (see
+    :meth:`~solver.thermo.eos_package.CubicThermoPackage.wilson_bubble_point`)."""
+    trivial = np.max(np.abs(np.log(K)), axis=1) < _TRIVIAL_LN_K
+    if not trivial.any():
+        return temperature, y
+    start, vapor = thermo.wilson_bubble_point(pressure[trivial], x[trivial])
+    again, y_again = bubble_temperature(thermo, pressure[trivial], x[trivial], guess=start,
+                                        max_iterations=max_iterations, vapor_guess=_FROM_WILSON)
+    temperature, y = temperature.copy(), y.copy()
+    temperature[trivial], y[trivial] = again, y_again
+    return temperature, y
 
 
 def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) -> tuple[np.ndarray, np.ndarray]:

@@ -313,7 +313,10 @@ def _fallback_chain(
     for name, rung in later_rungs:
         if newton.converged:
             break
-        found, record = rung()
+        try:
+            found, record = rung()
+        except ThermoError as exc:  # e.g. a bubble point of a later rung's start above the critical point
+            found, record = None, {name.replace(" ", "_") + "_failed": str(exc)}
         strategy.update(record)
         if found is not None and found.converged:
             newton, strategy["rung"] = found, name
@@ -335,6 +338,9 @@ def _by_homotopy(system: MeshSystem, options: NewtonOptions, enabled: bool) -> t
     the real model."""
     if not enabled:
         return None, {}
+    if system.thermo.vapor_dependent:
+        # the easy end blends activity coefficients into ideal ones: an equation of state has none
+        return None, {"homotopy": "not applied: the path from ideal K-values does not lead to an equation of state"}
     path = continue_to_real_model(system, options)
     record = {"homotopy_path": [point.as_dict() for point in path.path], "homotopy_reached": path.reached}
     return path.newton, record
@@ -408,4 +414,11 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
         if problem is not None:
             converged = False
             message = f"solution outside the property models' range: {problem}"
+    elif thermo.vapor_dependent:
+        # say whether the last point is beyond the two-phase region (near or above the critical point)
+        problem = thermo.range_problem(
+            result.temperature, result.pressure, result.x, result.y, skip_first=result.condenser == "total"
+        )
+        if problem is not None:
+            message = f"{message}; at the last point {problem}"
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy)

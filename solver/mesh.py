@@ -424,7 +424,8 @@ class MeshSystem:
         if s.dlnK_dy is not None:
             # K depends on the stage's own vapor: d y_m / d v_k = (delta_mk - y_m) / V
             G_y = np.einsum("nim,nm->ni", s.dlnK_dy, y)
-            blocks[:, c : 2 * c, 1 + c :] -= (EK * x / V_safe[:, None])[:, :, None] * (s.dlnK_dy - G_y[:, :, None])
+            with np.errstate(over="ignore", invalid="ignore"):  # a wild trial point; Newton rejects it
+                blocks[:, c : 2 * c, 1 + c :] -= (EK * x / V_safe[:, None])[:, :, None] * (s.dlnK_dy - G_y[:, :, None])
         blocks[:, 2 * c, 0] = ((s.L + U) * s.dh_L_dT + (s.V + W) * s.dh_V_dT) * inv_es
         blocks[:, 2 * c, 1 : 1 + c] = (s.h_L[:, None] + (1 + r_L)[:, None] * (s.dh_L_dx - gLx[:, None])) * inv_es
         blocks[:, 2 * c, 1 + c :] = (s.h_V[:, None] + (1 + r_W)[:, None] * (s.dh_V_dx - gVy[:, None])) * inv_es

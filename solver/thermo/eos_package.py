@@ -222,7 +222,7 @@ class CubicThermoPackage(ThermoPackage):
         bad = ~(np.isfinite(T) & (T > 0.0))
         if bad.any():
             return f"temperature {T[bad][0]!r} K is not a finite positive temperature"
-        kv = cubic_k_values(self.parameters, T, pressure, x, y, derivatives=False)
+        kv = cubic_k_values(self.parameters, T, pressure, _phase_composition(x), _phase_composition(y), derivatives=False)
         check = trivial_solution(kv.liquid.Z, kv.vapor.Z, kv.K, _SAME_ROOT, _TRIVIAL_LN_K)
         one_phase = (check.z_gap < _SAME_ROOT) | (check.largest_ln_k < _TRIVIAL_LN_K)
         if skip_first:

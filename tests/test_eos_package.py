@@ -155,3 +155,43 @@ def test_column_above_the_mixture_critical_pressure_is_refused_with_a_reason():
     result = simulate(binary(pressure="60 bar"))
     assert not result.converged
     assert "one phase, not two" in result.message and "60 bar" in result.message
+
+
+USER_COMPONENT = """
+title = "a user component with Peng-Robinson"
+[components]
+names = ["propane", "solventX"]
+[components.data.solventX]
+molar_mass = "100 g/mol"
+critical_temperature = "560 K"
+critical_pressure = "3.5 MPa"
+vapor_pressure = { form = "antoine", A = 7.1, B = 1500.0, C = 220.0, base = 10, pressure_unit = "mmHg", temperature_unit = "degC", T_min = "20 degC", T_max = "150 degC" }
+ideal_gas_cp = { form = "polynomial", coefficients = [30.0, 0.1], units = "J/mol/K, K" }
+heat_of_vaporization = { form = "watson", value = "35 kJ/mol", at = "350 K" }
+{acentric}
+source = "invented for tests"
+[thermo]
+liquid = "peng-robinson"
+[column]
+stages = 6
+condenser = "total"
+reboiler = "partial"
+pressure.top = "5 bar"
+[[feeds]]
+stage = 3
+flow = "10 mol/s"
+composition = { propane = 0.5, solventX = 0.5 }
+vapor_fraction = 0.0
+[specs]
+reflux_ratio = 1.0
+distillate_rate = "5 mol/s"
+"""
+
+
+def test_user_component_gives_its_acentric_factor_to_the_equation_of_state():
+    thermo = ThermoPackage.from_case(case_from_text(USER_COMPONENT.replace("{acentric}", "acentric_factor = 0.35")))
+    described = {c["name"]: c for c in thermo.describe()["equation_of_state"]["components"]}
+    assert described["solventx"]["acentric_factor"] == 0.35
+    assert described["solventx"]["critical_temperature_K"] == 560.0
+    with pytest.raises(CaseError, match="acentric_factor"):
+        ThermoPackage.from_case(case_from_text(USER_COMPONENT.replace("{acentric}", "")))

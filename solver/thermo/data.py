@@ -84,3 +84,4 @@ class ComponentData:
     liquid_molar_volume: Correlation | None = None  # m3/mol
     normal_boiling_point: float | None = None  # K
     source: str = ""
+    acentric_factor: float | None = None  # for a cubic equation of state

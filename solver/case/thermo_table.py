@@ -119,20 +119,11 @@ _INTERACTION_FIELDS = {
 def _read_interaction(value: Any, names: tuple[str, ...], at: At) -> tuple[InteractionParameter, ...]:
     """[thermo.interaction.I.J] k = ..., source = "..." for each pair given (others zero)."""
     expected = 'tables [thermo.interaction.NAME1.NAME2] with k = 0.01 and source = "..."'
-    found: dict[frozenset, InteractionParameter] = {}
-    for first_written, inner in read_table(value, at, expected).items():
-        first_at = at.child(first_written)
-        first = component_key(first_written, names, first_at)
-        for second_written, entry in read_table(inner, first_at, expected).items():
-            pair_at = first_at.child(second_written)
-            second = component_key(second_written, names, pair_at)
-            if first == second:
-                pair_at.fail("a pair needs two different components", second_written)
-            if frozenset((first, second)) in found:
-                pair_at.fail("pair given twice (k_ij = k_ji: give it once)", second_written)
-            fields = read_fields(entry, pair_at, _INTERACTION_FIELDS, '{ k = 0.01, source = "..." }')
-            found[frozenset((first, second))] = InteractionParameter(first, second, fields["k"], fields["source"])
-    return tuple(found.values())
+    found = []
+    for first, second, entry, pair_at in _pair_tables(value, names, at, expected):
+        fields = read_fields(entry, pair_at, _INTERACTION_FIELDS, '{ k = 0.01, source = "..." }')
+        found.append(InteractionParameter(first, second, fields["k"], fields["source"]))
+    return tuple(found)
 
 
 def _per_component(value: Any, names: tuple[str, ...], at: At, read: Reader) -> dict[str, Any]:
@@ -181,12 +172,18 @@ def _read_pairs(
     model: str, value: Any, names: tuple[str, ...], wilson_volumes: Mapping[str, float], thermo_at: At
 ) -> tuple[BinaryParameters, ...]:
     """Every pair table of the model, each pair once (in either order)."""
-    model_at = thermo_at.child(model)
-    expected = "tables [thermo.MODEL.NAME1.NAME2]"
-    pairs: list[BinaryParameters] = []
+    return tuple(
+        _read_pair(model, first, second, parameters, wilson_volumes, pair_at, thermo_at)
+        for first, second, parameters, pair_at in _pair_tables(value, names, thermo_at.child(model), "tables [thermo.MODEL.NAME1.NAME2]")
+    )
+
+
+def _pair_tables(value: Any, names: tuple[str, ...], at: At, expected: str):
+    """(first, second, table, where) of every pair table ``[...I.J]`` under ``at``, each pair
+    of two different components once (in either order)."""
     seen: dict[frozenset, str] = {}
-    for first_written, inner in read_table(value, model_at, expected).items():
-        first_at = model_at.child(first_written)
+    for first_written, inner in read_table(value, at, expected).items():
+        first_at = at.child(first_written)
         first = component_key(first_written, names, first_at)
         for second_written, parameters in read_table(inner, first_at, expected).items():
             pair_at = first_at.child(second_written)
@@ -197,8 +194,7 @@ def _read_pairs(
             if pair_key in seen:
                 pair_at.fail(f"pair given twice (also as {seen[pair_key]})", second_written, "each pair once")
             seen[pair_key] = pair_at.key
-            pairs.append(_read_pair(model, first, second, parameters, wilson_volumes, pair_at, thermo_at))
-    return tuple(pairs)
+            yield first, second, parameters, pair_at
 
 
 def _read_pair(

@@ -121,7 +121,7 @@ def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict
     l, v = L[:, None] * x, V[:, None] * y
     A_L, A_V = graph.liquid_inflow, graph.vapor_inflow
     balance = l + U[:, None] * x + v + W[:, None] * y - A_L @ l - A_V @ v - feeds
-    K = thermo.k_values(T, P, x, derivatives=False).K
+    K = thermo.k_values(T, P, x, derivatives=False, y=y).K
     vapor_in = A_V @ v
     V_in = vapor_in.sum(axis=1)
     y_in = vapor_in / np.maximum(V_in, 1e-300)[:, None]
@@ -129,11 +129,11 @@ def post_check(result: Result, thermo: ThermoPackage, graph: StageGraph) -> dict
     equilibrium = y - E * K * x - (1 - E) * y_in
     if result.condenser == "total":
         equilibrium[0] = y[0] - x[0]
-    h_L = thermo.liquid_enthalpy(T, x).molar
-    h_V = thermo.vapor_enthalpy(T, y).molar
+    h_L = thermo.liquid_enthalpy(T, x, pressure=P).molar
+    h_V = thermo.vapor_enthalpy(T, y, pressure=P).molar
     if result.condenser == "total":
         h_V = h_V.copy()
-        h_V[0] = thermo.liquid_enthalpy(T[:1], y[:1]).molar[0]
+        h_V[0] = thermo.liquid_enthalpy(T[:1], y[:1], pressure=P[:1]).molar[0]
     energy = (L + U) * h_L + (V + W) * h_V - A_L @ (L * h_L) - A_V @ (V * h_V) - feed_h - result.duty
     energy_scale = scale * thermo.cmo_latent_heat
     balances = result.balances()
@@ -214,7 +214,7 @@ def result_from_solution(case: Case, system: MeshSystem, newton: NewtonResult) -
     post-check comes after)."""
     thermo, graph = system.thermo, system.graph
     profile = system.profile(newton.X)
-    K = thermo.k_values(profile.temperature, graph.pressures, profile.x, derivatives=False).K
+    K = thermo.k_values(profile.temperature, graph.pressures, profile.x, derivatives=False, y=profile.y).K
     h_L, h_V = system.stage_enthalpies(newton.X)
     duties = system.stage_duties(newton.X)
     return Result(
@@ -314,7 +314,10 @@ def _fallback_chain(
     for name, rung in later_rungs:
         if newton.converged:
             break
-        found, record = rung()
+        try:
+            found, record = rung()
+        except ThermoError as exc:  # e.g. a bubble point of a later rung's start above the critical point
+            found, record = None, {name.replace(" ", "_") + "_failed": str(exc)}
         strategy.update(record)
         if found is not None and found.converged:
             newton, strategy["rung"] = found, name
@@ -336,6 +339,9 @@ def _by_homotopy(system: MeshSystem, options: NewtonOptions, enabled: bool) -> t
     the real model."""
     if not enabled:
         return None, {}
+    if system.thermo.vapor_dependent:
+        # the easy end blends activity coefficients into ideal ones: an equation of state has none
+        return None, {"homotopy": "not applied: the path from ideal K-values does not lead to an equation of state"}
     path = continue_to_real_model(system, options)
     record = {"homotopy_path": [point.as_dict() for point in path.path], "homotopy_reached": path.reached}
     return path.newton, record
@@ -403,11 +409,19 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
                 "or too hot for them)"
             )
     if converged:
-        try:
-            thermo.pure.check_temperature(result.temperature)
-        except ThermoError as exc:
+        problem = thermo.range_problem(
+            result.temperature, result.pressure, result.x, result.y, skip_first=result.condenser == "total"
+        )
+        if problem is not None:
             converged = False
-            message = f"solution outside the property models' range: {exc}"
+            message = f"solution outside the property models' range: {problem}"
+    elif thermo.vapor_dependent:
+        # say whether the last point is beyond the two-phase region (near or above the critical point)
+        problem = thermo.range_problem(
+            result.temperature, result.pressure, result.x, result.y, skip_first=result.condenser == "total"
+        )
+        if problem is not None:
+            message = f"{message}; at the last point {problem}"
     split = None
     if converged:
         split = check_liquids(thermo.activity, result.temperature, result.x,

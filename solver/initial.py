@@ -356,16 +356,18 @@ def wang_henke_sweeps(
     T = T.copy()
     rhs = system.feed_flows.T.ravel()
 
-    def stripping_factors(T, x):
-        K = thermo.k_values(T, system.pressures, x, derivatives=False).K
+    def stripping_factors(T, x, y=None):
+        # y: the vapor of the last bubble points (K of an equation of state depends on it)
+        K = thermo.k_values(T, system.pressures, x, derivatives=False, y=y).K
         factors = K * (V / L)[:, None]
         if system.total_condenser:
             factors[t] = V[t] / L[t]
         return factors
 
     two_products = correct_split and theta_correction_applies(system)
+    y = None
     for _ in range(max_sweeps):
-        stripping = stripping_factors(T, x)
+        stripping = stripping_factors(T, x, y)
         # natural ordering keeps the elimination in stage order, where the column-wise
         # diagonal dominance of these matrices makes it stable
         solution = spla.spsolve(component_balance_matrix(system, L, V, stripping), rhs, permc_spec="NATURAL")
@@ -375,14 +377,14 @@ def wang_henke_sweeps(
             l = theta_correction(raw, stripping[t] * raw[t], raw[system.bottom], system.total_feed_by_component, V[t])
         x = l / l.sum(axis=1, keepdims=True)
         try:
-            T_new, _ = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60)
+            T_new, y_new = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60, vapor_guess=y)
         except ThermoError:
             break
         moved = float(np.max(np.abs(T_new - T)))
-        T = T_new
+        T, y = T_new, y_new
         if moved < tolerance:
             break
-    return T, x, raw, stripping_factors(T, x)
+    return T, x, raw, stripping_factors(T, x, y)
 
 
 def theta_correction_applies(system: MeshSystem) -> bool:

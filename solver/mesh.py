@@ -95,6 +95,7 @@ class _StageState:
     K: np.ndarray
     dlnK_dT: np.ndarray
     dlnK_dx: np.ndarray
+    dlnK_dy: np.ndarray | None  # only where K depends on the vapor (an equation of state)
     h_L: np.ndarray
     dh_L_dT: np.ndarray
     dh_L_dx: np.ndarray
@@ -334,6 +335,7 @@ class MeshSystem:
         return _StageState(
             T=T, l=l, v=v, L=L, V=V, L_safe=L_safe, V_safe=V_safe, x=x, y=y,
             K=props.k_values.K, dlnK_dT=props.k_values.d_ln_K_dT, dlnK_dx=props.k_values.d_ln_K_dx,
+            dlnK_dy=props.k_values.d_ln_K_dy,
             h_L=props.liquid.molar, dh_L_dT=props.liquid.d_dT, dh_L_dx=props.liquid.d_dx,
             h_V=h_V, dh_V_dT=dh_V_dT, dh_V_dx=dh_V_dx,
             liquid_draw_ratio=self.liquid_draws / L_safe, vapor_draw_ratio=self.vapor_draws / V_safe,
@@ -367,7 +369,9 @@ class MeshSystem:
             equilibrium[t, c - 1] = (T[t] - setting.reflux_temperature) / TEMPERATURE_SCALE
             return None
         shift = setting.reflux_subcooling or 0.0
-        if shift:
+        if shift or self.thermo.vapor_dependent:
+            # with an equation of state the K-values of the bubble point are those of the
+            # reflux's incipient vapor, not of the liquid distillate in the vapor slot
             kv = self.thermo.k_values(T[t : t + 1] + shift, self.pressures[t : t + 1], x[t : t + 1])
             K, dlnK_dT, dlnK_dx = kv.K[0], kv.d_ln_K_dT[0], kv.d_ln_K_dx[0]
         else:
@@ -417,6 +421,11 @@ class MeshSystem:
             eye[None] - x[:, :, None] + x[:, :, None] * (s.dlnK_dx - G_x[:, :, None])
         )
         blocks[:, c : 2 * c, 1 + c :] = (eye[None] - y[:, :, None]) / V_safe[:, None, None]
+        if s.dlnK_dy is not None:
+            # K depends on the stage's own vapor: d y_m / d v_k = (delta_mk - y_m) / V
+            G_y = np.einsum("nim,nm->ni", s.dlnK_dy, y)
+            with np.errstate(over="ignore", invalid="ignore"):  # a wild trial point; Newton rejects it
+                blocks[:, c : 2 * c, 1 + c :] -= (EK * x / V_safe[:, None])[:, :, None] * (s.dlnK_dy - G_y[:, :, None])
         blocks[:, 2 * c, 0] = ((s.L + U) * s.dh_L_dT + (s.V + W) * s.dh_V_dT) * inv_es
         blocks[:, 2 * c, 1 : 1 + c] = (s.h_L[:, None] + (1 + r_L)[:, None] * (s.dh_L_dx - gLx[:, None])) * inv_es
         blocks[:, 2 * c, 1 + c :] = (s.h_V[:, None] + (1 + r_W)[:, None] * (s.dh_V_dx - gVy[:, None])) * inv_es
@@ -531,8 +540,8 @@ class MeshSystem:
         T, l, v = self.unpack(X)
         x = l / np.maximum(l.sum(axis=1), _TINY)[:, None]
         y = v / np.maximum(v.sum(axis=1), _TINY)[:, None]
-        hL = self.thermo.liquid_enthalpy(T, x).molar
-        return hL, self._vapor_slot(T, y, self.thermo.vapor_enthalpy(T, y))[0]
+        hL = self.thermo.liquid_enthalpy(T, x, pressure=self.pressures).molar
+        return hL, self._vapor_slot(T, y, self.thermo.vapor_enthalpy(T, y, pressure=self.pressures))[0]
 
     def _vapor_slot(self, T: np.ndarray, y: np.ndarray, vapor) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """(h, dh/dT, dh/dy) of the stream in each stage's vapor slot: the vapor's, except on a
@@ -541,7 +550,7 @@ class MeshSystem:
             return vapor.molar, vapor.d_dT, vapor.d_dx
         h, dh_dT, g = vapor.molar.copy(), vapor.d_dT.copy(), vapor.d_dx.copy()
         t = self.top
-        distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1])
+        distillate = self.thermo.liquid_enthalpy(T[t : t + 1], y[t : t + 1], pressure=self.pressures[t : t + 1])
         h[t], dh_dT[t], g[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]
         return h, dh_dT, g
 

@@ -148,6 +148,55 @@ def test_jacobian_every_activity_model_with_draws_and_heaters(model):
     assert_jacobian_matches(case_from_text(text), seed=11)
 
 
+LIGHT_HYDROCARBONS = """
+title = "light hydrocarbons at 15 bar, both phases from an equation of state"
+[components]
+names = ["ethane", "propane", "n-butane"]
+[thermo]
+liquid = "{model}"
+[thermo.interaction.propane.n-butane]
+k = 0.003
+source = "test value (exercises the k_ij term of the derivatives)"
+[column]
+stages = 6
+condenser = "{condenser}"
+reboiler = "partial"
+pressure.top = "15 bar"
+pressure.drop_per_stage = "5 kPa"
+efficiency = 0.8
+{column_extra}
+[[feeds]]
+stage = 3
+flow = "10 mol/s"
+composition = {{ ethane = 0.1, propane = 0.4, n-butane = 0.5 }}
+vapor_fraction = 0.3
+[specs]
+reflux_ratio = 2.0
+distillate_rate = "4.5 mol/s"
+"""
+#: Both phases from an equation of state: K depends on the stage's own vapor (d ln K/d y).
+EOS_MODELS = ("peng-robinson", "soave-redlich-kwong")
+
+
+@pytest.mark.parametrize("condenser", ["total", "partial"])
+@pytest.mark.parametrize("model", EOS_MODELS)
+def test_jacobian_equations_of_state_with_draws_and_heaters(model, condenser):
+    text = LIGHT_HYDROCARBONS.format(
+        model=model,
+        condenser=condenser,
+        column_extra='[[column.side_draws]]\nstage = 2\nphase = "liquid"\nflow = "0.5 mol/s"\n'
+        '[[column.side_draws]]\nstage = 5\nphase = "vapor"\nflow = "0.3 mol/s"\n'
+        '[[column.heaters]]\nstage = 4\nduty = "20 kW"\n',
+    )
+    assert_jacobian_matches(case_from_text(text), seed=7)
+
+
+@pytest.mark.parametrize("model", EOS_MODELS)
+def test_jacobian_equation_of_state_subcooled_reflux(model):
+    text = LIGHT_HYDROCARBONS.format(model=model, condenser="total", column_extra="") + 'reflux_subcooling = "5 K"\n'
+    assert_jacobian_matches(case_from_text(text), seed=4)
+
+
 @pytest.mark.parametrize("setting", ['reflux_subcooling = "8 K"', 'reflux_temperature = "45 degC"'])
 def test_jacobian_subcooled_reflux(setting):
     case = methanol_water_case(stages=6, feed_stage=3, specs=f"reflux_ratio = 1.4\nbottoms = {{ water = 0.995 }}\n{setting}")

@@ -161,6 +161,8 @@ _COMPONENT_FIELDS = {
     "heat_of_vaporization": Field(),
     "liquid_molar_volume": Field(),
     "source": Field(lambda value, at: read_text(value, at, allow_empty=False), required=True),
+    # Pitzer's acentric factor, -log10(Psat/Pc) - 1 at T = 0.7 Tc: only a cubic equation of state uses it
+    "acentric_factor": Field(lambda value, at: read_real(value, at, minimum=-0.5, maximum=2.0)),
 }
 
 
@@ -189,6 +191,7 @@ def _read_component_data(name: str, table: Any, at: At) -> ComponentData:
         liquid_molar_volume=correlations.get("liquid_molar_volume"),
         normal_boiling_point=normal_boiling_point,
         source=fields["source"],
+        acentric_factor=fields.get("acentric_factor"),
     )
 
 

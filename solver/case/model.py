@@ -22,6 +22,7 @@ __all__ = [
     "SideDraw",
     "Spec",
     "StageDuty",
+    "InteractionParameter",
     "ThermoOptions",
 ]
 
@@ -92,15 +93,27 @@ class BinaryParameters:
 
 
 @dataclass(frozen=True)
+class InteractionParameter:
+    """One binary interaction parameter k_ij of a cubic equation of state (symmetric), from
+    ``[thermo.interaction.I.J]``, with its source as written."""
+
+    first: str
+    second: str
+    value: float
+    source: str
+
+
+@dataclass(frozen=True)
 class ThermoOptions:
-    liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac | unifac | unifac-dortmund
-    vapor: str = "ideal"
+    liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac | unifac | unifac-dortmund | peng-robinson | soave-redlich-kwong
+    vapor: str = "ideal"  # ideal | the equation of state of the liquid
     enthalpy: str = "rigorous"  # rigorous | cmo
     pairs: tuple[BinaryParameters, ...] = ()
     uniquac_structure: Mapping[str, tuple[float, float]] = field(default_factory=_frozen_mapping)  # name -> (r, q)
     wilson_volumes: Mapping[str, float] = field(default_factory=_frozen_mapping)  # name -> m3/mol, for energy-form Wilson
     groups: Mapping[str, Mapping[str, int]] = field(default_factory=_frozen_mapping)  # name -> {UNIFAC subgroup: count}
     missing_pairs: str = ""  # "" (a missing pair is an error) | unifac | unifac-dortmund | ideal
+    interaction: tuple[InteractionParameter, ...] = ()  # k_ij of the equation of state
 
 
 @dataclass(frozen=True)

@@ -27,17 +27,18 @@ from solver.case.fields import (
     read_table,
     read_text,
 )
-from solver.case.model import BinaryParameters, ThermoOptions
+from solver.case.model import BinaryParameters, InteractionParameter, ThermoOptions
 from solver.errors import CaseError
 
 __all__ = ["read_thermo_table"]
 
 _UNIFAC_MODELS = ("unifac", "unifac-dortmund")
-_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac") + _UNIFAC_MODELS
+_CUBIC_MODELS = ("peng-robinson", "soave-redlich-kwong")
+_LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac") + _UNIFAC_MODELS + _CUBIC_MODELS
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
 _MISSING_PAIRS = _UNIFAC_MODELS + ("ideal",)
 _THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + (
-    "wilson_volumes", "uniquac_structure", "groups", "missing_pairs")
+    "wilson_volumes", "uniquac_structure", "groups", "missing_pairs", "interaction")
 #: model -> the key of its energy form
 _ENERGY_FORM_KEY = {"nrtl": "dg", "wilson": "dlambda", "uniquac": "du"}
 #: The four terms of a binary parameter: key -> (kind of quantity, how a message names it)
@@ -63,7 +64,7 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
     table = read_table(value, at)
     check_keys(table, at, _THERMO_KEYS)
     liquid = read_choice(table.get("liquid", "ideal"), at.child("liquid"), _LIQUID_MODELS)
-    vapor = read_choice(table.get("vapor", "ideal"), at.child("vapor"), ("ideal",))
+    vapor = _read_vapor(table, liquid, at)
     enthalpy = read_choice(table.get("enthalpy", "rigorous"), at.child("enthalpy"), ("rigorous", "cmo"))
     for model in _ACTIVITY_MODELS:
         if model in table and model != liquid:
@@ -83,7 +84,16 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
         pairs = _read_pairs(liquid, table[liquid], names, wilson_volumes, at)
     missing_pairs = _read_missing_pairs(table, liquid, pairs, names, at)
     groups = read_unifac_groups(table, liquid, missing_pairs, names, at)
+    interaction: tuple[InteractionParameter, ...] = ()
+    if "interaction" in table:
+        if liquid not in _CUBIC_MODELS:
+            at.child("interaction").fail(
+                f"not used: thermo.liquid is {liquid!r}", "interaction", "k_ij only with an equation of state: "
+                + " or ".join(repr(m) for m in _CUBIC_MODELS)
+            )
+        interaction = _read_interaction(table["interaction"], names, at.child("interaction"))
     return ThermoOptions(
+        interaction=interaction,
         liquid=liquid,
         vapor=vapor,
         enthalpy=enthalpy,
@@ -100,7 +110,7 @@ def _read_missing_pairs(
 ) -> str:
     """``missing_pairs``: how the pairs of a binary-parameter model without parameters in the
     case are taken. Without it a missing pair is an error naming the pair."""
-    if "missing_pairs" in table and liquid in _UNIFAC_MODELS:
+    if "missing_pairs" in table and liquid in _UNIFAC_MODELS + _CUBIC_MODELS:
         at.child("missing_pairs").fail(
             f"not used: thermo.liquid is {liquid!r}", table["missing_pairs"], "missing_pairs only with " + ", ".join(_ACTIVITY_MODELS) + " (an ideal liquid ignores it)"
         )
@@ -146,6 +156,35 @@ def read_unifac_groups(
     except CaseError as exc:
         raise CaseError(exc.problem, file=at.file, key=exc.key, value=exc.value, expected=exc.expected) from None
     return written
+
+
+def _read_vapor(table: Mapping, liquid: str, at: At) -> str:
+    """With an equation of state for the liquid the vapor is the same equation (the default);
+    otherwise the vapor is ideal."""
+    vapor_at = at.child("vapor")
+    if liquid in _CUBIC_MODELS:
+        vapor = read_choice(table.get("vapor", liquid), vapor_at, _CUBIC_MODELS + ("ideal",))
+        if vapor != liquid:
+            vapor_at.fail(f"with liquid = {liquid!r} both phases come from that equation of state", vapor,
+                          f"{liquid!r} (or leave vapor out)")
+        return vapor
+    return read_choice(table.get("vapor", "ideal"), vapor_at, ("ideal",))
+
+
+_INTERACTION_FIELDS = {
+    "k": Field(lambda value, at: read_real(value, at, minimum=-1.0, maximum=1.0), required=True),
+    "source": Field(lambda value, at: read_text(value, at, allow_empty=False), required=True),
+}
+
+
+def _read_interaction(value: Any, names: tuple[str, ...], at: At) -> tuple[InteractionParameter, ...]:
+    """[thermo.interaction.I.J] k = ..., source = "..." for each pair given (others zero)."""
+    expected = 'tables [thermo.interaction.NAME1.NAME2] with k = 0.01 and source = "..."'
+    found = []
+    for first, second, entry, pair_at in _pair_tables(value, names, at, expected):
+        fields = read_fields(entry, pair_at, _INTERACTION_FIELDS, '{ k = 0.01, source = "..." }')
+        found.append(InteractionParameter(first, second, fields["k"], fields["source"]))
+    return tuple(found)
 
 
 def _per_component(value: Any, names: tuple[str, ...], at: At, read: Reader) -> dict[str, Any]:
@@ -194,12 +233,18 @@ def _read_pairs(
     model: str, value: Any, names: tuple[str, ...], wilson_volumes: Mapping[str, float], thermo_at: At
 ) -> tuple[BinaryParameters, ...]:
     """Every pair table of the model, each pair once (in either order)."""
-    model_at = thermo_at.child(model)
-    expected = "tables [thermo.MODEL.NAME1.NAME2]"
-    pairs: list[BinaryParameters] = []
+    return tuple(
+        _read_pair(model, first, second, parameters, wilson_volumes, pair_at, thermo_at)
+        for first, second, parameters, pair_at in _pair_tables(value, names, thermo_at.child(model), "tables [thermo.MODEL.NAME1.NAME2]")
+    )
+
+
+def _pair_tables(value: Any, names: tuple[str, ...], at: At, expected: str):
+    """(first, second, table, where) of every pair table ``[...I.J]`` under ``at``, each pair
+    of two different components once (in either order)."""
     seen: dict[frozenset, str] = {}
-    for first_written, inner in read_table(value, model_at, expected).items():
-        first_at = model_at.child(first_written)
+    for first_written, inner in read_table(value, at, expected).items():
+        first_at = at.child(first_written)
         first = component_key(first_written, names, first_at)
         for second_written, parameters in read_table(inner, first_at, expected).items():
             pair_at = first_at.child(second_written)
@@ -210,8 +255,7 @@ def _read_pairs(
             if pair_key in seen:
                 pair_at.fail(f"pair given twice (also as {seen[pair_key]})", second_written, "each pair once")
             seen[pair_key] = pair_at.key
-            pairs.append(_read_pair(model, first, second, parameters, wilson_volumes, pair_at, thermo_at))
-    return tuple(pairs)
+            yield first, second, parameters, pair_at
 
 
 def _read_pair(

@@ -28,13 +28,16 @@ def cautions(result: Result) -> list[str]:
     if not result.converged:
         found.append(f"NOT CONVERGED: {result.message}. Do not use these numbers.")
     bottom = float(np.max(result.pressure))
-    if bottom > ELEVATED_PRESSURE:
+    if "equation_of_state" in result.thermo:
+        found.extend(_equation_of_state(result))
+    elif bottom > ELEVATED_PRESSURE:
         found.append(
             f"Column pressure up to {bottom / 1e5:.3g} bar: K-values assume an ideal vapor (no fugacity "
             "coefficients, no Poynting factor) and the vapor enthalpy is the ideal-gas one; above about "
             f"{ELEVATED_PRESSURE / 1e5:.0f} bar check them against data."
         )
-    found.extend(_near_critical(result))
+    if "equation_of_state" not in result.thermo:
+        found.extend(_near_critical(result))
     if result.enthalpy_model == "cmo":
         found.append(
             "Enthalpy model 'cmo': equal molar latent heats and no sensible heat, so the internal flows are "
@@ -63,5 +66,19 @@ def _near_critical(result: Result) -> list[str]:
         notes.append(
             f"{result.components[i]} reaches T/Tc = {reduced[stage, i]:.3f} on stage {stage + 1}: near its critical "
             "point ideal-vapor K-values and the latent-heat-based liquid enthalpy lose accuracy."
+        )
+    return notes
+
+
+def _equation_of_state(result: Result) -> list[str]:
+    """With both phases from a cubic equation of state: the k_ij left at zero, and the accuracy
+    of the liquid near the mixture's critical point."""
+    eos = result.thermo["equation_of_state"]
+    zero = [f"{pair['i']}/{pair['j']}" for pair in eos.get("interaction", []) if pair.get("source") == "default zero"]
+    notes = []
+    if zero:
+        notes.append(
+            f"{eos.get('model', 'equation of state')}: k_ij = 0 (not given) for {len(zero)} pair(s), e.g. "
+            + ", ".join(zero[:3]) + "; check K-values of the key pair against data."
         )
     return notes

@@ -92,3 +92,4 @@ class ComponentData:
     origin: str = "user"  # "user" ([components.data]) or "handbook" (solver.handbook library)
     #: for handbook components, the record of every property's table, form and range
     provenance: dict | None = field(default=None, compare=False, repr=False)
+    acentric_factor: float | None = None  # for a cubic equation of state

@@ -63,32 +63,70 @@ def _lower_temperature(thermo) -> float:
     return float(np.min(thermo.pure.critical_temperature)) * 0.1
 
 
-def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 100) -> tuple[np.ndarray, np.ndarray]:
+def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 100,
+                       vapor_guess=None) -> tuple[np.ndarray, np.ndarray]:
     """Bubble-point temperature (K) and incipient vapor composition of liquid ``x (n,c)`` at
-    ``pressure (n,)`` Pa. Raises :class:`ThermoError` if it does not converge."""
+    ``pressure (n,)`` Pa; ``vapor_guess (n,c)`` starts the incipient vapor where K depends on
+    it. Raises :class:`ThermoError` if it does not converge."""
     x = np.atleast_2d(np.asarray(x, dtype=float))
     x = x / x.sum(axis=1, keepdims=True)
     pressure = _as_rows(pressure, x.shape[0])
     temperature = _starting_temperature(thermo, pressure, x) if guess is None else _as_rows(guess, x.shape[0]).copy()
     lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
+    # where K depends on the vapor, the incipient vapor y = K x / sum(K x) moves by one
+    # successive substitution per Newton step (the package finds it from scratch only at the
+    # start); with that y the partial T-derivative is exact (see solver.thermo.eos_package)
+    if vapor_guess is _FROM_WILSON:
+        y = thermo.wilson_bubble_point(pressure, x)[1]
+    else:
+        y = None if vapor_guess is None or not thermo.vapor_dependent else np.array(vapor_guess, dtype=float)
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         total = np.einsum("nc,nc->n", k.K, x)
         residual = np.log(total)
         slope = np.einsum("nc,nc,nc->n", k.K, x, k.d_ln_K_dT) / total
         step = -residual / np.where(np.abs(slope) > 1e-12, slope, 1e-12)
         step = np.clip(step, -_MAX_TEMPERATURE_STEP, _MAX_TEMPERATURE_STEP)
         temperature = np.clip(temperature + step, lower, upper)
-        if np.all(np.abs(residual) < _TOLERANCE):
+        settled = True
+        if thermo.vapor_dependent:
+            new_y = k.K * x / total[:, None]
+            settled = y is not None and float(np.max(np.abs(new_y - y))) < 1e-10
+            y = new_y
+        if settled and np.all(np.abs(residual) < _TOLERANCE):
             break
     else:
         bad = int(np.argmax(np.abs(residual)))
         raise ThermoError(
             f"bubble point did not converge at {pressure[bad] / 1e5:.4g} bar for x = {np.round(x[bad], 6).tolist()}"
         )
-    k = thermo.k_values(temperature, pressure, x, derivatives=False)
+    k = thermo.k_values(temperature, pressure, x, derivatives=False, y=y)
     y = k.K * x
-    return temperature, y / y.sum(axis=1, keepdims=True)
+    y = y / y.sum(axis=1, keepdims=True)
+    if thermo.vapor_dependent and vapor_guess is not _FROM_WILSON:
+        temperature, y = _leave_trivial_bubble_points(thermo, pressure, x, temperature, y, k.K, max_iterations)
+    return temperature, y
+
+
+_FROM_WILSON = object()  # marks a bubble-point iteration restarted from Wilson's K-values
+#: a bubble point whose every |ln K_i| is below this has found the trivial solution (y = x)
+_TRIVIAL_LN_K = 1e-3
+
+
+def _leave_trivial_bubble_points(thermo, pressure, x, temperature, y, K, max_iterations):
+    """Rows whose bubble point is the trivial solution of an equation of state (K = 1: the
+    liquid and vapor roots one phase, reached from a start above the mixture's critical
+    point) are started again from Wilson's estimate of the temperature and the vapor (see
+    :meth:`~solver.thermo.eos_package.CubicThermoPackage.wilson_bubble_point`)."""
+    trivial = np.max(np.abs(np.log(K)), axis=1) < _TRIVIAL_LN_K
+    if not trivial.any():
+        return temperature, y
+    start, vapor = thermo.wilson_bubble_point(pressure[trivial], x[trivial])
+    again, y_again = bubble_temperature(thermo, pressure[trivial], x[trivial], guess=start,
+                                        max_iterations=max_iterations, vapor_guess=_FROM_WILSON)
+    temperature, y = temperature.copy(), y.copy()
+    temperature[trivial], y[trivial] = again, y_again
+    return temperature, y
 
 
 def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) -> tuple[np.ndarray, np.ndarray]:
@@ -105,7 +143,7 @@ def dew_temperature(thermo, pressure, y, guess=None, max_iterations: int = 200) 
     lower, upper = _lower_temperature(thermo), _upper_temperature(thermo)
     x = y.copy()
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         ratio = y / k.K
         total = ratio.sum(axis=1)
         new_x = ratio / total[:, None]
@@ -175,7 +213,7 @@ def flash_tp(thermo, temperature, pressure, z, max_iterations: int = 300) -> Fla
     y = z.copy()
     beta = np.full(z.shape[0], 0.5)
     for _ in range(max_iterations):
-        K = thermo.k_values(temperature, pressure, x, derivatives=False).K
+        K = thermo.k_values(temperature, pressure, x, derivatives=False, y=y).K
         beta = rachford_rice(z, K)
         denominator = 1.0 + beta[:, None] * (K - 1.0)
         new_x = z / denominator
@@ -207,9 +245,10 @@ def flash_p_vapor_fraction(thermo, pressure, z, vapor_fraction, max_iterations: 
     dew, x_dew = dew_temperature(thermo, pressure, z)
     temperature = bubble + beta * (dew - bubble)
     x = z * (1 - beta[:, None]) + x_dew * beta[:, None]
+    y = y_bubble * (1 - beta[:, None]) + z * beta[:, None]
     upper = _upper_temperature(thermo)
     for _ in range(max_iterations):
-        k = thermo.k_values(temperature, pressure, x, derivatives=True)
+        k = thermo.k_values(temperature, pressure, x, derivatives=True, y=y)
         denominator = 1.0 + beta[:, None] * (k.K - 1.0)
         value = np.einsum("nc,nc->n", z, (k.K - 1.0) / denominator)
         slope = np.einsum("nc,nc,nc->n", z, k.K * k.d_ln_K_dT, 1.0 / denominator**2)
@@ -217,13 +256,15 @@ def flash_p_vapor_fraction(thermo, pressure, z, vapor_fraction, max_iterations: 
         temperature = np.clip(temperature + step, np.minimum(bubble, dew) - 1.0, min(upper, float(np.max(dew)) + 1.0))
         new_x = z / denominator
         new_x = new_x / new_x.sum(axis=1, keepdims=True)
-        change = np.max(np.abs(new_x - x))
-        x = new_x
+        new_y = k.K * new_x
+        new_y = new_y / new_y.sum(axis=1, keepdims=True)
+        change = max(np.max(np.abs(new_x - x)), np.max(np.abs(new_y - y)))
+        x, y = new_x, new_y
         if np.all(np.abs(value) < 1e-12) and change < 1e-12:
             break
     else:
         raise ThermoError(f"flash at vapor fraction {beta.tolist()} did not converge")
-    K = thermo.k_values(temperature, pressure, x, derivatives=False).K
+    K = thermo.k_values(temperature, pressure, x, derivatives=False, y=y).K
     y = K * x
     y = y / y.sum(axis=1, keepdims=True)
     return FlashResult(temperature, pressure, beta, x, y)
@@ -296,7 +337,7 @@ def feed_state(
     liquid and vapor of the feed composition at ``reference_pressure`` (the pressure of the
     stage it enters; default ``pressure``): the feed's enthalpy is kept across the valve."""
     z, p, flash, bubble, dew = _feed_phases(thermo, composition, pressure, temperature, vapor_fraction)
-    h_liquid, h_vapor = thermo.rigorous_enthalpies(flash.temperature, flash.x, flash.y)
+    h_liquid, h_vapor = thermo.rigorous_enthalpies(flash.temperature, flash.x, flash.y, pressure=p)
     beta = float(flash.vapor_fraction[0])
     enthalpy = (1.0 - beta) * float(h_liquid[0]) + beta * float(h_vapor[0])
     if reference_pressure is not None and reference_pressure != pressure:
@@ -305,8 +346,9 @@ def feed_state(
         dew_ref, _ = dew_temperature(thermo, p_ref, z)
     else:
         bubble_ref, dew_ref = bubble, dew
-    saturated_liquid, _ = thermo.rigorous_enthalpies(bubble_ref, z, z)
-    _, saturated_vapor = thermo.rigorous_enthalpies(dew_ref, z, z)
+        p_ref = p
+    saturated_liquid, _ = thermo.rigorous_enthalpies(bubble_ref, z, z, pressure=p_ref)
+    _, saturated_vapor = thermo.rigorous_enthalpies(dew_ref, z, z, pressure=p_ref)
     q = (float(saturated_vapor[0]) - enthalpy) / (float(saturated_vapor[0]) - float(saturated_liquid[0]))
     return FeedState(
         temperature=float(flash.temperature[0]),

@@ -80,19 +80,19 @@ class HomotopyThermo(ThermoPackage):
     def _blended(self) -> bool:
         return self.enthalpy_model == "rigorous" and self.t < 1.0
 
-    def liquid_enthalpy(self, temperature, x, model: str | None = None) -> PhaseEnthalpy:
+    def liquid_enthalpy(self, temperature, x, model: str | None = None, pressure=None) -> PhaseEnthalpy:
         if model is not None or not self._blended():
             return super().liquid_enthalpy(temperature, x, model=model)
         return _blend(self.t, super().liquid_enthalpy(temperature, x, "rigorous"), super().liquid_enthalpy(temperature, x, "cmo"))
 
-    def vapor_enthalpy(self, temperature, y, model: str | None = None) -> PhaseEnthalpy:
+    def vapor_enthalpy(self, temperature, y, model: str | None = None, pressure=None) -> PhaseEnthalpy:
         if model is not None or not self._blended():
             return super().vapor_enthalpy(temperature, y, model=model)
         return _blend(self.t, super().vapor_enthalpy(temperature, y, "rigorous"), super().vapor_enthalpy(temperature, y, "cmo"))
 
-    def rigorous_enthalpies(self, temperature, x, y):
+    def rigorous_enthalpies(self, temperature, x, y, pressure=None):
         """A feed's thermal condition is judged with the real package at every ``t``."""
-        return self.base.rigorous_enthalpies(temperature, x, y)
+        return self.base.rigorous_enthalpies(temperature, x, y, pressure=pressure)
 
     def stage_properties(self, temperature, pressure, x, y) -> StageProperties:
         props = super().stage_properties(temperature, pressure, x, y)

@@ -43,11 +43,13 @@ __all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage"]
 class KValues:
     """K-values and derivatives: ``K (n,c)``, ``d_ln_K_dT (n,c)`` in 1/K and
     ``d_ln_K_dx (n,c,c)`` with ``[s, i, k] = d ln K_i / d x_k`` (other x held fixed). Both
-    derivatives are None when they were not asked for."""
+    derivatives are None when they were not asked for. ``d_ln_K_dy (n,c,c)``, the same in the
+    vapor fractions, only where K depends on the vapor (an equation of state), else None."""
 
     K: np.ndarray
     d_ln_K_dT: np.ndarray | None
     d_ln_K_dx: np.ndarray | None
+    d_ln_K_dy: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -164,6 +166,12 @@ class ThermoPackage:
     # ------------------------------------------------------------------ construction
     @classmethod
     def from_case(cls, case: Case) -> "ThermoPackage":
+        """The case's package; an equation of state for both phases is its own package
+        (:class:`~solver.thermo.eos_package.CubicThermoPackage`, imported here: it builds on this one)."""
+        if cls is ThermoPackage and case.thermo.liquid in ("peng-robinson", "soave-redlich-kwong"):
+            from .eos_package import CubicThermoPackage
+
+            return CubicThermoPackage.from_case(case)
         infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
         pure = PureComponents(infos, case.component_data)
         predicted = _predicted_pairs(case, pure)
@@ -268,10 +276,24 @@ class ThermoPackage:
                 break
         return 1.0 / inverse
 
+    #: K depends on the vapor composition (an equation of state for the vapor)
+    vapor_dependent = False
+
+    def range_problem(self, temperature, pressure, x, y, skip_first: bool = False) -> str | None:
+        """Why a solution lies outside the property models' range, or None: a temperature at or
+        above a component's critical temperature (no vapor pressure there) or outside a user
+        correlation's range."""
+        try:
+            self.pure.check_temperature(temperature)
+        except ThermoError as exc:
+            return str(exc)
+        return None
+
     # ------------------------------------------------------------------ equilibrium
-    def k_values(self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, derivatives: bool = True) -> KValues:
+    def k_values(self, temperature: np.ndarray, pressure: np.ndarray, x: np.ndarray, derivatives: bool = True,
+                 y: np.ndarray | None = None) -> KValues:
         """Modified Raoult's law K-values at ``temperature (n,)`` K, ``pressure (n,)`` Pa and
-        liquid composition ``x (n,c)``."""
+        liquid composition ``x (n,c)`` (the vapor ``y`` does not enter)."""
         temperature = np.asarray(temperature, dtype=float)
         act = self.activity.evaluate(temperature, x, derivatives=derivatives)
         return self._k_values(temperature, np.asarray(pressure, dtype=float), act, derivatives)
@@ -287,9 +309,10 @@ class ThermoPackage:
         return self.activity.evaluate(np.asarray(temperature, dtype=float), x, derivatives=False).ln_gamma
 
     # ------------------------------------------------------------------ enthalpies
-    def vapor_enthalpy(self, temperature: np.ndarray, y: np.ndarray, model: str | None = None) -> PhaseEnthalpy:
+    def vapor_enthalpy(self, temperature: np.ndarray, y: np.ndarray, model: str | None = None, pressure=None) -> PhaseEnthalpy:
         """Ideal-gas mixture enthalpy (J/mol) of vapor of composition ``y (n,c)``; ``model``
-        overrides the package's enthalpy model ("rigorous" | "cmo")."""
+        overrides the package's enthalpy model ("rigorous" | "cmo"); ``pressure`` does not
+        enter (it does with an equation of state)."""
         return self._vapor_phase(np.asarray(temperature, dtype=float), np.asarray(y, dtype=float), model or self.enthalpy_model)
 
     def _vapor_phase(self, temperature: np.ndarray, y: np.ndarray, model: str) -> PhaseEnthalpy:
@@ -300,7 +323,7 @@ class ThermoPackage:
         h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
         return PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
 
-    def liquid_enthalpy(self, temperature: np.ndarray, x: np.ndarray, model: str | None = None) -> PhaseEnthalpy:
+    def liquid_enthalpy(self, temperature: np.ndarray, x: np.ndarray, model: str | None = None, pressure=None) -> PhaseEnthalpy:
         """Liquid mixture enthalpy (J/mol): ideal gas minus heat of vaporization, plus the
         excess enthalpy of the activity model; ``model`` overrides the enthalpy model."""
         temperature = np.asarray(temperature, dtype=float)
@@ -326,7 +349,7 @@ class ThermoPackage:
             act.excess_enthalpy,
         )
 
-    def rigorous_enthalpies(self, temperature: np.ndarray, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    def rigorous_enthalpies(self, temperature: np.ndarray, x: np.ndarray, y: np.ndarray, pressure=None) -> tuple[np.ndarray, np.ndarray]:
         """(h_L, h_V) with the rigorous model whatever ``enthalpy`` is set to: the thermal
         condition of a feed is always judged with real enthalpies."""
         return (

@@ -93,6 +93,8 @@ BT = ["benzene", "toluene"]
 # needs every component below its critical point)
 TEN = ["isopentane", "n-pentane", "cyclopentane", "isohexane", "n-hexane", "benzene", "cyclohexane", "n-heptane", "toluene", "n-octane"]
 
+C2_C5 = ["ethane", "propane", "isobutane", "n-butane", "n-pentane"]
+
 HARD_CASES: dict[str, str] = {
     # --- purities at 99.99 %
     "bt-9999-both-ends": case_text("benzene/toluene, 99.99 % at both ends", BT, {"benzene": 0.5, "toluene": 0.5},
@@ -163,6 +165,26 @@ HARD_CASES: dict[str, str] = {
         'reflux_ratio = 2.0\ndistillate = { toluene = 0.995 }', stages=40, feed_stage=20, pressure="10 kPa", drop="200 Pa"),
     "pentane-hexane-pressure": case_text("n-pentane/n-hexane at 10 bar", ["n-pentane", "n-hexane"], {"n-pentane": 0.5, "n-hexane": 0.5},
         'reflux_ratio = 3.0\ndistillate = { "n-pentane" = 0.98 }', stages=40, feed_stage=20, pressure="10 bar"),
+    # --- pressure columns, both phases from an equation of state (k_ij = 0; components above
+    # their critical temperature on some stages)
+    "c2-c5-depropanizer-pr": case_text("depropanizer at 16 bar, Peng-Robinson", C2_C5, {"ethane": 0.02, "propane": 0.38,
+        "isobutane": 0.15, "n-butane": 0.25, "n-pentane": 0.20}, "recovery = { propane = { distillate = 0.99 }, isobutane = { bottoms = 0.98 } }",
+        stages=40, feed_stage=20, model="peng-robinson", pressure="16 bar", drop="0.7 kPa"),
+    "c3-splitter-pr": case_text("propylene/propane at 18 bar, 150 stages, reflux about 14", ["propylene", "propane"],
+        {"propylene": 0.65, "propane": 0.35}, "distillate = { propylene = 0.995 }\nrecovery = { propylene = { distillate = 0.98 } }",
+        stages=150, feed_stage=95, model="peng-robinson", pressure="18 bar", drop="0.5 kPa"),
+    "deethanizer-partial-srk": case_text("deethanizer at 25 bar, partial condenser, SRK", ["methane"] + C2_C5,
+        {"methane": 0.01, "ethane": 0.24, "propane": 0.36, "isobutane": 0.12, "n-butane": 0.17, "n-pentane": 0.10},
+        "recovery = { ethane = { distillate = 0.98 }, propane = { bottoms = 0.99 } }", stages=30, feed_stage=12,
+        model="soave-redlich-kwong", pressure="25 bar", drop="0.7 kPa", condenser="partial"),
+    "debutanizer-wide-boiling-pr": case_text("debutanizer at 10 bar, propane to n-octane feed", ["propane", "n-butane", "n-pentane",
+        "n-hexane", "n-octane"], {"propane": 0.1, "n-butane": 0.3, "n-pentane": 0.25, "n-hexane": 0.2, "n-octane": 0.15},
+        "recovery = { n-butane = { distillate = 0.99 }, n-pentane = { bottoms = 0.98 } }", stages=30, feed_stage=14,
+        model="peng-robinson", pressure="10 bar", drop="0.7 kPa"),
+    "deethanizer-near-critical-top-pr": case_text("deethanizer at 38 bar: the top stage 12 K below the critical temperature of its vapor (about 30 degC at 53 bar, Peng-Robinson)",
+        ["methane"] + C2_C5[:3], {"methane": 0.03, "ethane": 0.35, "propane": 0.42, "isobutane": 0.20},
+        "recovery = { ethane = { distillate = 0.97 }, propane = { bottoms = 0.98 } }", stages=30, feed_stage=12,
+        model="peng-robinson", pressure="38 bar", drop="0.7 kPa", condenser="partial"),
     # --- models and specs
     "mw-wilson-high-purity": case_text("methanol/water, Wilson, 99.9 % both ends", MW, {"methanol": 0.5, "water": 0.5},
         "distillate = { methanol = 0.999 }\nbottoms = { water = 0.999 }", stages=40, feed_stage=25, model="wilson"),

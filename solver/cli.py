@@ -34,7 +34,7 @@ except KeyboardInterrupt:  # Ctrl-C while the command is still starting: nothing
     print("traystack: interrupted while starting; nothing was written", file=sys.stderr)
     raise SystemExit(130) from None
 
-__all__ = ["COMMANDS", "PLOT_FILES", "build_parser", "main"]
+__all__ = ["CACHED_COMMANDS", "COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
@@ -63,6 +63,15 @@ def _progress(console: Console) -> Progress:
     )
 
 
+def _known_components(case) -> None:
+    """Refuse an unknown component before the engine's modules are imported (they take
+    seconds); the lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
+    from .components import component_info
+
+    for name in case.component_names:
+        component_info(name, case.component_data)
+
+
 def _at_least_three(text: str) -> int:
     value = _positive_int(text)
     if value < 3:
@@ -87,6 +96,10 @@ def _positive_int(text: str) -> int:
 
 def command_run(args: argparse.Namespace) -> int:
     from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -95,8 +108,6 @@ def command_run(args: argparse.Namespace) -> int:
     from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
@@ -153,16 +164,18 @@ SHORTCUT_SCHEMA = "traystack-shortcut/1"
 def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
-    from .audit import shortcut_case
     from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
+    from .audit import shortcut_case
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
     from .reports import display_units, shortcut_tables
     from .results import UNITS, json_safe, write_atomic
 
     console = _console(args.quiet)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     report = shortcut_case(case)
     out = Path(args.out) if args.out else _default_out(case_path, "_shortcut")
@@ -204,15 +217,17 @@ def add_shortcut_command(sub) -> None:
 
 
 def command_audit(args: argparse.Namespace) -> int:
-    from .audit import MAX_SOLVES, SEVERITIES, audit_case
     from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
+    from .audit import MAX_SOLVES, SEVERITIES, audit_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
     from .results import write_result_json, write_stages_csv
 
     console = _console(args.quiet)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
         report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
@@ -448,6 +463,9 @@ def add_components_command(sub) -> None:
     components.set_defaults(handler=command_components)
 
 
+#: The commands that fit property curves, and so take ``--no-cache``.
+CACHED_COMMANDS = ("run", "shortcut", "audit", "check", "sweep")
+
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
     add_run_command, add_shortcut_command, add_audit_command, add_check_command, add_sweep_command,
@@ -470,6 +488,10 @@ def build_parser() -> argparse.ArgumentParser:
         add_command(sub)
     for command in sub.choices.values():  # --debug also after the command name
         command.add_argument("--debug", action="store_true", default=argparse.SUPPRESS, help="show the traceback of an error")
+    for name in CACHED_COMMANDS:
+        sub.choices[name].add_argument(
+            "--no-cache", action="store_true",
+            help="neither read nor write the cache of fitted property curves (fit them from CoolProp again)")
     return parser
 
 
@@ -483,6 +505,23 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 2
+    if getattr(args, "no_cache", False):  # through the environment, so that worker processes see it too
+        from .thermo.fit_cache import NO_CACHE_VARIABLE
+
+        saved = os.environ.get(NO_CACHE_VARIABLE)
+        os.environ[NO_CACHE_VARIABLE] = "1"
+        try:
+            return _handle(args)
+        finally:  # main() may run inside a longer process (tests, scripts)
+            if saved is None:
+                os.environ.pop(NO_CACHE_VARIABLE, None)
+            else:
+                os.environ[NO_CACHE_VARIABLE] = saved
+    return _handle(args)
+
+
+def _handle(args: argparse.Namespace) -> int:
+    """Run the command, turning every error into its message and exit code."""
     try:
         return args.handler(args)
     except TraystackError as exc:

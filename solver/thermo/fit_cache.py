@@ -10,10 +10,8 @@ either no entry or a whole one); an entry that cannot be read, has another key o
 fails its checksum is ignored (the caller builds the fit again and overwrites it). Nothing
 here raises: a cache that cannot be written only costs time.
 
-Where: ``$TRAYSTACK_CACHE_DIR`` if set, else the platform's user cache folder
-(``$XDG_CACHE_HOME/traystack`` or ``~/.cache/traystack`` on Linux,
-``~/Library/Caches/traystack`` on macOS, ``%LOCALAPPDATA%\\traystack\\Cache`` on Windows).
-``TRAYSTACK_NO_CACHE=1`` (the command's ``--no-cache``) neither reads nor writes it.
+The folder is :func:`solver.user_cache.cache_folder` (``fits-N`` inside it, N the format
+version); ``TRAYSTACK_NO_CACHE=1`` (the command's ``--no-cache``) neither reads nor writes it.
 """
 
 from __future__ import annotations
@@ -22,32 +20,21 @@ import hashlib
 import json
 import os
 import re
-import sys
 import tempfile
 from pathlib import Path
 
-__all__ = ["CACHE_DIR_VARIABLE", "FORMAT_VERSION", "NO_CACHE_VARIABLE", "cache_folder", "load", "store"]
+from solver.user_cache import NO_CACHE_VARIABLE, cache_folder
+
+__all__ = ["FORMAT_VERSION", "NO_CACHE_VARIABLE", "fits_folder", "load", "store"]
 
 #: Changes whenever the layout of an entry changes; older entries are then rebuilt.
 FORMAT_VERSION = 1
-CACHE_DIR_VARIABLE = "TRAYSTACK_CACHE_DIR"
-NO_CACHE_VARIABLE = "TRAYSTACK_NO_CACHE"
 
 
-def cache_folder() -> Path | None:
-    """The cache folder, or None when the cache is switched off."""
-    if os.environ.get(NO_CACHE_VARIABLE, "").strip() not in ("", "0"):
-        return None
-    chosen = os.environ.get(CACHE_DIR_VARIABLE, "").strip()
-    if chosen:
-        return Path(chosen).expanduser()
-    if sys.platform == "win32":
-        base = os.environ.get("LOCALAPPDATA") or str(Path.home() / "AppData" / "Local")
-        return Path(base) / "traystack" / "Cache"
-    if sys.platform == "darwin":
-        return Path.home() / "Library" / "Caches" / "traystack"
-    base = os.environ.get("XDG_CACHE_HOME", "").strip()
-    return (Path(base) if base else Path.home() / ".cache") / "traystack"
+def fits_folder() -> Path | None:
+    """The folder of the fits, or None when the cache is switched off."""
+    folder = cache_folder()
+    return None if folder is None else folder / f"fits-{FORMAT_VERSION}"
 
 
 def load(kind: str, key: dict) -> dict | None:
@@ -102,7 +89,7 @@ def _checksum(payload) -> str:
 
 
 def _entry_path(kind: str, key: dict) -> Path | None:
-    folder = cache_folder()
+    folder = fits_folder()
     if folder is None:
         return None
     digest = hashlib.sha256(f"{FORMAT_VERSION}:{kind}:{json.dumps(key, sort_keys=True)}".encode("utf-8")).hexdigest()

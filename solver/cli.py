@@ -17,6 +17,7 @@ import sys
 
 try:
     import argparse
+    import math
     import os
     import time
     import traceback
@@ -52,7 +53,40 @@ def _default_out(case_path: Path, suffix: str) -> Path:
 
 def _executor(jobs: int) -> Executor:
     """Worker processes for ``--jobs N`` (N > 1); a single worker thread otherwise."""
-    return ProcessPoolExecutor(max_workers=jobs) if jobs > 1 else ThreadPoolExecutor(max_workers=1)
+    if jobs > 1:
+        return ProcessPoolExecutor(max_workers=jobs, initializer=_worker_ignores_interrupts)
+    return ThreadPoolExecutor(max_workers=1)
+
+
+def _worker_ignores_interrupts() -> None:
+    """Ctrl-C reaches the whole process group; the command stops its workers itself."""
+    import signal
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+
+
+def _stop_workers(executor: Executor) -> None:
+    """Stop at once after Ctrl-C: pending work cancelled, worker processes terminated, and a
+    worker thread (``--jobs 1``) interrupted in its solve rather than waited for."""
+    import threading
+
+    processes = list((getattr(executor, "_processes", None) or {}).values())
+    threads = list(getattr(executor, "_threads", ()))
+    executor.shutdown(wait=False, cancel_futures=True)
+    hook = threading.excepthook  # a thread interrupted between two points has nothing to report
+    threading.excepthook = lambda args: None if issubclass(args.exc_type, KeyboardInterrupt) else hook(args)
+    for process in processes:
+        if process.is_alive():
+            process.terminate()
+    for thread in threads:
+        if thread.is_alive() and thread.ident is not None:
+            import ctypes
+
+            ctypes.pythonapi.PyThreadState_SetAsyncExc(ctypes.c_ulong(thread.ident), ctypes.py_object(KeyboardInterrupt))
+    for process in processes:
+        process.join(timeout=5.0)
+    for thread in threads:
+        thread.join(timeout=5.0)
 
 
 def _progress(console: Console) -> Progress:
@@ -311,14 +345,28 @@ def command_check(args: argparse.Namespace) -> int:
     cases = find_cases(args.cases)
     started = time.perf_counter()
     styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
-    with _executor(args.jobs) as executor, _progress(console) as progress:
-        task = progress.add_task("checking cases", total=len(cases))
+    executor = _executor(args.jobs)
+    done: list = []
+    try:
+        with _progress(console) as progress:
+            task = progress.add_task("checking cases", total=len(cases))
 
-        def advance(check) -> None:
-            progress.advance(task)
-            progress.refresh()
+            def advance(check) -> None:
+                done.append(check)
+                progress.advance(task)
+                progress.refresh()
 
-        checks = check_cases(cases, executor, update=args.update, progress=advance)
+            checks = check_cases(cases, executor, update=args.update, progress=advance)
+    except KeyboardInterrupt:
+        _stop_workers(executor)
+        finished = ", ".join(f"{check.name} {check.status}" for check in done) or "none"
+        print(f"traystack: interrupted; {len(done)} of {len(cases)} case(s) checked ({finished}); "
+              "no report written", file=sys.stderr)
+        return 130
+    except BaseException:
+        executor.shutdown(wait=False, cancel_futures=True)
+        raise
+    executor.shutdown()
     seconds = time.perf_counter() - started
     table = Table(title=f"traystack check {args.cases}", header_style="bold")
     for column in ("case", "status", "iterations", "time / s", "what moved (baseline -> now)"):
@@ -363,7 +411,7 @@ def add_check_command(sub) -> None:
 
 def command_sweep(args: argparse.Namespace) -> int:
     from .case import load_case
-    from .sweep import load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from .sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
 
     console = _console()
     case_path = Path(args.case)
@@ -376,14 +424,34 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
-    with _executor(args.jobs) as executor, _progress(console) as progress:
-        task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
+    executor = _executor(args.jobs)
+    try:
+        with _progress(console) as progress:
+            task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
 
-        def advance(outcome) -> None:
-            progress.advance(task)
-            progress.refresh()
+            solved: list = []
+            last_write = [-math.inf]
 
-        result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+            def advance(outcome) -> None:
+                progress.advance(task)
+                progress.refresh()
+                solved.append(outcome)  # sweep.csv shows the study so far, marked partial (at most once a second)
+                if time.monotonic() - last_write[0] >= 1.0:
+                    done = tuple(sorted(solved, key=lambda o: o.index))
+                    write_sweep_csv(SweepResult(tuple(variations), base.component_names, done, total), out / "sweep.csv")
+                    last_write[0] = time.monotonic()
+
+            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+    except SweepInterrupted as stop:
+        _stop_workers(executor)
+        written = write_sweep_csv(stop.result, out / "sweep.csv")
+        print(f"traystack: interrupted; the points already solved are written to {written} ({stop.result.study})",
+              file=sys.stderr)
+        return 130
+    except BaseException:
+        executor.shutdown(wait=False, cancel_futures=True)
+        raise
+    executor.shutdown()
     files = [write_sweep_csv(result, out / "sweep.csv")]
     figure = write_sweep_plot(result, out / "sweep.png", base.title)
     if figure is not None:

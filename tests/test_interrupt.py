@@ -2,12 +2,16 @@
 
 from __future__ import annotations
 
+import csv
+import io
 import json
 import signal
 import subprocess
 import sys
 import time
 from pathlib import Path
+
+import pytest
 
 ROOT = Path(__file__).resolve().parent.parent
 
@@ -44,3 +48,39 @@ def test_sigint_leaves_previous_outputs_intact(tmp_path):
         assert json.loads(after["result.json"])["title"]
     if process.returncode == 130 and after["result.json"] != before["result.json"]:
         assert json.loads(after["result.json"])["stages"].__len__() == 150
+
+
+def _wait_for(path: Path, process: subprocess.Popen, timeout: float) -> None:
+    deadline = time.monotonic() + timeout
+    while not path.exists():
+        assert process.poll() is None, process.communicate()[1]
+        assert time.monotonic() < deadline, f"no {path.name} after {timeout} s"
+        time.sleep(0.05)
+
+
+@pytest.mark.parametrize("jobs", ["1", "2"])
+def test_sigint_stops_a_sweep_soon_and_keeps_the_points_already_solved(tmp_path, jobs):
+    out = tmp_path / "sweep"
+    case = ROOT / "cases" / "methanol_water.toml"
+    points = 40  # far more than solve in the time the test waits
+    process = subprocess.Popen(
+        [sys.executable, "-m", "solver.cli", "sweep", str(case), "--vary", f"specs.reflux_ratio=1.2:3.0:{points}",
+         "--jobs", jobs, "--out", str(out)],
+        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
+    try:
+        _wait_for(out / "sweep.csv", process, timeout=300)  # the first point is solved and written
+        sent = time.monotonic()
+        process.send_signal(signal.SIGINT)
+        _, stderr = process.communicate(timeout=120)
+        stopped = time.monotonic() - sent
+    finally:
+        if process.poll() is None:
+            process.kill()
+    assert process.returncode == 130, stderr
+    assert "Traceback" not in stderr and "interrupted" in stderr
+    assert stopped < 5.0  # about a second on an idle machine; generous for a loaded one
+    rows = list(csv.DictReader(io.StringIO((out / "sweep.csv").read_text())))
+    assert 1 <= len(rows) < points
+    assert {row["study"] for row in rows} == {f"partial: {len(rows)} of {points} points done"}
+    assert all(row["converged"] == "true" for row in rows)
+    assert not [p.name for p in out.iterdir() if p.name.endswith(".tmp")]

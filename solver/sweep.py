@@ -365,8 +365,22 @@ def run_sweep(
     if len(points) > MAX_POINTS:
         raise CaseError(f"the sweep has {len(points)} points", key="--vary", expected=f"at most {MAX_POINTS}")
     outcomes: list[PointOutcome | None] = [None] * len(points)
-    futures = {}
-    components: tuple[str, ...] = ()
+    futures: dict = {}
+    components: list[str] = []  # filled by the first point that validates
+    try:
+        _solve_points(points, variations, document, executor, source_file, progress, outcomes, futures, components)
+    except KeyboardInterrupt:
+        for future in futures:  # the points not started are dropped; the caller stops the workers
+            future.cancel()
+        done = tuple(o for o in outcomes if o is not None)
+        raise SweepInterrupted(SweepResult(tuple(variations), tuple(components), done, len(points))) from None
+    return SweepResult(tuple(variations), tuple(components), tuple(o for o in outcomes if o is not None))
+
+
+def _solve_points(points, variations, document, executor, source_file, progress, outcomes: list, futures: dict,
+                  components: list) -> None:
+    """The body of :func:`run_sweep`: fills ``outcomes``, ``futures`` and ``components`` as it
+    goes, so that an interrupt leaves what is done."""
     for index, values in enumerate(points):
         assignments = _assignments(variations, values)
         try:
@@ -374,7 +388,8 @@ def run_sweep(
         except TraystackError as exc:
             outcomes[index] = _failure(index, tuple(values), exc, 0.0)
             continue
-        components = components or case.component_names
+        if not components:
+            components.extend(case.component_names)
         futures[executor.submit(solve_point, index, document, assignments, source_file)] = index
     if not futures:
         first = outcomes[0]
@@ -382,22 +397,15 @@ def run_sweep(
     for outcome in outcomes:
         if outcome is not None and progress is not None:
             progress(outcome)
-    try:
-        for future in as_completed(futures):
-            index = futures[future]
-            try:
-                outcome = future.result()
-            except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
-                outcome = _failure(index, tuple(points[index]), exc, 0.0)
-            outcomes[index] = outcome
-            if progress is not None:
-                progress(outcome)
-    except KeyboardInterrupt:
-        for future in futures:  # the points not started are dropped; the caller stops the workers
-            future.cancel()
-        done = tuple(o for o in outcomes if o is not None)
-        raise SweepInterrupted(SweepResult(tuple(variations), tuple(components), done, len(points))) from None
-    return SweepResult(tuple(variations), tuple(components), tuple(o for o in outcomes if o is not None))
+    for future in as_completed(futures):
+        index = futures[future]
+        try:
+            outcome = future.result()
+        except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
+            outcome = _failure(index, tuple(points[index]), exc, 0.0)
+        outcomes[index] = outcome
+        if progress is not None:
+            progress(outcome)
 
 
 # =======================================================================================

@@ -84,3 +84,21 @@ def test_sigint_stops_a_sweep_soon_and_keeps_the_points_already_solved(tmp_path,
     assert {row["study"] for row in rows} == {f"partial: {len(rows)} of {points} points done"}
     assert all(row["converged"] == "true" for row in rows)
     assert not [p.name for p in out.iterdir() if p.name.endswith(".tmp")]
+
+
+def test_sigint_stops_check_with_workers_soon(tmp_path):
+    process = subprocess.Popen([sys.executable, "-m", "solver.cli", "check", str(ROOT / "cases"), "--jobs", "2"],
+                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
+    try:
+        time.sleep(6.0)  # the workers are busy with the first cases (ten cases take far longer)
+        assert process.poll() is None, process.communicate()
+        sent = time.monotonic()
+        process.send_signal(signal.SIGINT)
+        _, stderr = process.communicate(timeout=120)
+        stopped = time.monotonic() - sent
+    finally:
+        if process.poll() is None:
+            process.kill()
+    assert process.returncode == 130, stderr
+    assert "Traceback" not in stderr and "interrupted" in stderr and "of 10 case(s) checked" in stderr
+    assert stopped < 5.0

@@ -21,7 +21,6 @@ try:
     import os
     import time
     import traceback
-    from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
     from pathlib import Path
 
     from rich.console import Console
@@ -49,44 +48,6 @@ def _console(quiet: bool = False, stderr: bool = False) -> Console:
 def _default_out(case_path: Path, suffix: str) -> Path:
     """The default output folder: named after the case, in the current folder."""
     return Path.cwd() / f"{case_path.stem}{suffix}"
-
-
-def _executor(jobs: int) -> Executor:
-    """Worker processes for ``--jobs N`` (N > 1); a single worker thread otherwise."""
-    if jobs > 1:
-        return ProcessPoolExecutor(max_workers=jobs, initializer=_worker_ignores_interrupts)
-    return ThreadPoolExecutor(max_workers=1)
-
-
-def _worker_ignores_interrupts() -> None:
-    """Ctrl-C reaches the whole process group; the command stops its workers itself."""
-    import signal
-
-    signal.signal(signal.SIGINT, signal.SIG_IGN)
-
-
-def _stop_workers(executor: Executor) -> None:
-    """Stop at once after Ctrl-C: pending work cancelled, worker processes terminated, and a
-    worker thread (``--jobs 1``) interrupted in its solve rather than waited for."""
-    import threading
-
-    processes = list((getattr(executor, "_processes", None) or {}).values())
-    threads = list(getattr(executor, "_threads", ()))
-    executor.shutdown(wait=False, cancel_futures=True)
-    hook = threading.excepthook  # a thread interrupted between two points has nothing to report
-    threading.excepthook = lambda args: None if issubclass(args.exc_type, KeyboardInterrupt) else hook(args)
-    for process in processes:
-        if process.is_alive():
-            process.terminate()
-    for thread in threads:
-        if thread.is_alive() and thread.ident is not None:
-            import ctypes
-
-            ctypes.pythonapi.PyThreadState_SetAsyncExc(ctypes.c_ulong(thread.ident), ctypes.py_object(KeyboardInterrupt))
-    for process in processes:
-        process.join(timeout=5.0)
-    for thread in threads:
-        thread.join(timeout=5.0)
 
 
 def _progress(console: Console) -> Progress:
@@ -340,12 +301,13 @@ def _moved(check) -> str:
 def command_check(args: argparse.Namespace) -> int:
     from .regress import DRIFT, FAILED, NO_BASELINE, PASS, check_cases, find_cases, junit_xml
     from .results import write_atomic
+    from .workers import local_executor, stop_workers
 
     console = _console()
     cases = find_cases(args.cases)
     started = time.perf_counter()
     styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
-    executor = _executor(args.jobs)
+    executor = local_executor(args.jobs)
     done: list = []
     try:
         with _progress(console) as progress:
@@ -358,7 +320,7 @@ def command_check(args: argparse.Namespace) -> int:
 
             checks = check_cases(cases, executor, update=args.update, progress=advance)
     except KeyboardInterrupt:
-        _stop_workers(executor)
+        stop_workers(executor)
         finished = ", ".join(f"{check.name} {check.status}" for check in done) or "none"
         print(f"traystack: interrupted; {len(done)} of {len(cases)} case(s) checked ({finished}); "
               "no report written", file=sys.stderr)
@@ -412,6 +374,7 @@ def add_check_command(sub) -> None:
 def command_sweep(args: argparse.Namespace) -> int:
     from .case import load_case
     from .sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from .workers import local_executor, stop_workers
 
     console = _console()
     case_path = Path(args.case)
@@ -424,7 +387,7 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
-    executor = _executor(args.jobs)
+    executor = local_executor(args.jobs)
     try:
         with _progress(console) as progress:
             task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
@@ -443,7 +406,7 @@ def command_sweep(args: argparse.Namespace) -> int:
 
             result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
     except SweepInterrupted as stop:
-        _stop_workers(executor)
+        stop_workers(executor)
         written = write_sweep_csv(stop.result, out / "sweep.csv")
         print(f"traystack: interrupted; the points already solved are written to {written} ({stop.result.study})",
               file=sys.stderr)

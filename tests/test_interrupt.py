@@ -58,24 +58,30 @@ def _wait_for(path: Path, process: subprocess.Popen, timeout: float) -> None:
         time.sleep(0.05)
 
 
+def _interrupt(command: list[str], ready) -> tuple[subprocess.Popen, str, float]:
+    """Start ``command``, wait until ``ready(process)`` returns, send SIGINT; (process, its
+    stderr, seconds from the signal to its exit)."""
+    process = subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
+    try:
+        ready(process)
+        sent = time.monotonic()
+        process.send_signal(signal.SIGINT)
+        _, stderr = process.communicate(timeout=120)
+        return process, stderr, time.monotonic() - sent
+    finally:
+        if process.poll() is None:
+            process.kill()
+
+
 @pytest.mark.parametrize("jobs", ["1", "2"])
 def test_sigint_stops_a_sweep_soon_and_keeps_the_points_already_solved(tmp_path, jobs):
     out = tmp_path / "sweep"
     case = ROOT / "cases" / "methanol_water.toml"
     points = 40  # far more than solve in the time the test waits
-    process = subprocess.Popen(
-        [sys.executable, "-m", "solver.cli", "sweep", str(case), "--vary", f"specs.reflux_ratio=1.2:3.0:{points}",
-         "--jobs", jobs, "--out", str(out)],
-        stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
-    try:
-        _wait_for(out / "sweep.csv", process, timeout=300)  # the first point is solved and written
-        sent = time.monotonic()
-        process.send_signal(signal.SIGINT)
-        _, stderr = process.communicate(timeout=120)
-        stopped = time.monotonic() - sent
-    finally:
-        if process.poll() is None:
-            process.kill()
+    command = [sys.executable, "-m", "solver.cli", "sweep", str(case), "--vary", f"specs.reflux_ratio=1.2:3.0:{points}",
+               "--jobs", jobs, "--out", str(out)]
+    # the first point is solved and written
+    process, stderr, stopped = _interrupt(command, lambda process: _wait_for(out / "sweep.csv", process, timeout=300))
     assert process.returncode == 130, stderr
     assert "Traceback" not in stderr and "interrupted" in stderr
     assert stopped < 5.0  # about a second on an idle machine; generous for a loaded one
@@ -87,18 +93,20 @@ def test_sigint_stops_a_sweep_soon_and_keeps_the_points_already_solved(tmp_path,
 
 
 def test_sigint_stops_check_with_workers_soon(tmp_path):
-    process = subprocess.Popen([sys.executable, "-m", "solver.cli", "check", str(ROOT / "cases"), "--jobs", "2"],
-                               stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True, cwd=ROOT)
-    try:
-        time.sleep(6.0)  # the workers are busy with the first cases (ten cases take far longer)
+    copies = 5  # the cases five times over: far more than are checked in the time the test waits
+    for case in (ROOT / "cases").glob("*.toml"):
+        for copy in range(copies):
+            (tmp_path / f"{case.stem}_{copy}.toml").write_text(case.read_text())
+            baseline = case.with_name(case.stem + ".expected.json")
+            (tmp_path / f"{case.stem}_{copy}.expected.json").write_text(baseline.read_text())
+    total = len(list(tmp_path.glob("*.toml")))
+
+    def busy(process) -> None:
+        time.sleep(6.0)  # the workers are busy with the first cases
         assert process.poll() is None, process.communicate()
-        sent = time.monotonic()
-        process.send_signal(signal.SIGINT)
-        _, stderr = process.communicate(timeout=120)
-        stopped = time.monotonic() - sent
-    finally:
-        if process.poll() is None:
-            process.kill()
+
+    command = [sys.executable, "-m", "solver.cli", "check", str(tmp_path), "--jobs", "2"]
+    process, stderr, stopped = _interrupt(command, busy)
     assert process.returncode == 130, stderr
-    assert "Traceback" not in stderr and "interrupted" in stderr and "of 10 case(s) checked" in stderr
+    assert "Traceback" not in stderr and "interrupted" in stderr and f"of {total} case(s) checked" in stderr
     assert stopped < 5.0

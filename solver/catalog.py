@@ -1,5 +1,5 @@
 """What ``traystack components`` shows: CoolProp's usable pure fluids (from the shipped index
-:mod:`solver._coolprop_index`, so a search imports neither CoolProp nor ``chemicals``) beside
+:mod:`solver.fluids`, so a search imports neither CoolProp nor ``chemicals``) beside
 the compounds of the handbook library (:mod:`solver.handbook`, its shipped name index), found by
 name, alias or synonym, CAS number or formula; and, for one exact name, where each of its
 properties comes from."""
@@ -11,7 +11,8 @@ import fnmatch
 from dataclasses import dataclass
 from functools import lru_cache
 
-from solver import _coolprop_index
+from solver.components import list_components
+from solver.fluids import fluid_aliases
 from solver.handbook.names import AmbiguousFormula, IndexEntry, entries, find, loose, search
 
 __all__ = ["CoolPropFluid", "Matches", "close_names", "coolprop_fluid", "exact_handbook", "matches"]
@@ -40,7 +41,11 @@ class Matches:
 
 @lru_cache(maxsize=1)
 def _fluids() -> tuple[CoolPropFluid, ...]:
-    return tuple(CoolPropFluid(*row) for row in _coolprop_index.FLUIDS)
+    return tuple(
+        CoolPropFluid(info.name, info.coolprop_name, fluid_aliases(info.coolprop_name), info.molar_mass,
+                      info.normal_boiling_point, info.critical_temperature, info.critical_pressure)
+        for info in list_components()
+    )
 
 
 @lru_cache(maxsize=1)

@@ -17,10 +17,10 @@ import sys
 
 try:
     import argparse
+    import math
     import os
     import time
     import traceback
-    from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
     from pathlib import Path
 
     from rich.console import Console
@@ -35,7 +35,7 @@ except KeyboardInterrupt:  # Ctrl-C while the command is still starting: nothing
     print("traystack: interrupted while starting; nothing was written", file=sys.stderr)
     raise SystemExit(130) from None
 
-__all__ = ["COMMANDS", "PLOT_FILES", "build_parser", "main"]
+__all__ = ["CACHED_COMMANDS", "COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
@@ -51,17 +51,21 @@ def _default_out(case_path: Path, suffix: str) -> Path:
     return Path.cwd() / f"{case_path.stem}{suffix}"
 
 
-def _executor(jobs: int) -> Executor:
-    """Worker processes for ``--jobs N`` (N > 1); a single worker thread otherwise."""
-    return ProcessPoolExecutor(max_workers=jobs) if jobs > 1 else ThreadPoolExecutor(max_workers=1)
-
-
 def _progress(console: Console) -> Progress:
     # auto_refresh=False: no refresh thread, so worker processes are never forked while one runs
     return Progress(
         TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
         console=console, auto_refresh=False, transient=True, disable=not console.is_terminal,
     )
+
+
+def _known_components(case) -> None:
+    """Refuse an unknown component before the engine's modules are imported (they take
+    seconds); the lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
+    from .components import component_info
+
+    for name in case.component_names:
+        component_info(name, case.component_data)
 
 
 def _at_least_three(text: str) -> int:
@@ -88,6 +92,10 @@ def _positive_int(text: str) -> int:
 
 def command_run(args: argparse.Namespace) -> int:
     from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -97,8 +105,6 @@ def command_run(args: argparse.Namespace) -> int:
     from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
@@ -156,17 +162,19 @@ SHORTCUT_SCHEMA = "traystack-shortcut/1"
 def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
+    from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
     from .audit import shortcut_case
     from .audit.flags import two_liquids
-    from .case import load_case
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
     from .reports import display_units, shortcut_tables
     from .results import UNITS, json_safe, write_atomic
 
     console = _console(args.quiet)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     report = shortcut_case(case)
     out = Path(args.out) if args.out else _default_out(case_path, "_shortcut")
@@ -210,15 +218,17 @@ def add_shortcut_command(sub) -> None:
 
 
 def command_audit(args: argparse.Namespace) -> int:
-    from .audit import MAX_SOLVES, SEVERITIES, audit_case
     from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
+    from .audit import MAX_SOLVES, SEVERITIES, audit_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
     from .results import write_result_json, write_stages_csv
 
     console = _console(args.quiet)
-    case_path = Path(args.case)
-    case = load_case(case_path)
     units = display_units(case.display, args.units)
     with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
         report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
@@ -297,19 +307,34 @@ def _moved(check) -> str:
 def command_check(args: argparse.Namespace) -> int:
     from .regress import DRIFT, FAILED, NO_BASELINE, PASS, check_cases, find_cases, junit_xml
     from .results import write_atomic
+    from .workers import local_executor, stop_workers
 
     console = _console()
     cases = find_cases(args.cases)
     started = time.perf_counter()
     styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
-    with _executor(args.jobs) as executor, _progress(console) as progress:
-        task = progress.add_task("checking cases", total=len(cases))
+    executor = local_executor(args.jobs)
+    done: list = []
+    try:
+        with _progress(console) as progress:
+            task = progress.add_task("checking cases", total=len(cases))
 
-        def advance(check) -> None:
-            progress.advance(task)
-            progress.refresh()
+            def advance(check) -> None:
+                done.append(check)
+                progress.advance(task)
+                progress.refresh()
 
-        checks = check_cases(cases, executor, update=args.update, progress=advance)
+            checks = check_cases(cases, executor, update=args.update, progress=advance)
+    except KeyboardInterrupt:
+        stop_workers(executor)
+        finished = ", ".join(f"{check.name} {check.status}" for check in done) or "none"
+        print(f"traystack: interrupted; {len(done)} of {len(cases)} case(s) checked ({finished}); "
+              "no report written", file=sys.stderr)
+        return 130
+    except BaseException:
+        executor.shutdown(wait=False, cancel_futures=True)
+        raise
+    executor.shutdown()
     seconds = time.perf_counter() - started
     table = Table(title=f"traystack check {args.cases}", header_style="bold")
     for column in ("case", "status", "iterations", "time / s", "what moved (baseline -> now)"):
@@ -354,7 +379,8 @@ def add_check_command(sub) -> None:
 
 def command_sweep(args: argparse.Namespace) -> int:
     from .case import load_case
-    from .sweep import load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from .sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from .workers import local_executor, stop_workers
 
     console = _console()
     case_path = Path(args.case)
@@ -367,14 +393,34 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
-    with _executor(args.jobs) as executor, _progress(console) as progress:
-        task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
+    executor = local_executor(args.jobs)
+    try:
+        with _progress(console) as progress:
+            task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
 
-        def advance(outcome) -> None:
-            progress.advance(task)
-            progress.refresh()
+            solved: list = []
+            last_write = [-math.inf]
 
-        result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+            def advance(outcome) -> None:
+                progress.advance(task)
+                progress.refresh()
+                solved.append(outcome)  # sweep.csv shows the study so far, marked partial (at most once a second)
+                if time.monotonic() - last_write[0] >= 1.0:
+                    done = tuple(sorted(solved, key=lambda o: o.index))
+                    write_sweep_csv(SweepResult(tuple(variations), base.component_names, done, total), out / "sweep.csv")
+                    last_write[0] = time.monotonic()
+
+            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+    except SweepInterrupted as stop:
+        stop_workers(executor)
+        written = write_sweep_csv(stop.result, out / "sweep.csv")
+        print(f"traystack: interrupted; the points already solved are written to {written} ({stop.result.study})",
+              file=sys.stderr)
+        return 130
+    except BaseException:
+        executor.shutdown(wait=False, cancel_futures=True)
+        raise
+    executor.shutdown()
     files = [write_sweep_csv(result, out / "sweep.csv")]
     figure = write_sweep_plot(result, out / "sweep.png", base.title)
     if figure is not None:
@@ -518,6 +564,9 @@ def add_components_command(sub) -> None:
     components.set_defaults(handler=command_components)
 
 
+#: The commands that fit property curves, and so take ``--no-cache``.
+CACHED_COMMANDS = ("run", "shortcut", "audit", "check", "sweep")
+
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
     add_run_command, add_shortcut_command, add_audit_command, add_check_command, add_sweep_command,
@@ -540,6 +589,10 @@ def build_parser() -> argparse.ArgumentParser:
         add_command(sub)
     for command in sub.choices.values():  # --debug also after the command name
         command.add_argument("--debug", action="store_true", default=argparse.SUPPRESS, help="show the traceback of an error")
+    for name in CACHED_COMMANDS:
+        sub.choices[name].add_argument(
+            "--no-cache", action="store_true",
+            help="neither read nor write the cache of fitted property curves (fit them from CoolProp again)")
     return parser
 
 
@@ -553,6 +606,23 @@ def main(argv: list[str] | None = None) -> int:
     if not getattr(args, "command", None):
         parser.print_help()
         return 2
+    if getattr(args, "no_cache", False):  # through the environment, so that worker processes see it too
+        from .thermo.fit_cache import NO_CACHE_VARIABLE
+
+        saved = os.environ.get(NO_CACHE_VARIABLE)
+        os.environ[NO_CACHE_VARIABLE] = "1"
+        try:
+            return _handle(args)
+        finally:  # main() may run inside a longer process (tests, scripts)
+            if saved is None:
+                os.environ.pop(NO_CACHE_VARIABLE, None)
+            else:
+                os.environ[NO_CACHE_VARIABLE] = saved
+    return _handle(args)
+
+
+def _handle(args: argparse.Namespace) -> int:
+    """Run the command, turning every error into its message and exit code."""
     try:
         return args.handler(args)
     except TraystackError as exc:

@@ -7,7 +7,8 @@ A component named in a case is looked up first among the components the user def
 case (``"n-heptane"``, ``"N-HEPTANE"``, ``"heptane"`` and ``"nC7H16"`` all give CoolProp's
 ``n-Heptane``). Constants of CoolProp fluids come from the fluid's reference equation of state
 through ``AbstractState("HEOS", name)`` (Bell et al. 2014, Ind. Eng. Chem. Res. 53, 2498-2508,
-for CoolProp itself).
+for CoolProp itself), read from the index of :mod:`solver.fluids`, so that looking a component
+up does not import CoolProp.
 
 Pseudo-pure mixtures (R404A, Air, ...) and fluids whose saturation curve CoolProp cannot compute
 are not offered: a distillation column needs each component's vapor pressure.
@@ -16,20 +17,15 @@ are not offered: a distillation column needs each component's vapor pressure.
 from __future__ import annotations
 
 import fnmatch
-import math
 from dataclasses import dataclass
 from functools import lru_cache
 from typing import Mapping
 
-import CoolProp
-import CoolProp.CoolProp as CP
-from scipy.constants import atm as ATMOSPHERIC_PRESSURE  # Pa, the pressure of the normal boiling point
-
 from solver.errors import CaseError
-from solver.fluids import coolprop_name, fluid_aliases, fluid_names, fluid_parameter
+from solver.fluids import coolprop_name, coolprop_version, fluid_aliases, fluid_entry, fluid_names, fluid_parameter
 from solver.thermo.data import ComponentData
 
-__all__ = ["ComponentInfo", "coolprop_rows", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]
+__all__ = ["ComponentInfo", "component_info", "coolprop_source", "list_components", "usable_coolprop_name"]
 
 
 @dataclass(frozen=True)
@@ -107,22 +103,11 @@ def usable_coolprop_name(name: str) -> str | None:
     return fluid if fluid is not None and _unusable_reason(fluid) is None else None
 
 
-def coolprop_rows() -> tuple[tuple, ...]:
-    """The usable CoolProp fluids as rows (name, CoolProp name, aliases, molar mass, normal
-    boiling point, critical temperature, critical pressure), SI, sorted by name: the content of
-    the shipped index :mod:`solver._coolprop_index`."""
-    return tuple(
-        (info.name, info.coolprop_name, fluid_aliases(info.coolprop_name), info.molar_mass,
-         info.normal_boiling_point, info.critical_temperature, info.critical_pressure)
-        for info in _all_coolprop_infos()
-    )
-
-
 def coolprop_source(fluid: str) -> str:
     """The source line for a CoolProp fluid: version and the BibTeX keys CoolProp gives for the
     fluid's reference equation of state and ideal-gas heat capacity."""
     eos = fluid_parameter(fluid, "BibTeX-EOS") or "reference not stated by CoolProp"
-    text = f"CoolProp {CoolProp.__version__} (reference EOS of {fluid}: {eos}"
+    text = f"CoolProp {coolprop_version()} (reference EOS of {fluid}: {eos}"
     cp0 = fluid_parameter(fluid, "BibTeX-CP0")
     if cp0 and cp0 != eos:
         text += f"; ideal-gas heat capacity: {cp0}"
@@ -132,42 +117,14 @@ def coolprop_source(fluid: str) -> str:
 # --- helpers -----------------------------------------------------------------------------------
 
 
-@lru_cache(maxsize=None)
 def _unusable_reason(fluid: str) -> str | None:
-    if fluid_parameter(fluid, "pure") != "true":
-        return "CoolProp models it as a pseudo-pure mixture, without a vapor-liquid saturation curve of its own"
-    try:
-        state = CP.AbstractState("HEOS", fluid)
-        Tc = state.T_critical()
-        T_low = max(state.Ttriple(), state.Tmin())
-        for T in (T_low, 0.5 * (T_low + Tc), Tc * (1.0 - 1e-3)):
-            state.update(CP.QT_INPUTS, 0.0, T)
-            if not (math.isfinite(state.p()) and state.p() > 0.0):
-                return f"CoolProp gives no saturation pressure at {T:.2f} K"
-    except Exception as exc:  # CoolProp raises ValueError with its own message
-        return f"CoolProp cannot compute its saturation curve ({exc})"
-    return None
+    return fluid_entry(fluid)["unusable"]
 
 
-@lru_cache(maxsize=None)
 def _coolprop_constants(fluid: str) -> tuple[float, float, float, float | None, float]:
-    state = CP.AbstractState("HEOS", fluid)
-    normal_boiling_point: float | None
-    try:
-        if state.p_triple() < ATMOSPHERIC_PRESSURE < state.p_critical():
-            state.update(CP.PQ_INPUTS, ATMOSPHERIC_PRESSURE, 0.0)
-            normal_boiling_point = float(state.T())
-        else:
-            normal_boiling_point = None
-    except Exception:
-        normal_boiling_point = None
-    return (
-        float(state.molar_mass()),
-        float(state.T_critical()),
-        float(state.p_critical()),
-        normal_boiling_point,
-        float(state.Ttriple()),
-    )
+    entry = fluid_entry(fluid)
+    return (entry["molar_mass"], entry["critical_temperature"], entry["critical_pressure"],
+            entry["normal_boiling_point"], entry["triple_temperature"])
 
 
 def _coolprop_info(fluid: str, name: str) -> ComponentInfo:

@@ -13,7 +13,9 @@ in an executor (the command line makes a :class:`~concurrent.futures.ProcessPool
 distributed one, such as the executor of a Dask ``Client``, plugs in the same way). What goes
 to a worker is plain data (the TOML document as a dict and the key/value assignments), so it
 pickles. A point that fails (bad value at that point, infeasible specification, no
-convergence) is reported with its message; the other points go on.
+convergence) is reported with its message; the other points go on. An interrupt (Ctrl-C)
+cancels the points not yet started and raises :class:`SweepInterrupted` with the points
+already solved, a partial study that ``sweep.csv`` marks as such.
 """
 
 from __future__ import annotations
@@ -44,6 +46,7 @@ __all__ = [
     "Variation",
     "PointOutcome",
     "SweepResult",
+    "SweepInterrupted",
     "MAX_POINTS",
     "parse_key",
     "parse_variation",
@@ -121,6 +124,18 @@ class SweepResult:
     variations: tuple[Variation, ...]
     components: tuple[str, ...]
     outcomes: tuple[PointOutcome, ...]  # in point order
+    planned: int | None = None  # points of the whole study when only some are here; None: complete
+
+    @property
+    def partial(self) -> bool:
+        return self.planned is not None
+
+    @property
+    def study(self) -> str:
+        """The word "complete", or how much of a partial study (in progress or interrupted) there is."""
+        if self.planned is None:
+            return "complete"
+        return f"partial: {len(self.outcomes)} of {self.planned} points done"
 
     @property
     def failed(self) -> tuple[PointOutcome, ...]:
@@ -135,6 +150,14 @@ class SweepResult:
                 bottoms = np.asarray(outcome.products["bottoms"][1])
                 return int(np.argmax(distillate - bottoms)), int(np.argmax(bottoms - distillate))
         return None
+
+
+class SweepInterrupted(KeyboardInterrupt):
+    """Ctrl-C during a sweep: ``result`` holds the points already done (``result.partial``)."""
+
+    def __init__(self, result: SweepResult) -> None:
+        super().__init__(result.study)
+        self.result = result
 
 
 # =======================================================================================
@@ -342,8 +365,22 @@ def run_sweep(
     if len(points) > MAX_POINTS:
         raise CaseError(f"the sweep has {len(points)} points", key="--vary", expected=f"at most {MAX_POINTS}")
     outcomes: list[PointOutcome | None] = [None] * len(points)
-    futures = {}
-    components: tuple[str, ...] = ()
+    futures: dict = {}
+    components: list[str] = []  # filled by the first point that validates
+    try:
+        _solve_points(points, variations, document, executor, source_file, progress, outcomes, futures, components)
+    except KeyboardInterrupt:
+        for future in futures:  # the points not started are dropped; the caller stops the workers
+            future.cancel()
+        done = tuple(o for o in outcomes if o is not None)
+        raise SweepInterrupted(SweepResult(tuple(variations), tuple(components), done, len(points))) from None
+    return SweepResult(tuple(variations), tuple(components), tuple(o for o in outcomes if o is not None))
+
+
+def _solve_points(points, variations, document, executor, source_file, progress, outcomes: list, futures: dict,
+                  components: list) -> None:
+    """The body of :func:`run_sweep`: fills ``outcomes``, ``futures`` and ``components`` as it
+    goes, so that an interrupt leaves what is done."""
     for index, values in enumerate(points):
         assignments = _assignments(variations, values)
         try:
@@ -351,7 +388,8 @@ def run_sweep(
         except TraystackError as exc:
             outcomes[index] = _failure(index, tuple(values), exc, 0.0)
             continue
-        components = components or case.component_names
+        if not components:
+            components.extend(case.component_names)
         futures[executor.submit(solve_point, index, document, assignments, source_file)] = index
     if not futures:
         first = outcomes[0]
@@ -368,7 +406,6 @@ def run_sweep(
         outcomes[index] = outcome
         if progress is not None:
             progress(outcome)
-    return SweepResult(tuple(variations), tuple(components), tuple(o for o in outcomes if o is not None))
 
 
 # =======================================================================================
@@ -393,13 +430,14 @@ def _cell(value: Any) -> str:
 
 def sweep_csv(result: SweepResult) -> str:
     """One row per point: the varied values (in their units), status, iterations, duties [W],
-    reflux and boilup ratios, product flows [mol/s] and compositions, time, message."""
+    reflux and boilup ratios, product flows [mol/s] and compositions, time, message, and
+    whether the study is complete or partial (interrupted)."""
     products = _product_names(result)
     header = ["point", *[variation.label for variation in result.variations], "status", "converged", "iterations",
               "residual_norm", "condenser_duty_W", "reboiler_duty_W", "reflux_ratio", "boilup_ratio"]
     for product in products:
         header += [f"{product}_flow_mol_s", *[f"x_{product}_{name}" for name in result.components]]
-    header += ["seconds", "message"]
+    header += ["seconds", "message", "study"]
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(header)
@@ -412,7 +450,7 @@ def sweep_csv(result: SweepResult) -> str:
         for product in products:
             flow, composition = (outcome.products or {}).get(product, (None, (None,) * len(result.components)))
             row += [_cell(flow), *[_cell(x) for x in composition]]
-        row += [f"{outcome.seconds:.3f}", outcome.message]
+        row += [f"{outcome.seconds:.3f}", outcome.message, result.study]
         writer.writerow(row)
     return buffer.getvalue()
 

@@ -19,6 +19,8 @@ from functools import lru_cache
 
 import pint
 
+from solver.user_cache import cache_folder
+
 __all__ = [
     "MAX_TEXT_LENGTH",
     "SI_UNITS",
@@ -32,7 +34,22 @@ __all__ = [
     "ureg",
 ]
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+
+def _registry() -> pint.UnitRegistry:
+    """The registry, its parsed definitions kept in the user cache folder (pint's own disk
+    cache: building the registry from its definition file takes about half a second, reading
+    the cache a twentieth); without the cache if it is switched off or cannot be read."""
+    folder = cache_folder()
+    if folder is not None:
+        try:
+            return pint.UnitRegistry(autoconvert_offset_to_baseunit=True, cache_folder=folder / "pint")
+        except Exception:  # a damaged or unwritable cache: the definitions are read from pint's file
+            pass
+    return pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+
+ureg = _registry()
 # pound-mole, used on US datasheets (453.59237 g per lb, NIST SP 811)
 ureg.define("lbmol = 453.59237 * mol = lb_mol")
 Quantity = ureg.Quantity

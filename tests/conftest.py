@@ -2,11 +2,17 @@
 
 from __future__ import annotations
 
+import os
+import tempfile
 import textwrap
 
 import pytest
 
 from solver.case import loads_case
+
+# the fitted curves go to a cache folder of this test session (inherited by the commands the
+# tests start), never to the user's own cache
+os.environ.setdefault("TRAYSTACK_CACHE_DIR", tempfile.mkdtemp(prefix="traystack-test-cache-"))
 
 
 def case_from_text(text: str, name: str = "<test case>"):

@@ -46,8 +46,6 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
 
 from __future__ import annotations
 
-from scipy.constants import R as GAS_CONSTANT
-
 from solver.case.column_table import MAX_STAGES
 from solver.case.feeds_table import COMPOSITION_TOLERANCE, molar_mass_of
 from solver.case.model import (
@@ -94,3 +92,11 @@ __all__ = [
     "molar_mass_of",
     "parse_case",
 ]
+
+
+def __getattr__(name: str):
+    if name == "GAS_CONSTANT":  # scipy.constants on first use: a case that is refused never waits for it
+        from scipy.constants import R
+
+        return R
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -149,11 +149,12 @@ def _mass_to_mole_fractions(
 
 def molar_mass_of(name: str) -> float:
     """Molar mass in kg/mol of the CoolProp fluid ``name``, matched case-insensitively against
-    CoolProp's fluid names and their aliases (``AbstractState("HEOS", name).molar_mass()``).
+    CoolProp's fluid names and their aliases (``AbstractState("HEOS", name).molar_mass()``, from
+    the index of :mod:`solver.fluids`).
     Raises :class:`CaseError` (without a file) when CoolProp has no such fluid."""
     if not isinstance(name, str):
         raise CaseError("a component name is needed", value=name)
-    from solver.fluids import coolprop_name, name_index
+    from solver.fluids import coolprop_name, fluid_entry, name_index
 
     try:
         fluid = coolprop_name(name)
@@ -164,10 +165,7 @@ def molar_mass_of(name: str) -> float:
         close = difflib.get_close_matches(name.strip().lower(), list(names), n=3, cutoff=0.7)
         hint = f" (did you mean {', '.join(repr(names[c]) for c in close)}?)" if close else ""
         raise CaseError(f"{name!r} is not a CoolProp fluid{hint}", value=name, expected="a CoolProp fluid name")
-    try:
-        from CoolProp.CoolProp import AbstractState
-
-        molar_mass = float(AbstractState("HEOS", fluid).molar_mass())
-    except Exception as exc:  # CoolProp reports its failures as ValueError or RuntimeError
-        raise CaseError(f"CoolProp cannot give the molar mass of {fluid!r} ({exc})", value=name) from None
+    molar_mass = fluid_entry(fluid)["molar_mass"]
+    if not molar_mass > 0.0:
+        raise CaseError(f"CoolProp cannot give the molar mass of {fluid!r}", value=name)
     return molar_mass

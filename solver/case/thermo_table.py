@@ -8,7 +8,6 @@ import math
 from types import MappingProxyType
 from typing import Any, Mapping
 
-from scipy.constants import R as GAS_CONSTANT
 
 from solver.case.fields import (
     At,
@@ -338,6 +337,8 @@ def _refuse_old_pair_keys(table: Mapping, model: str, at: At) -> None:
 def _read_energy_form(model: str, value: Any, at: At) -> tuple[tuple[float, float], dict[str, object]]:
     """The term over temperature [K] that the energy form (dg, dlambda or du) gives (see
     :class:`BinaryParameters`), and the form as written and in J/mol, for the record."""
+    from scipy.constants import R as GAS_CONSTANT  # here: a case that is refused never waits for scipy
+
     energy_key = _ENERGY_FORM_KEY[model]
     energy = read_ij_ji(value, at, quantity("molar_energy"))
     sign = 1.0 if model == "nrtl" else -1.0

@@ -15,7 +15,6 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy.optimize import brentq
 
 from solver.thermo.data import ComponentData, Correlation
 from solver.errors import CaseError
@@ -93,6 +92,8 @@ def boiling_point_of(corr: Correlation, Tc: float | None = None) -> float | None
     try:
         if not (gap(low) < 0.0 < gap(high)):
             return None
+        from scipy.optimize import brentq  # scipy.optimize only when a boiling point is solved for
+
         return float(brentq(gap, low, high, xtol=1e-9))
     except (ValueError, FloatingPointError):
         return None

@@ -12,12 +12,19 @@ converted.
 * :mod:`.summary` -- ``summary.md``.
 """
 
-from .audit_tables import (SIDE_BY_SIDE_NOTE, audit_markdown, audit_tables, basis_rows, cmo_rows, flag_rows,
-                           shortcut_rows, shortcut_tables, side_by_side_rows)
-from .cautions import CAUTION, cautions
-from .display import DisplayUnits, display_units
-from .run_tables import spec_rows, summary_tables
-from .summary import summary_markdown, write_summary
+import importlib
+import types
+
+#: public name -> the submodule that defines it; imported on first use, so that reading the
+#: general caution (``--help``) does not pay for the result and case modules
+_WHERE = {
+    **dict.fromkeys(("SIDE_BY_SIDE_NOTE", "audit_markdown", "audit_tables", "basis_rows", "cmo_rows", "flag_rows",
+                     "shortcut_rows", "shortcut_tables", "side_by_side_rows"), "audit_tables"),
+    **dict.fromkeys(("CAUTION", "cautions"), "cautions"),
+    **dict.fromkeys(("DisplayUnits", "display_units"), "display"),
+    **dict.fromkeys(("spec_rows", "summary_tables"), "run_tables"),
+    **dict.fromkeys(("summary_markdown", "write_summary"), "summary"),
+}
 
 __all__ = [
     "CAUTION",
@@ -38,3 +45,16 @@ __all__ = [
     "summary_tables",
     "write_summary",
 ]
+
+
+def __getattr__(name: str):
+    if name in _WHERE:
+        value = getattr(importlib.import_module(f".{_WHERE[name]}", __name__), name)
+        globals()[name] = value
+        # importing a submodule binds its name here; where a function has that name, the
+        # function is meant (audit_tables, cautions)
+        for clash in set(_WHERE) & set(_WHERE.values()):
+            if isinstance(globals().get(clash), types.ModuleType):
+                globals()[clash] = getattr(globals()[clash], clash)
+        return value
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -5,10 +5,14 @@ general caution shown under every result (:data:`CAUTION`)."""
 
 from __future__ import annotations
 
+from typing import TYPE_CHECKING
+
 import numpy as np
 
 from ..caution import CAUTION
-from ..results import Result
+
+if TYPE_CHECKING:  # only named as a type: the command's --help reads CAUTION without the results' imports
+    from ..results import Result
 
 __all__ = ["CAUTION", "ELEVATED_PRESSURE", "NEAR_CRITICAL_REDUCED_TEMPERATURE", "PRESENT_FRACTION", "cautions"]
 

@@ -1,5 +1,5 @@
 """Piecewise Chebyshev fits of CoolProp's pure-fluid properties, built once per fluid (cached
-in the process): the saturation curve (vapor pressure, heat of vaporization, saturated liquid
+in the process and on disk, :mod:`solver.thermo.fit_cache`): the saturation curve (vapor pressure, heat of vaporization, saturated liquid
 volume) and the ideal-gas heat capacity, sampled with CoolProp's ``AbstractState`` (reference
 equations of state; Bell et al. 2014, Ind. Eng. Chem. Res. 53, 2498-2508) and represented by
 piecewise Chebyshev interpolants (Trefethen 2013, Approximation Theory and Approximation
@@ -17,6 +17,10 @@ interpolant matches CoolProp within :data:`FIT_TOLERANCE` at the Chebyshev-Lobat
 every piece (where the interpolation error of Chebyshev nodes of the first kind peaks). The
 achieved maximum error is kept and reported (:func:`describe_fit`). The fits are evaluated by
 :mod:`solver.thermo.piecewise_table`.
+
+A fit found in the disk cache under the same fluid, CoolProp version and fit settings is used
+as stored (the coefficients exactly); CoolProp is imported only to build a fit that is not
+there.
 """
 
 from __future__ import annotations
@@ -26,11 +30,12 @@ from dataclasses import dataclass
 from functools import lru_cache
 from typing import Callable, Mapping
 
-import CoolProp.CoolProp as CP
 import numpy as np
 from numpy.polynomial import chebyshev, polynomial
 
 from solver.errors import ThermoError
+from solver.fluids import coolprop_version
+from solver.thermo import fit_cache
 
 __all__ = [
     "CRITICAL_GAPS",
@@ -114,12 +119,27 @@ class IdealGasFit:
 
 @lru_cache(maxsize=None)
 def saturation_fits(fluid: str) -> SaturationFits:
-    """Fits of the CoolProp saturation curve of ``fluid`` (cached per process): ln Psat (as
-    Tr ln(Psat/Pc)), ln dHvap and ln V_satL in s = ln(1 - T/Tc), from the triple point (or
-    CoolProp's Tmin) to as close to Tc as the tolerance allows (see :data:`CRITICAL_GAPS`). If
-    the tolerance cannot be met there, the lower end is raised to where Psat reaches
-    :data:`LOW_END_PRESSURES` (far below anything a column sees) before the upper end is moved
-    away from Tc."""
+    """Fits of the CoolProp saturation curve of ``fluid`` (cached per process and on disk):
+    ln Psat (as Tr ln(Psat/Pc)), ln dHvap and ln V_satL in s = ln(1 - T/Tc), from the triple
+    point (or CoolProp's Tmin) to as close to Tc as the tolerance allows (see
+    :data:`CRITICAL_GAPS`). If the tolerance cannot be met there, the lower end is raised to
+    where Psat reaches :data:`LOW_END_PRESSURES` (far below anything a column sees) before the
+    upper end is moved away from Tc."""
+    key = _cache_key(fluid)
+    stored = fit_cache.load("saturation", key)
+    if stored is not None:
+        try:
+            return _saturation_from_json(stored, fluid)
+        except (KeyError, TypeError, ValueError):  # a damaged entry: built again below
+            pass
+    fits = _build_saturation_fits(fluid)
+    fit_cache.store("saturation", key, _saturation_to_json(fits))
+    return fits
+
+
+def _build_saturation_fits(fluid: str) -> SaturationFits:
+    import CoolProp.CoolProp as CP
+
     state = CP.AbstractState("HEOS", fluid)
     Tc, Pc = float(state.T_critical()), float(state.p_critical())
     T_floor = max(float(state.Ttriple()), float(state.Tmin()))
@@ -183,7 +203,24 @@ def saturation_fits(fluid: str) -> SaturationFits:
 @lru_cache(maxsize=None)
 def ideal_gas_fit(fluid: str, T_low: float, T_high: float) -> IdealGasFit:
     """Fit of CoolProp's ideal-gas heat capacity cp0 (J/(mol K)) of ``fluid`` on [T_low,
-    T_high] K (cached per process)."""
+    T_high] K (cached per process and on disk)."""
+    key = {**_cache_key(fluid), "T_low": float(T_low), "T_high": float(T_high)}
+    stored = fit_cache.load("ideal_gas", key)
+    if stored is not None:
+        try:
+            fit = _fit_from_json(stored["cp"], IDEAL_GAS_TERMS)
+            if (fit.low, fit.high) == (float(T_low), float(T_high)):
+                return IdealGasFit(fluid, fit)
+        except (KeyError, TypeError, ValueError):  # a damaged entry: built again below
+            pass
+    fit = _build_ideal_gas_fit(fluid, T_low, T_high)
+    fit_cache.store("ideal_gas", key, {"cp": _fit_to_json(fit.cp)})
+    return fit
+
+
+def _build_ideal_gas_fit(fluid: str, T_low: float, T_high: float) -> IdealGasFit:
+    import CoolProp.CoolProp as CP
+
     state = CP.AbstractState("HEOS", fluid)
     density = 1e-6  # mol/m3; cp0 depends on T only, the density just makes a valid state
 
@@ -199,6 +236,60 @@ def ideal_gas_fit(fluid: str, T_low: float, T_high: float) -> IdealGasFit:
     except (ValueError, RuntimeError) as exc:
         raise ThermoError(f"CoolProp could not compute the ideal-gas heat capacity of {fluid}: {exc}") from None
     return IdealGasFit(fluid, _named(fits["cp"], "cp0", "T", "relative error of cp0"))
+
+
+def _cache_key(fluid: str) -> dict:
+    """What a stored fit depends on: the fluid, CoolProp's version and every fit setting."""
+    return {
+        "fluid": fluid,
+        "coolprop_version": coolprop_version(),
+        "saturation_terms": SATURATION_TERMS,
+        "ideal_gas_terms": IDEAL_GAS_TERMS,
+        "fit_tolerance": FIT_TOLERANCE,
+        "max_pieces": MAX_PIECES,
+        "critical_gaps": list(CRITICAL_GAPS),
+        "low_end_pressures": list(LOW_END_PRESSURES),
+    }
+
+
+def _fit_to_json(fit: PiecewiseFit) -> dict:
+    return {
+        "quantity": fit.quantity, "variable": fit.variable, "low": fit.low, "high": fit.high, "pieces": fit.pieces,
+        "coefficients": fit.coefficients.tolist(), "max_error": fit.max_error, "error_measure": fit.error_measure,
+    }
+
+
+def _fit_from_json(data: dict, terms: int) -> PiecewiseFit:
+    """A fit read back from the cache; ValueError if it is not a well-formed fit."""
+    coefficients = np.array(data["coefficients"], dtype=float)
+    pieces, low, high = data["pieces"], float(data["low"]), float(data["high"])
+    if (
+        not isinstance(pieces, int) or not 1 <= pieces <= MAX_PIECES
+        or coefficients.shape != (pieces, terms) or not np.all(np.isfinite(coefficients))
+        or not (math.isfinite(low) and math.isfinite(high) and low < high)
+    ):
+        raise ValueError("not a well-formed fit")
+    coefficients.setflags(write=False)
+    return PiecewiseFit(str(data["quantity"]), str(data["variable"]), low, high, pieces, coefficients,
+                        float(data["max_error"]), str(data["error_measure"]))
+
+
+def _saturation_to_json(fits: SaturationFits) -> dict:
+    return {
+        "critical_temperature": fits.critical_temperature, "critical_pressure": fits.critical_pressure,
+        "T_low": fits.T_low, "T_high": fits.T_high, "wagner": _fit_to_json(fits.wagner),
+        "ln_heat_of_vaporization": _fit_to_json(fits.ln_heat_of_vaporization),
+        "ln_liquid_volume": _fit_to_json(fits.ln_liquid_volume),
+    }
+
+
+def _saturation_from_json(data: dict, fluid: str) -> SaturationFits:
+    quantities = [_fit_from_json(data[name], SATURATION_TERMS)
+                  for name in ("wagner", "ln_heat_of_vaporization", "ln_liquid_volume")]
+    if len({(f.low, f.high, f.pieces) for f in quantities}) != 1:
+        raise ValueError("the saturation fits do not share their pieces")
+    return SaturationFits(fluid, float(data["critical_temperature"]), float(data["critical_pressure"]),
+                          float(data["T_low"]), float(data["T_high"]), *quantities)
 
 
 def _fit_adaptively(

@@ -11,7 +11,6 @@ test is skipped and recorded as such.
 
 from __future__ import annotations
 
-import time
 from dataclasses import dataclass
 from typing import Any, Sequence
 
@@ -33,7 +32,7 @@ class LiquidSplitCheck:
     liquid (stage numbers, or the curve's x); ``minimum_tpd`` (n,) the lowest tangent-plane
     distance / RT found for each; ``split`` the indices of the liquids that would split;
     ``compositions`` (n, c) the liquids tested and ``trial_compositions`` (n, c) the incipient
-    second liquid found for each; ``seconds`` the time the test took."""
+    second liquid found for each."""
 
     tested: bool
     model: str
@@ -45,7 +44,6 @@ class LiquidSplitCheck:
     trial_compositions: np.ndarray | None = None
     minimum_tpd: np.ndarray | None = None
     converged: np.ndarray | None = None
-    seconds: float = 0.0
 
     @property
     def split(self) -> tuple[int, ...]:
@@ -68,7 +66,6 @@ class LiquidSplitCheck:
             return record
         names = self.components
         record.update(
-            seconds=self.seconds,
             split=[self.labels[k] for k in self.split],
             liquids=[
                 {
@@ -100,7 +97,6 @@ def check_liquids(
     if model in _NEVER_SPLIT or len(components) < 2:
         return LiquidSplitCheck(False, model, tuple(components),
                                 reason=f"the {model} liquid model cannot predict two liquid phases")
-    started = time.perf_counter()
     temperature = np.asarray(temperature, dtype=float)
     x = np.clip(np.asarray(x, dtype=float), 0.0, None)
     found = liquid_stability(activity, temperature, x)
@@ -112,5 +108,4 @@ def check_liquids(
         trial_compositions=np.array([f.trial_composition for f in found]),
         minimum_tpd=np.array([f.minimum_tpd for f in found]),
         converged=np.array([f.converged for f in found]),
-        seconds=time.perf_counter() - started,
     )

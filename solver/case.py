@@ -34,6 +34,8 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   designs for where the specs do not say -- ``distillate``/``bottoms`` = {NAME = x} (product mole
   fractions), ``reflux_ratio`` or ``reflux_factor`` (times the minimum reflux, > 1) -- and
   ``thresholds`` = {KEY = value} over the audit's defaults (keys :data:`AUDIT_THRESHOLD_KEYS`).
+- ``[sizing]`` (optional, read by ``traystack size``, and by ``run`` and ``audit`` when present):
+  the column internals and their design inputs, read by :mod:`solver.case_sizing`.
 """
 
 from __future__ import annotations
@@ -47,6 +49,7 @@ from dataclasses import dataclass, field, replace
 from types import MappingProxyType
 from typing import Any, Callable, Mapping, NoReturn
 
+from solver.case_sizing import SizingOptions, read_sizing_table
 from solver.errors import CaseError
 from solver.units import SI_UNITS, UnitParseError, temperature_scale, to_si, unit_factor
 
@@ -220,6 +223,7 @@ class Case:
     check: Mapping[str, float] = field(default_factory=_frozen_mapping)  # tolerances
     display: Mapping[str, str] = field(default_factory=_frozen_mapping)  # screen units
     audit: AuditOptions | None = None  # the optional [audit] table
+    sizing: SizingOptions | None = None  # the optional [sizing] table (solver.case_sizing)
     source_file: str = ""
     raw: Mapping[str, object] = field(default_factory=_frozen_mapping)  # the TOML as read
     # Added by the parser: notes that are not errors, e.g. a [components.data] entry that
@@ -266,7 +270,7 @@ AUDIT_THRESHOLD_KEYS = (
 )
 _AUDIT_KEYS = ("distillate", "bottoms", "reflux_ratio", "reflux_factor", "thresholds")
 
-_TOP_KEYS = ("title", "components", "thermo", "column", "feeds", "specs", "check", "display", "audit")
+_TOP_KEYS = ("title", "components", "thermo", "column", "feeds", "specs", "check", "display", "audit", "sizing")
 _COMPONENT_DATA_KEYS = (
     "molar_mass",
     "critical_temperature",
@@ -656,6 +660,7 @@ def _parse(data: Any, at: _At) -> Case:
         check=MappingProxyType(check),
         display=MappingProxyType(display),
         audit=audit,
+        sizing=read_sizing_table(data["sizing"], names, at.child("sizing")) if "sizing" in data else None,
         source_file=at.file,
         raw=MappingProxyType(_plain(data)),
         warnings=tuple(warnings),

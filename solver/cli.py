@@ -1,6 +1,6 @@
-"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``check``, ``sweep``, ``components``.
+"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``size``, ``check``, ``sweep``, ``components``.
 
-Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit``
+Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit`` or ``size``
 raised a flag at or above ``--fail-on``; 2 bad input or
 an infeasible specification (one message naming the file, key and value; ``--debug`` shows the
 traceback); 3 the solver did not converge (``run`` still writes the result, marked
@@ -33,7 +33,7 @@ __all__ = ["COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
-PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png")
+PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 
 
 def _console(quiet: bool = False, stderr: bool = False) -> Console:
@@ -93,6 +93,7 @@ def command_run(args: argparse.Namespace) -> int:
     case_path = Path(args.case)
     case = load_case(case_path)
     units = display_units(case.display, args.units)
+    sizing_data = _sizing_liquids(case) if case.sizing is not None else None  # a missing property is bad input
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
         result = simulate(case, options=options)
@@ -101,10 +102,12 @@ def command_run(args: argparse.Namespace) -> int:
             raise
         result = exc.result
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    if sizing_data is not None and result.converged:
+        result = _with_sizing(case, result, sizing_data, console)
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
     if result.converged:
-        plots = write_all(result, out, thermo=ThermoPackage.from_case(case))
+        plots = write_all(result, out, thermo=ThermoPackage.from_case(case)) + _sizing_figure(result, out)
     else:
         for name in PLOT_FILES:
             (out / name).unlink(missing_ok=True)
@@ -114,6 +117,7 @@ def command_run(args: argparse.Namespace) -> int:
         print(result.to_json())
     for table in summary_tables(result, units):
         console.print(table)
+    _print_sizing(result, console)
     for text in cautions(result)[:-1]:
         console.print(f"[yellow]caution:[/] {text}")
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
@@ -212,6 +216,13 @@ def command_audit(args: argparse.Namespace) -> int:
     with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
         report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
     result = report.result
+    if result.converged:  # the shortcut's column in hardware, beside what its CMO traffic would have sized
+        try:
+            sizing_data = _sizing_liquids(case)
+        except CaseError as exc:
+            console.print(f"[yellow]no sizing:[/] {exc}")
+        else:
+            result = _with_sizing(case, result, sizing_data, console)
     out = Path(args.out) if args.out else _default_out(case_path, "_audit")
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
@@ -223,6 +234,7 @@ def command_audit(args: argparse.Namespace) -> int:
         if report.shortcut.is_binary:
             layers = [shortcut_layer(report.shortcut.design)]
             plots.append(yx_diagram(result, out / "yx.png", layers=layers, rigorous_steps=False))
+        plots += _sizing_figure(result, out)
     else:
         for name in PLOT_FILES:
             (out / name).unlink(missing_ok=True)
@@ -231,6 +243,7 @@ def command_audit(args: argparse.Namespace) -> int:
     for table in audit_tables(result, units):
         console.print(table)
     console.print(SIDE_BY_SIDE_NOTE, style="dim")
+    _print_sizing(result, console)
     console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
     for text in cautions(result)[:-1]:
         if not text.startswith("["):  # the flags are in their table
@@ -243,7 +256,7 @@ def command_audit(args: argparse.Namespace) -> int:
         return 3
     if args.fail_on:
         level = SEVERITIES.index(args.fail_on)
-        failing = [flag for flag in report.flags if SEVERITIES.index(flag.severity) >= level]
+        failing = [flag for flag in report.flags + _sizing_flags(result) if SEVERITIES.index(flag.severity) >= level]
         if failing:
             print(f"traystack: {len(failing)} audit flag(s) at or above {args.fail_on}: "
                   + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
@@ -265,6 +278,109 @@ def add_audit_command(sub) -> None:
     audit.add_argument("--max-solves", type=_at_least_three, metavar="N",
                        help="most rigorous solves the audit may use (default 30, at least 3)")
     audit.set_defaults(handler=command_audit)
+
+
+# =======================================================================================
+# size
+# =======================================================================================
+
+
+def _sizing_liquids(case):
+    """(thermo package, pure-liquid properties) for the sizing; CaseError (exit 2) for a
+    property nobody gives."""
+    from .sizing import PureLiquids
+    from .thermo.package import ThermoPackage
+
+    thermo = ThermoPackage.from_case(case)
+    return thermo, PureLiquids.from_case(case, thermo)
+
+
+def _with_sizing(case, result, sizing_data, console):
+    """``result`` with ``extra["sizing"]``; a column that cannot be sized keeps its result, with
+    the reason on screen."""
+    from .errors import SpecError
+    from .sizing import size_column
+
+    try:
+        return result.with_extra(sizing=size_column(case, result, *sizing_data))
+    except SpecError as exc:
+        console.print(f"[yellow]no sizing:[/] {exc}")
+        return result
+
+
+def _sizing_flags(result) -> tuple:
+    sizing = result.extra.get("sizing")
+    return tuple(sizing.flags) if sizing is not None else ()
+
+
+def _sizing_figure(result, out: Path) -> list[Path]:
+    sizing = result.extra.get("sizing")
+    if sizing is None:
+        return []
+    from .sizing.figure import FLOOD_FIGURE, flood_profile
+
+    return [flood_profile(sizing, result.stage_count, out / FLOOD_FIGURE, f"% of flood: {result.title}")]
+
+
+def _print_sizing(result, console: Console) -> None:
+    if "sizing" not in result.extra:
+        return
+    from .reports.sizing_tables import SIZING_CAUTION, sizing_tables
+
+    for table in sizing_tables(result):
+        console.print(table)
+    console.print(SIZING_CAUTION, style="dim")
+
+
+def command_size(args: argparse.Namespace) -> int:
+    from .audit import SEVERITIES
+    from .case import load_case
+    from .engine import simulate
+    from .reports import display_units, write_summary
+    from .results import write_result_json, write_stages_csv
+    from .sizing import size_column
+
+    console = _console(args.quiet)
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    units = display_units(case.display, args.units)
+    thermo, liquids = _sizing_liquids(case)
+    result = simulate(case)
+    out = Path(args.out) if args.out else _default_out(case_path, "_size")
+    if not result.converged:
+        write_result_json(result, out / "result.json")
+        (out / "flood.png").unlink(missing_ok=True)
+        print(f"traystack: not converged: {result.message}; nothing to size. The result is written to "
+              f"{out / 'result.json'} marked converged: false", file=sys.stderr)
+        return 3
+    result = result.with_extra(sizing=size_column(case, result, thermo, liquids))
+    plots = _sizing_figure(result, out)
+    written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv"),
+               write_summary(result, out / "summary.md", units, [path.name for path in plots]), *plots]
+    _print_sizing(result, console)
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    if args.fail_on:
+        level = SEVERITIES.index(args.fail_on)
+        failing = [flag for flag in _sizing_flags(result) if SEVERITIES.index(flag.severity) >= level]
+        if failing:
+            print(f"traystack: {len(failing)} sizing flag(s) at or above {args.fail_on}: "
+                  + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
+            return 1
+    return 0
+
+
+def add_size_command(sub) -> None:
+    size = sub.add_parser("size", help="tray or packing hydraulics and diameters from the rigorous traffic, beside the "
+                          "CMO traffic's")
+    size.add_argument("case", help="case file (TOML); an optional [sizing] table sets the internals (default: sieve "
+                      "trays, 0.6 m spacing, 80 %% of flood)")
+    size.add_argument("--out", metavar="DIR", help="output folder (default: CASE_size in the current folder)")
+    size.add_argument("--fail-on", choices=("warning", "serious"),
+                      help="exit 1 when a sizing flag of this severity or worse is raised (for CI)")
+    size.add_argument("--units", help="summary units, as for run")
+    size.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+    size.set_defaults(handler=command_size)
 
 
 # =======================================================================================
@@ -445,7 +561,7 @@ def add_components_command(sub) -> None:
 
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
-    add_run_command, add_shortcut_command, add_audit_command, add_check_command, add_sweep_command,
+    add_run_command, add_shortcut_command, add_audit_command, add_size_command, add_check_command, add_sweep_command,
     add_components_command,
 )
 
@@ -454,7 +570,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="traystack",
         description="Rigorous tray-by-tray distillation column simulation (MESH equations, Newton's method).",
-        epilog="Exit codes: 0 success, 1 check found drift or audit raised a flag asked to fail on, 2 bad input or "
+        epilog="Exit codes: 0 success, 1 check found drift or audit or size raised a flag asked to fail on, 2 bad input or "
         "infeasible specification, "
         "3 not converged, 4 internal error. Caution: " + CAUTION,
     )

@@ -38,6 +38,14 @@ SI_UNITS: dict[str, str] = {
     "molar_heat_capacity": "J/mol/K",
     "inverse_temperature": "1/K",
     "dimensionless": "dimensionless",
+    # column hardware ([sizing])
+    "length": "m",
+    "time": "s",
+    "velocity": "m/s",
+    "mass_density": "kg/m**3",
+    "surface_tension": "N/m",
+    "viscosity": "Pa*s",
+    "inverse_length": "1/m",
 }
 
 #: Longest quantity or unit text accepted; nothing a case file needs comes close.

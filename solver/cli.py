@@ -203,7 +203,7 @@ def add_shortcut_command(sub) -> None:
 
 
 def command_audit(args: argparse.Namespace) -> int:
-    from .audit import MAX_SOLVES, SEVERITIES, audit_case
+    from .audit import MAX_SOLVES, audit_case
     from .case import load_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
@@ -254,14 +254,7 @@ def command_audit(args: argparse.Namespace) -> int:
         print(f"traystack: the shortcut's column did not converge rigorously: {result.message}; the result is written "
               f"to {out / 'result.json'} marked converged: false", file=sys.stderr)
         return 3
-    if args.fail_on:
-        level = SEVERITIES.index(args.fail_on)
-        failing = [flag for flag in report.flags + _sizing_flags(result) if SEVERITIES.index(flag.severity) >= level]
-        if failing:
-            print(f"traystack: {len(failing)} audit flag(s) at or above {args.fail_on}: "
-                  + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
-            return 1
-    return 0
+    return _fail_on(args.fail_on, report.flags + _sizing_flags(result), "audit")
 
 
 def add_audit_command(sub) -> None:
@@ -308,6 +301,20 @@ def _with_sizing(case, result, sizing_data, console):
         return result
 
 
+def _fail_on(severity: str | None, flags, what: str) -> int:
+    """1 (with a line on stderr) when a flag reaches ``severity`` (``--fail-on``), else 0."""
+    from .audit import SEVERITIES
+
+    if not severity:
+        return 0
+    failing = [flag for flag in flags if SEVERITIES.index(flag.severity) >= SEVERITIES.index(severity)]
+    if not failing:
+        return 0
+    print(f"traystack: {len(failing)} {what} flag(s) at or above {severity}: "
+          + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
+    return 1
+
+
 def _sizing_flags(result) -> tuple:
     sizing = result.extra.get("sizing")
     return tuple(sizing.flags) if sizing is not None else ()
@@ -333,7 +340,6 @@ def _print_sizing(result, console: Console) -> None:
 
 
 def command_size(args: argparse.Namespace) -> int:
-    from .audit import SEVERITIES
     from .case import load_case
     from .engine import simulate
     from .reports import display_units, write_summary
@@ -360,14 +366,7 @@ def command_size(args: argparse.Namespace) -> int:
     _print_sizing(result, console)
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
-    if args.fail_on:
-        level = SEVERITIES.index(args.fail_on)
-        failing = [flag for flag in _sizing_flags(result) if SEVERITIES.index(flag.severity) >= level]
-        if failing:
-            print(f"traystack: {len(failing)} sizing flag(s) at or above {args.fail_on}: "
-                  + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
-            return 1
-    return 0
+    return _fail_on(args.fail_on, _sizing_flags(result), "sizing")
 
 
 def add_size_command(sub) -> None:

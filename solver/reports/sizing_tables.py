@@ -62,7 +62,7 @@ def sizing_rows(sizing: ColumnSizing) -> tuple[list[str], list[list[str]]]:
     return header, rows
 
 
-def _basis_lines(sizing: ColumnSizing) -> list[str]:
+def _basis_lines(sizing: ColumnSizing, result: Result) -> list[str]:
     options = sizing.options
     if options.packed:
         packing = options.packing
@@ -88,6 +88,11 @@ def _basis_lines(sizing: ColumnSizing) -> list[str]:
                      + (f" ({sizing.efficiency_note})" if sizing.efficiency_note else "") + ".")
     elif sizing.efficiency_note and not options.packed:
         lines.append(f"No overall efficiency: {sizing.efficiency_note}; real trays = theoretical stages.")
+    murphree = result.stated_efficiencies[sizing.stages - 1]
+    if not options.packed and murphree.min() < 1.0:
+        lines.append(f"The case gives Murphree vapor efficiencies {murphree.min():.3g} to {murphree.max():.3g}: its "
+                     "stages are real trays already, so real trays = stages (O'Connell's efficiency above is for "
+                     "comparison).")
     return lines + list(sizing.notes)
 
 
@@ -99,7 +104,7 @@ def sizing_tables(result: Result) -> list[Table]:
                             left=2)
     header, rows = sizing_rows(sizing)
     built = screen_table(f"column hardware: {result.title}", header, rows)
-    built.caption = "\n".join(_basis_lines(sizing))
+    built.caption = "\n".join(_basis_lines(sizing, result))
     built.caption_justify = "left"
     tables = [headline, built]
     flags = Table(title="sizing flags", header_style="bold")
@@ -124,7 +129,7 @@ def sizing_markdown(result: Result, units=None) -> list[str]:
     lines += ["", "## Column hardware", ""]
     header, rows = sizing_rows(sizing)
     lines += markdown_table(header, rows, [False] + [True] * 6)
-    lines += [""] + [f"- {line}" for line in _basis_lines(sizing)] + [""]
+    lines += [""] + [f"- {line}" for line in _basis_lines(sizing, result)] + [""]
     lines += ["Sizing flags:", ""]
     lines += [f"- [{f.severity}] {f.code}: {f.message}" for f in sizing.flags] or ["- none"]
     lines += ["", f"_{SIZING_CAUTION}_", ""]

@@ -168,32 +168,46 @@ def _cas(info: ComponentInfo) -> str | None:
         return None
 
 
-def _surface_tension(info: ComponentInfo) -> tuple[Curve | None, str]:
-    curve, reason = _coolprop_curve(info, "surface_tension")
+def _from_coolprop_or_table(info: ComponentInfo, output: str, fallback: Callable[[], tuple]) -> tuple[Curve | None, str]:
+    """CoolProp's curve for ``output``; for a CoolProp fluid without it, the handbook table
+    ``fallback()`` gives as (table keyed by CAS number, citation, curve from a row)."""
+    curve, reason = _coolprop_curve(info, output)
     if curve is not None or info.backend != "coolprop":
         return curve, reason
-    from chemicals.interface import sigma_data_Mulero_Cachadina as table
-
+    table, citation, curve_of = fallback()
     cas = _cas(info)
     if cas not in table.index:
-        return None, reason + "; not in Mulero et al. (2012)"
-    row = table.loc[cas]
-    terms = [(float(row[f"sigma{k}"]), float(row[f"n{k}"])) for k in range(3)]
-    Tc = float(row["Tc"])
-    return (lambda T: sum(s * np.clip(1.0 - T / Tc, 0.0, None) ** n for s, n in terms)), _MULERO
+        return None, f"{reason}; not in {citation.split(' (')[0]}"
+    return curve_of(table.loc[cas]), citation
+
+
+def _mulero_table() -> tuple:
+    from chemicals.interface import sigma_data_Mulero_Cachadina as table
+
+    def curve_of(row) -> Curve:
+        terms = [(float(row[f"sigma{k}"]), float(row[f"n{k}"])) for k in range(3)]
+        Tc = float(row["Tc"])
+        return lambda T: sum(s * np.clip(1.0 - T / Tc, 0.0, None) ** n for s, n in terms)
+
+    return table, _MULERO, curve_of
+
+
+def _perry_313_table() -> tuple:
+    from chemicals.viscosity import mu_data_Perrys_8E_2_313 as table
+
+    def curve_of(row) -> Curve:
+        C1, C2, C3, C4, C5 = (float(row[f"C{k}"]) for k in range(1, 6))
+        return lambda T: np.exp(C1 + C2 / T + C3 * np.log(T) + C4 * T ** C5)
+
+    return table, _PERRY_313, curve_of
+
+
+def _surface_tension(info: ComponentInfo) -> tuple[Curve | None, str]:
+    return _from_coolprop_or_table(info, "surface_tension", _mulero_table)
 
 
 def _viscosity(info: ComponentInfo) -> tuple[Curve | None, str]:
-    curve, reason = _coolprop_curve(info, "viscosity")
-    if curve is not None or info.backend != "coolprop":
-        return curve, reason
-    from chemicals.viscosity import mu_data_Perrys_8E_2_313 as table
-
-    cas = _cas(info)
-    if cas not in table.index:
-        return None, reason + "; not in Perry's Table 2-313"
-    C1, C2, C3, C4, C5 = (float(table.loc[cas, f"C{k}"]) for k in range(1, 6))
-    return (lambda T: np.exp(C1 + C2 / T + C3 * np.log(T) + C4 * T ** C5)), _PERRY_313
+    return _from_coolprop_or_table(info, "viscosity", _perry_313_table)
 
 
 def _molar_volume(case: Case, thermo: ThermoPackage, infos: list[ComponentInfo],

@@ -87,13 +87,14 @@ def command_run(args: argparse.Namespace) -> int:
     from .reports import cautions, display_units, summary_tables, write_summary
     from .results import Result, write_result_json, write_stages_csv
     from .engine import simulate
+    from .sizing import sizing_inputs
     from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)
     case_path = Path(args.case)
     case = load_case(case_path)
     units = display_units(case.display, args.units)
-    sizing_data = _sizing_liquids(case) if case.sizing is not None else None  # a missing property is bad input
+    sizing_data = sizing_inputs(case) if case.sizing is not None else None  # a missing property is bad input
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
         result = simulate(case, options=options)
@@ -208,6 +209,7 @@ def command_audit(args: argparse.Namespace) -> int:
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
     from .results import write_result_json, write_stages_csv
+    from .sizing import sizing_inputs
 
     console = _console(args.quiet)
     case_path = Path(args.case)
@@ -218,7 +220,7 @@ def command_audit(args: argparse.Namespace) -> int:
     result = report.result
     if result.converged:  # the shortcut's column in hardware, beside what its CMO traffic would have sized
         try:
-            sizing_data = _sizing_liquids(case)
+            sizing_data = sizing_inputs(case)
         except CaseError as exc:
             console.print(f"[yellow]no sizing:[/] {exc}")
         else:
@@ -278,27 +280,15 @@ def add_audit_command(sub) -> None:
 # =======================================================================================
 
 
-def _sizing_liquids(case):
-    """(thermo package, pure-liquid properties) for the sizing; CaseError (exit 2) for a
-    property nobody gives."""
-    from .sizing import PureLiquids
-    from .thermo.package import ThermoPackage
-
-    thermo = ThermoPackage.from_case(case)
-    return thermo, PureLiquids.from_case(case, thermo)
-
-
 def _with_sizing(case, result, sizing_data, console):
     """``result`` with ``extra["sizing"]``; a column that cannot be sized keeps its result, with
     the reason on screen."""
-    from .errors import SpecError
-    from .sizing import size_column
+    from .sizing import attach_sizing
 
-    try:
-        return result.with_extra(sizing=size_column(case, result, *sizing_data))
-    except SpecError as exc:
-        console.print(f"[yellow]no sizing:[/] {exc}")
-        return result
+    sized, reason = attach_sizing(case, result, sizing_data)
+    if reason:
+        console.print(f"[yellow]no sizing:[/] {reason}")
+    return sized
 
 
 def _fail_on(severity: str | None, flags, what: str) -> int:
@@ -321,22 +311,15 @@ def _sizing_flags(result) -> tuple:
 
 
 def _sizing_figure(result, out: Path) -> list[Path]:
-    sizing = result.extra.get("sizing")
-    if sizing is None:
-        return []
-    from .sizing.figure import FLOOD_FIGURE, flood_profile
+    from .sizing.figure import write_flood_figure
 
-    return [flood_profile(sizing, result.stage_count, out / FLOOD_FIGURE, f"% of flood: {result.title}")]
+    return write_flood_figure(result, out)
 
 
 def _print_sizing(result, console: Console) -> None:
-    if "sizing" not in result.extra:
-        return
-    from .reports.sizing_tables import SIZING_CAUTION, sizing_tables
+    from .reports.sizing_tables import print_sizing
 
-    for table in sizing_tables(result):
-        console.print(table)
-    console.print(SIZING_CAUTION, style="dim")
+    print_sizing(result, console)
 
 
 def command_size(args: argparse.Namespace) -> int:
@@ -344,13 +327,13 @@ def command_size(args: argparse.Namespace) -> int:
     from .engine import simulate
     from .reports import display_units, write_summary
     from .results import write_result_json, write_stages_csv
-    from .sizing import size_column
+    from .sizing import size_column, sizing_inputs
 
     console = _console(args.quiet)
     case_path = Path(args.case)
     case = load_case(case_path)
     units = display_units(case.display, args.units)
-    thermo, liquids = _sizing_liquids(case)
+    thermo, liquids = sizing_inputs(case)
     result = simulate(case)
     out = Path(args.out) if args.out else _default_out(case_path, "_size")
     if not result.converged:

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
+from rich.console import Console
 from rich.table import Table
 
 from ..results import Result
@@ -17,7 +18,7 @@ from .display import cell, markdown_table, screen_table
 if TYPE_CHECKING:  # read by attribute only
     from ..sizing import ColumnSizing
 
-__all__ = ["SIZING_CAUTION", "diameter_rows", "sizing_markdown", "sizing_rows", "sizing_tables"]
+__all__ = ["SIZING_CAUTION", "diameter_rows", "print_sizing", "sizing_markdown", "sizing_rows", "sizing_tables"]
 
 #: Shown under every sizing.
 SIZING_CAUTION = ("Hydraulics are preliminary (Fair's flooding correlation, Robbins' pressure drop, rules of thumb for "
@@ -118,7 +119,16 @@ def sizing_tables(result: Result) -> list[Table]:
     return tables
 
 
-def sizing_markdown(result: Result, units=None) -> list[str]:
+def print_sizing(result: Result, console: Console) -> None:
+    """The sizing's tables and caution on ``console`` (nothing without a sizing)."""
+    if "sizing" not in result.extra:
+        return
+    for table in sizing_tables(result):
+        console.print(table)
+    console.print(SIZING_CAUTION, style="dim")
+
+
+def sizing_markdown(result: Result, units: object = None) -> list[str]:
     """The sizing's sections of summary.md (empty without a sizing)."""
     sizing: ColumnSizing | None = result.extra.get("sizing")
     if sizing is None:

@@ -20,7 +20,7 @@ The hydraulics are preliminary: correlations of limited accuracy (Fair's floodin
 Vendor data and the tray or packing maker's rating rule.
 """
 
-from .column import BasisSizing, ColumnSizing, Rating, SectionSizing, size_column
+from .column import BasisSizing, ColumnSizing, Rating, SectionSizing, attach_sizing, size_column, sizing_inputs
 from .liquids import PureLiquids
 from .record import CMO_BASIS, sizing_flags
 
@@ -31,6 +31,8 @@ __all__ = [
     "PureLiquids",
     "Rating",
     "SectionSizing",
+    "attach_sizing",
     "size_column",
+    "sizing_inputs",
     "sizing_flags",
 ]

@@ -35,7 +35,7 @@ from .packing import ROBBINS_LIQUID_LIMIT, flood_area, hetp_rule_of_thumb, robbi
 from .traffic import Section, Traffic, cmo_traffic, rigorous_traffic, sections_of
 from .trays import TrayLoads, column_area, rate_trays
 
-__all__ = ["BasisSizing", "ColumnSizing", "Rating", "SectionSizing", "size_column"]
+__all__ = ["BasisSizing", "ColumnSizing", "Rating", "SectionSizing", "attach_sizing", "size_column", "sizing_inputs"]
 
 #: Robbins' correlation is not meant for pressures above this (Pa; Perry's 8th ed., sec. 14).
 ROBBINS_PRESSURE_LIMIT = 3e5
@@ -157,6 +157,22 @@ def size_column(case: Case, result: Result, thermo: ThermoPackage, liquids: Pure
     notes = _notes(options, props, rating, result, rigorous)
     return ColumnSizing(options, rigorous.traffic.stages, props, tuple(liquids.describe()), rigorous, cmo, cmo_reason,
                         rating, cmo_rating, section_sizings, efficiency, efficiency_note, notes)
+
+
+def sizing_inputs(case: Case) -> tuple[ThermoPackage, PureLiquids]:
+    """The thermo package and pure-liquid properties a sizing of ``case`` needs, built before
+    solving so that a property nobody gives is bad input (CaseError, exit 2) up front."""
+    thermo = ThermoPackage.from_case(case)
+    return thermo, PureLiquids.from_case(case, thermo)
+
+
+def attach_sizing(case: Case, result: Result, inputs: tuple[ThermoPackage, PureLiquids]) -> tuple[Result, str]:
+    """(``result`` with ``extra["sizing"]``, "") or, for a column that cannot be sized
+    (:class:`SpecError`), (``result`` unchanged, the reason)."""
+    try:
+        return result.with_extra(sizing=size_column(case, result, *inputs)), ""
+    except SpecError as exc:
+        return result, str(exc)
 
 
 # --- sizing and rating one traffic ----------------------------------------------------------

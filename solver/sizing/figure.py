@@ -9,9 +9,10 @@ from pathlib import Path
 import numpy as np
 
 from ..plots import _save, _stage_axis, plt
+from ..results import Result
 from .column import ColumnSizing
 
-__all__ = ["FLOOD_FIGURE", "flood_profile"]
+__all__ = ["FLOOD_FIGURE", "flood_profile", "write_flood_figure"]
 
 #: File name of the figure in an output folder.
 FLOOD_FIGURE = "flood.png"
@@ -36,3 +37,11 @@ def flood_profile(sizing: ColumnSizing, stage_count: int, path: Path, title: str
     ax.legend(loc="best", fontsize=8)
     ax.set_title(title or "fraction of flood per stage", fontsize=9)
     return _save(figure, path)
+
+
+def write_flood_figure(result: Result, folder: Path) -> list[Path]:
+    """[the figure written in ``folder``] for a result with a sizing attached, else []."""
+    sizing = result.extra.get("sizing")
+    if sizing is None:
+        return []
+    return [flood_profile(sizing, result.stage_count, folder / FLOOD_FIGURE, f"% of flood: {result.title}")]

@@ -1,6 +1,6 @@
-"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``check``, ``sweep``, ``components``.
+"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``size``, ``check``, ``sweep``, ``components``.
 
-Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit``
+Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit`` or ``size``
 raised a flag at or above ``--fail-on``; 2 bad input or
 an infeasible specification (one message naming the file, key and value; ``--debug`` shows the
 traceback); 3 the solver did not converge (``run`` still writes the result, marked
@@ -39,7 +39,7 @@ __all__ = ["CACHED_COMMANDS", "COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
-PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png")
+PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 
 
 def _console(quiet: bool = False, stderr: bool = False) -> Console:
@@ -102,10 +102,12 @@ def command_run(args: argparse.Namespace) -> int:
     from .results import Result, write_result_json, write_stages_csv
     from .audit.solution import RunFlags, run_flags
     from .engine import simulate
+    from .sizing import sizing_inputs
     from .thermo.package import ThermoPackage
 
     console = _console(args.quiet or args.json)
     units = display_units(case.display, args.units)
+    sizing_data = sizing_inputs(case) if case.sizing is not None else None  # a missing property is bad input
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
         result = simulate(case, options=options)
@@ -115,10 +117,12 @@ def command_run(args: argparse.Namespace) -> int:
         result = exc.result
     result = result.with_extra(flags=RunFlags(run_flags(result)))
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    if sizing_data is not None and result.converged:
+        result = _with_sizing(case, result, sizing_data, console)
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
     if result.converged:
-        plots = write_all(result, out, thermo=ThermoPackage.from_case(case))
+        plots = write_all(result, out, thermo=ThermoPackage.from_case(case)) + _sizing_figure(result, out)
     else:
         for name in PLOT_FILES:
             (out / name).unlink(missing_ok=True)
@@ -128,6 +132,7 @@ def command_run(args: argparse.Namespace) -> int:
         print(result.to_json())
     for table in summary_tables(result, units):
         console.print(table)
+    _print_sizing(result, console)
     for text in cautions(result)[:-1]:
         console.print(f"[yellow]caution:[/] {escape(text)}")
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
@@ -223,16 +228,24 @@ def command_audit(args: argparse.Namespace) -> int:
     case_path = Path(args.case)
     case = load_case(case_path)
     _known_components(case)  # a bad case is refused before the engine is imported
-    from .audit import MAX_SOLVES, SEVERITIES, audit_case
+    from .audit import MAX_SOLVES, audit_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
     from .results import write_result_json, write_stages_csv
+    from .sizing import sizing_inputs
 
     console = _console(args.quiet)
     units = display_units(case.display, args.units)
     with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
         report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
     result = report.result
+    if result.converged:  # the shortcut's column in hardware, beside what its CMO traffic would have sized
+        try:
+            sizing_data = sizing_inputs(case)
+        except CaseError as exc:
+            console.print(f"[yellow]no sizing:[/] {exc}")
+        else:
+            result = _with_sizing(case, result, sizing_data, console)
     out = Path(args.out) if args.out else _default_out(case_path, "_audit")
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
@@ -244,6 +257,7 @@ def command_audit(args: argparse.Namespace) -> int:
         if report.shortcut.is_binary:
             layers = [shortcut_layer(report.shortcut.design)]
             plots.append(yx_diagram(result, out / "yx.png", layers=layers, rigorous_steps=False))
+        plots += _sizing_figure(result, out)
     else:
         for name in PLOT_FILES:
             (out / name).unlink(missing_ok=True)
@@ -252,6 +266,7 @@ def command_audit(args: argparse.Namespace) -> int:
     for table in audit_tables(result, units):
         console.print(table)
     console.print(SIDE_BY_SIDE_NOTE, style="dim")
+    _print_sizing(result, console)
     console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
     for text in cautions(result)[:-1]:
         if not text.startswith("["):  # the flags are in their table
@@ -262,14 +277,7 @@ def command_audit(args: argparse.Namespace) -> int:
         print(f"traystack: the shortcut's column did not converge rigorously: {result.message}; the result is written "
               f"to {out / 'result.json'} marked converged: false", file=sys.stderr)
         return 3
-    if args.fail_on:
-        level = SEVERITIES.index(args.fail_on)
-        failing = [flag for flag in report.flags if SEVERITIES.index(flag.severity) >= level]
-        if failing:
-            print(f"traystack: {len(failing)} audit flag(s) at or above {args.fail_on}: "
-                  + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
-            return 1
-    return 0
+    return _fail_on(args.fail_on, report.flags + _sizing_flags(result), "audit")
 
 
 def add_audit_command(sub) -> None:
@@ -286,6 +294,98 @@ def add_audit_command(sub) -> None:
     audit.add_argument("--max-solves", type=_at_least_three, metavar="N",
                        help="most rigorous solves the audit may use (default 30, at least 3)")
     audit.set_defaults(handler=command_audit)
+
+
+# =======================================================================================
+# size
+# =======================================================================================
+
+
+def _with_sizing(case, result, sizing_data, console):
+    """``result`` with ``extra["sizing"]``; a column that cannot be sized keeps its result, with
+    the reason on screen."""
+    from .sizing import attach_sizing
+
+    sized, reason = attach_sizing(case, result, sizing_data)
+    if reason:
+        console.print(f"[yellow]no sizing:[/] {reason}")
+    return sized
+
+
+def _fail_on(severity: str | None, flags, what: str) -> int:
+    """1 (with a line on stderr) when a flag reaches ``severity`` (``--fail-on``), else 0."""
+    from .audit import SEVERITIES
+
+    if not severity:
+        return 0
+    failing = [flag for flag in flags if SEVERITIES.index(flag.severity) >= SEVERITIES.index(severity)]
+    if not failing:
+        return 0
+    print(f"traystack: {len(failing)} {what} flag(s) at or above {severity}: "
+          + ", ".join(sorted({flag.code for flag in failing})), file=sys.stderr)
+    return 1
+
+
+def _sizing_flags(result) -> tuple:
+    sizing = result.extra.get("sizing")
+    return tuple(sizing.flags) if sizing is not None else ()
+
+
+def _sizing_figure(result, out: Path) -> list[Path]:
+    from .sizing.figure import write_flood_figure
+
+    return write_flood_figure(result, out)
+
+
+def _print_sizing(result, console: Console) -> None:
+    from .reports.sizing_tables import print_sizing
+
+    print_sizing(result, console)
+
+
+def command_size(args: argparse.Namespace) -> int:
+    from .case import load_case
+
+    case_path = Path(args.case)
+    case = load_case(case_path)
+    _known_components(case)  # a bad case is refused before the engine is imported
+    from .engine import simulate
+    from .reports import display_units, write_summary
+    from .results import write_result_json, write_stages_csv
+    from .sizing import size_column, sizing_inputs
+
+    console = _console(args.quiet)
+    units = display_units(case.display, args.units)
+    thermo, liquids = sizing_inputs(case)
+    result = simulate(case)
+    out = Path(args.out) if args.out else _default_out(case_path, "_size")
+    if not result.converged:
+        write_result_json(result, out / "result.json")
+        (out / "flood.png").unlink(missing_ok=True)
+        print(f"traystack: not converged: {result.message}; nothing to size. The result is written to "
+              f"{out / 'result.json'} marked converged: false", file=sys.stderr)
+        return 3
+    result = result.with_extra(sizing=size_column(case, result, thermo, liquids))
+    plots = _sizing_figure(result, out)
+    written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv"),
+               write_summary(result, out / "summary.md", units, [path.name for path in plots]), *plots]
+    _print_sizing(result, console)
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    return _fail_on(args.fail_on, _sizing_flags(result), "sizing")
+
+
+def add_size_command(sub) -> None:
+    size = sub.add_parser("size", help="tray or packing hydraulics and diameters from the rigorous traffic, beside the "
+                          "CMO traffic's")
+    size.add_argument("case", help="case file (TOML); an optional [sizing] table sets the internals (default: sieve "
+                      "trays, 0.6 m spacing, 80 %% of flood)")
+    size.add_argument("--out", metavar="DIR", help="output folder (default: CASE_size in the current folder)")
+    size.add_argument("--fail-on", choices=("warning", "serious"),
+                      help="exit 1 when a sizing flag of this severity or worse is raised (for CI)")
+    size.add_argument("--units", help="summary units, as for run")
+    size.add_argument("--quiet", action="store_true", help="print nothing but errors (files are still written)")
+    size.set_defaults(handler=command_size)
 
 
 # =======================================================================================
@@ -565,11 +665,11 @@ def add_components_command(sub) -> None:
 
 
 #: The commands that fit property curves, and so take ``--no-cache``.
-CACHED_COMMANDS = ("run", "shortcut", "audit", "check", "sweep")
+CACHED_COMMANDS = ("run", "shortcut", "audit", "size", "check", "sweep")
 
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
-    add_run_command, add_shortcut_command, add_audit_command, add_check_command, add_sweep_command,
+    add_run_command, add_shortcut_command, add_audit_command, add_size_command, add_check_command, add_sweep_command,
     add_components_command,
 )
 
@@ -578,7 +678,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="traystack",
         description="Rigorous tray-by-tray distillation column simulation (MESH equations, Newton's method).",
-        epilog="Exit codes: 0 success, 1 check found drift or audit raised a flag asked to fail on, 2 bad input or "
+        epilog="Exit codes: 0 success, 1 check found drift or audit or size raised a flag asked to fail on, 2 bad input or "
         "infeasible specification, "
         "3 not converged, 4 internal error. Caution: " + CAUTION,
     )

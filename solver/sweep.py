@@ -2,7 +2,9 @@
 
 A *key* is a dotted path into the case's TOML document, with ``[n]`` for an item of an array
 of tables: ``specs.reflux_ratio``, ``feeds[0].stage``, ``column.stages``,
-``column.pressure.top``, ``feeds[0].temperature``, ``specs.bottoms.water``. Each point writes
+``column.pressure.top``, ``feeds[0].temperature``, ``specs.bottoms.water``, and for a case with
+a ``[sizing]`` table ``sizing.tray_spacing`` or ``sizing.flood_fraction`` (the CSV then holds
+each section's diameter). Each point writes
 its values into a copy of the parsed TOML document and validates it again with
 :func:`solver.case.parse_case`, so every value goes through the same checks and unit
 conversion as a case file: ``--vary 'feeds[0].temperature=40 degC:70 degC:4'`` writes
@@ -113,6 +115,7 @@ class PointOutcome:
     boilup_ratio: float | None = None
     products: Mapping[str, tuple[float, tuple[float, ...]]] | None = None  # name -> (flow, composition)
     seconds: float = 0.0
+    diameters: Mapping[str, float] | None = None  # section -> diameter (m), when the case has [sizing]
 
     @property
     def converged(self) -> bool:
@@ -340,7 +343,20 @@ def solve_point(index: int, document: Mapping, assignments, source_file: str = "
         boilup_ratio=result.boilup_ratio,
         products={name: (p["flow"], tuple(p["composition"])) for name, p in result.products().items()},
         seconds=seconds,
+        diameters=_diameters(case, result),
     )
+
+
+def _diameters(case, result) -> dict[str, float] | None:
+    """Each section's diameter (m) when the case has a [sizing] table (sweep keys such as
+    ``sizing.tray_spacing`` and ``sizing.flood_fraction`` move them); None otherwise."""
+    if case.sizing is None:
+        return None
+    from .sizing import size_column
+    from .thermo.package import ThermoPackage
+
+    sizing = size_column(case, result, ThermoPackage.from_case(case))
+    return {section.section.name: section.diameter for section in sizing.sections}
 
 
 def run_sweep(
@@ -433,11 +449,12 @@ def sweep_csv(result: SweepResult) -> str:
     reflux and boilup ratios, product flows [mol/s] and compositions, time, message, and
     whether the study is complete or partial (interrupted)."""
     products = _product_names(result)
+    sections = list(dict.fromkeys(name for o in result.outcomes for name in (o.diameters or {})))
     header = ["point", *[variation.label for variation in result.variations], "status", "converged", "iterations",
               "residual_norm", "condenser_duty_W", "reboiler_duty_W", "reflux_ratio", "boilup_ratio"]
     for product in products:
         header += [f"{product}_flow_mol_s", *[f"x_{product}_{name}" for name in result.components]]
-    header += ["seconds", "message", "study"]
+    header += [f"diameter_{name.replace(' ', '_')}_m" for name in sections] + ["seconds", "message", "study"]
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(header)
@@ -450,6 +467,7 @@ def sweep_csv(result: SweepResult) -> str:
         for product in products:
             flow, composition = (outcome.products or {}).get(product, (None, (None,) * len(result.components)))
             row += [_cell(flow), *[_cell(x) for x in composition]]
+        row += [_cell((outcome.diameters or {}).get(name)) for name in sections]
         row += [f"{outcome.seconds:.3f}", outcome.message, result.study]
         writer.writerow(row)
     return buffer.getvalue()

@@ -68,6 +68,14 @@ SI_UNITS: dict[str, str] = {
     "molar_heat_capacity": "J/mol/K",
     "inverse_temperature": "1/K",
     "dimensionless": "dimensionless",
+    # column hardware ([sizing])
+    "length": "m",
+    "time": "s",
+    "velocity": "m/s",
+    "mass_density": "kg/m**3",
+    "surface_tension": "N/m",
+    "viscosity": "Pa*s",
+    "inverse_length": "1/m",
 }
 
 #: Longest quantity or unit text accepted; nothing a case file needs comes close.
@@ -193,6 +201,13 @@ def example_unit(kind: str) -> str:
         "molar_heat_capacity": "'J/mol/K'",
         "inverse_temperature": "'1/K'",
         "dimensionless": "no units",
+        "length": "'m', 'mm' or 'in'",
+        "time": "'s'",
+        "velocity": "'m/s'",
+        "mass_density": "'kg/m**3'",
+        "surface_tension": "'mN/m' or 'dyn/cm'",
+        "viscosity": "'mPa*s' or 'cP'",
+        "inverse_length": "'1/m' or '1/ft'",
     }[kind]
 
 

@@ -19,6 +19,7 @@ import xml.etree.ElementTree as ElementTree
 from concurrent.futures import ThreadPoolExecutor
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from solver.cli import main
@@ -72,6 +73,9 @@ def runs(tmp_path_factory):
     work = tmp_path_factory.mktemp("cli")
     bad = work / "bad.toml"
     bad.write_text((CASES / "methanol_water.toml").read_text().replace("reflux_ratio = 1.4", "reflux_raito = 1.4"))
+    packed = work / "packed.toml"
+    packed.write_text((CASES / "methanol_water.toml").read_text() + '\n[sizing]\ninternals = "random"\n'
+                      'packing = { packing_factor = "24 1/ft", nominal_size = "50 mm", source = "our own test numbers" }\n')
     (work / "unconverged").mkdir()
     (work / "unconverged" / "temperature.png").write_bytes(PNG + b"stale figure of an earlier run")
     jobs = {
@@ -85,6 +89,10 @@ def runs(tmp_path_factory):
         "check_sequence": lambda: check_sequence(work / "cases"),
         "audit": lambda: traystack("audit", CASES / "methanol_water.toml", "--out", work / "audit", "--fail-on", "warning"),
         "shortcut": lambda: traystack("shortcut", CASES / "benzene_toluene.toml", "--out", work / "shortcut"),
+        "size": lambda: traystack("size", CASES / "methanol_water.toml", "--out", work / "size"),
+        "run_packed": lambda: traystack("run", packed, "--out", work / "packed"),
+        "sweep_sizing": lambda: traystack("sweep", packed, "--vary", "sizing.flood_fraction=0.6:0.8:2",
+                                          "--out", work / "sweep_sizing"),
     }
     with ThreadPoolExecutor(max_workers=3) as pool:
         futures = {name: pool.submit(job) for name, job in jobs.items()}
@@ -105,7 +113,7 @@ def in_process(capsys, *args) -> tuple[int, str, str]:
 def test_help_lists_the_commands_and_exit_codes(capsys):
     code, out, _ = in_process(capsys, "--help")
     assert code == 0
-    for word in ("run", "shortcut", "audit", "check", "sweep", "components", "Caution", "3 not converged"):
+    for word in ("run", "shortcut", "audit", "size", "check", "sweep", "components", "Caution", "3 not converged"):
         assert word in out
 
 
@@ -223,6 +231,52 @@ def test_audit_writes_the_audit_and_fails_on_a_warning_when_asked(runs):
         assert data[:8] == PNG and len(data) > 5000, name
     summary = (folder / "summary.md").read_text()
     assert "## Shortcut and rigorous, side by side" in summary and "![cmo_flows](cmo_flows.png)" in summary
+    # the shortcut's column in hardware: rigorous and CMO diameters of both sections, which is larger
+    assert "diameters: rigorous traffic against the CMO traffic" in out.stdout
+    rows = document["sizing"]["diameters"]
+    assert [row["section"] for row in rows] == ["rectifying", "stripping"]
+    assert all(row["rigorous_diameter"] > 0 and row["cmo_diameter"] > 0 and row["larger"] for row in rows)
+    assert "## Diameters: rigorous against CMO traffic" in summary
+    assert (folder / "flood.png").read_bytes()[:8] == PNG
+
+
+# ------------------------------------------------------------------ size
+
+
+def test_size_prints_the_headline_and_writes_its_files(runs):
+    out, folder = runs["size"], runs["work"] / "size"
+    assert out.returncode == 0, out.stderr
+    assert "diameters: rigorous traffic against the CMO traffic" in out.stdout and "column hardware" in out.stdout
+    assert "real trays" in out.stdout and "preliminary" in out.stdout and "Traceback" not in out.stderr
+    document = json.loads((folder / "result.json").read_text())
+    sizing = document["sizing"]
+    assert sizing["internals"] == "sieve" and len(sizing["sections"]) == 2
+    assert all(0.79 < section["largest_fraction_of_flood"] < 0.81 for section in sizing["sections"])
+    assert sizing["efficiency"]["light_key"] == "methanol"
+    assert "## Column hardware" in (folder / "summary.md").read_text()
+    assert (folder / "flood.png").read_bytes()[:8] == PNG
+
+
+def test_run_sizes_a_case_with_a_sizing_table_and_sweep_varies_its_inputs(runs):
+    out, folder = runs["run_packed"], runs["work"] / "packed"
+    assert out.returncode == 0, out.stderr
+    assert "column hardware" in out.stdout and "packed" in out.stdout
+    sizing = json.loads((folder / "result.json").read_text())["sizing"]
+    assert sizing["internals"] == "random" and sizing["sections"][0]["packed_height"] == pytest.approx(10 * 0.9)
+    sweep = runs["sweep_sizing"]
+    assert sweep.returncode == 0, sweep.stderr
+    rows = list(csv.DictReader(io.StringIO((runs["work"] / "sweep_sizing" / "sweep.csv").read_text())))
+    low, high = (float(row["diameter_rectifying_m"]) for row in rows)
+    assert low == pytest.approx(high * np.sqrt(0.8 / 0.6), rel=1e-6)  # area scales as 1/fraction of flood
+
+
+def test_size_refuses_a_component_without_surface_tension_and_a_bad_sizing_table(capsys, tmp_path):
+    code, _, err = in_process(capsys, "size", ROOT / "tests" / "data" / "user_components_cmo.toml", "--out", tmp_path)
+    assert code == 2 and "sizing.components.light.surface_tension" in err and "Traceback" not in err
+    bad = tmp_path / "bad.toml"
+    bad.write_text((CASES / "methanol_water.toml").read_text() + '\n[sizing]\ntray_spacing = "6 m"\n')
+    code, _, err = in_process(capsys, "size", bad, "--out", tmp_path)
+    assert code == 2 and "sizing.tray_spacing" in err and "out of range" in err
 
 
 def test_audit_exits_0_when_no_flag_reaches_fail_on(capsys, tmp_path):

@@ -42,6 +42,8 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   designs for where the specs do not say -- ``distillate``/``bottoms`` = {NAME = x} (product mole
   fractions), ``reflux_ratio`` or ``reflux_factor`` (times the minimum reflux, > 1) -- and
   ``thresholds`` = {KEY = value} over the audit's defaults (keys :data:`AUDIT_THRESHOLD_KEYS`).
+- ``[sizing]`` (optional, read by ``traystack size``, and by ``run`` and ``audit`` when present):
+  the column internals and their design inputs (:mod:`~solver.case.sizing_table`).
 """
 
 from __future__ import annotations
@@ -64,6 +66,7 @@ from solver.case.model import (
     ThermoOptions,
 )
 from solver.case.reader import MAX_FILE_BYTES, load_case, loads_case, parse_case
+from solver.case.sizing_table import ComponentHydraulicData, DowncomerRule, PackingData, SizingOptions
 from solver.thermo.data import WATSON_EXPONENT, ComponentData, Correlation
 
 __all__ = [
@@ -80,6 +83,10 @@ __all__ = [
     "BinaryParameters",
     "Case",
     "Column",
+    "ComponentHydraulicData",
+    "DowncomerRule",
+    "PackingData",
+    "SizingOptions",
     "ComponentData",
     "Correlation",
     "Feed",

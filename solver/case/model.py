@@ -7,6 +7,7 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Mapping
 
+from solver.case.sizing_table import SizingOptions
 from solver.thermo.data import ComponentData
 
 __all__ = [
@@ -195,6 +196,7 @@ class Case:
     check: Mapping[str, float] = field(default_factory=_frozen_mapping)  # tolerances
     display: Mapping[str, str] = field(default_factory=_frozen_mapping)  # screen units
     audit: AuditOptions | None = None  # the optional [audit] table
+    sizing: SizingOptions | None = None  # the optional [sizing] table (sizing_table.py)
     source_file: str = ""
     raw: Mapping[str, object] = field(default_factory=_frozen_mapping)  # the TOML as read
     # Added by the parser: notes that are not errors, e.g. a [components.data] entry that

@@ -17,6 +17,7 @@ from solver.case.feeds_table import read_feeds_table
 from solver.case.fields import At, Field, plain, read_fields, read_text
 from solver.case.model import Case
 from solver.case.options_table import read_audit_table, read_check_table, read_display_table
+from solver.case.sizing_table import read_sizing_table
 from solver.case.specs_table import read_specs_table
 from solver.case.thermo_table import read_thermo_table
 from solver.errors import CaseError
@@ -37,6 +38,7 @@ _TOP_FIELDS = {
     "check": Field(),
     "display": Field(),
     "audit": Field(),
+    "sizing": Field(),
 }
 
 
@@ -114,6 +116,7 @@ def _parse(data: Any, at: At) -> Case:
     check = read_check_table(data.get("check", {}), at.child("check"))
     display = read_display_table(data.get("display", {}), at.child("display"))
     audit = read_audit_table(data["audit"], names, at.child("audit")) if "audit" in data else None
+    sizing = read_sizing_table(data["sizing"], names, at.child("sizing")) if "sizing" in data else None
     return Case(
         title=title,
         component_names=names,
@@ -125,6 +128,7 @@ def _parse(data: Any, at: At) -> Case:
         check=MappingProxyType(check),
         display=MappingProxyType(display),
         audit=audit,
+        sizing=sizing,
         source_file=at.file,
         raw=MappingProxyType(plain(data)),
         warnings=tuple(warnings),

@@ -14,6 +14,7 @@ from .audit_tables import audit_markdown
 from .cautions import cautions
 from .display import DisplayUnits, markdown_table
 from .run_tables import PAIR_HEADER, pair_rows, spec_rows, stage_label
+from .sizing_tables import sizing_markdown
 
 __all__ = ["summary_markdown", "write_summary"]
 
@@ -23,7 +24,7 @@ def summary_markdown(result: Result, units: DisplayUnits, plots: Sequence[str] =
     duties, stage table, convergence and balances, the audit, plots (file names relative to
     the summary), cautions."""
     lines = [f"# {result.title or 'traystack result'}", "", _status(result), ""]
-    for section in (_specifications, _feeds, _products, _duties, _stages, _convergence, audit_markdown):
+    for section in (_specifications, _feeds, _products, _duties, _stages, _convergence, audit_markdown, sizing_markdown):
         lines += section(result, units)
     if plots:
         lines += ["## Plots", ""]

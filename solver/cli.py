@@ -87,6 +87,7 @@ def _positive_int(text: str) -> int:
 
 def command_run(args: argparse.Namespace) -> int:
     from .case import load_case
+    from .network_graph import refuse_network
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -97,6 +98,7 @@ def command_run(args: argparse.Namespace) -> int:
     console = _console(args.quiet or args.json)
     case_path = Path(args.case)
     case = load_case(case_path)
+    refuse_network(case, "run")
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
@@ -155,6 +157,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
 
     from .audit import shortcut_case
     from .case import load_case
+    from .network_graph import refuse_network
     from .engine import case_summary
     from .plots import shortcut_layer, shortcut_yx_diagram
     from .reports import display_units, shortcut_tables
@@ -163,6 +166,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
     console = _console(args.quiet)
     case_path = Path(args.case)
     case = load_case(case_path)
+    refuse_network(case, "shortcut")
     units = display_units(case.display, args.units)
     report = shortcut_case(case)
     out = Path(args.out) if args.out else _default_out(case_path, "_shortcut")
@@ -206,6 +210,7 @@ def add_shortcut_command(sub) -> None:
 def command_audit(args: argparse.Namespace) -> int:
     from .audit import MAX_SOLVES, SEVERITIES, audit_case
     from .case import load_case
+    from .network_graph import refuse_network
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
     from .results import write_result_json, write_stages_csv
@@ -213,6 +218,7 @@ def command_audit(args: argparse.Namespace) -> int:
     console = _console(args.quiet)
     case_path = Path(args.case)
     case = load_case(case_path)
+    refuse_network(case, "audit")
     units = display_units(case.display, args.units)
     with console.status("auditing: shortcut design and rigorous solves", spinner="dots"):
         report = audit_case(case, max_solves=args.max_solves or MAX_SOLVES)
@@ -348,11 +354,13 @@ def add_check_command(sub) -> None:
 
 def command_sweep(args: argparse.Namespace) -> int:
     from .case import load_case
+    from .network_graph import refuse_network
     from .sweep import load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
 
     console = _console()
     case_path = Path(args.case)
     base = load_case(case_path)  # a bad case is reported before any point runs
+    refuse_network(base, "sweep")
     document = load_document(case_path)
     variations = [parse_variation(text) for text in args.vary]
     if len(variations) > 2:

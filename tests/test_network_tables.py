@@ -200,3 +200,18 @@ def test_hostile_connection_values_never_escape_as_other_errors(value):
             parsed(_set(path, value))
         except CaseError as exc:
             assert str(exc).startswith("net.toml: ")
+
+
+def test_readme_network_example_reads():
+    """The network example of README.md ("Column networks") is a valid case with these
+    components, and its degrees of freedom match its specs."""
+    from solver.network_graph import check_network
+
+    readme = (Path(__file__).parent.parent / "README.md").read_text()
+    section = readme[readme.index("### Column networks"):]
+    block = section[section.index("```toml") + len("```toml"): section.index("```", section.index("```toml") + 7)]
+    header = '[components]\nnames = ["benzene", "toluene", "o-xylene"]\n'
+    case = parse_case(tomllib.loads(header + block), source_file="README.md")
+    assert [s.name for s in case.network.columns] == ["main", "stripper"]
+    assert [c.name for c in case.network.connections] == ["to-stripper", "stripper-vapor", "pumparound"]
+    assert len(check_network(case).degrees_of_freedom) == 4

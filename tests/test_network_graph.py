@@ -3,29 +3,21 @@ connections, products, and the degrees of freedom counted over the whole network
 
 from __future__ import annotations
 
-import copy
-import tomllib
 from pathlib import Path
 
 import numpy as np
 import pytest
 
-from solver.case import load_case, parse_case
+from conftest import NETWORK_EXAMPLE, network_example_case
+from solver.case import load_case
 from solver.cli import main
 from solver.errors import SpecError
 from solver.network import build_stage_graph
 from solver.network_graph import build_network_graph, check_network, count_degrees_of_freedom, network_of_case
 
-EXAMPLE = Path(__file__).parent / "data" / "network_side_stripper.toml"
 CASES = sorted((Path(__file__).parent.parent / "cases").glob("*.toml"))
-BASE = tomllib.loads(EXAMPLE.read_text())
-
-
-def network_case(change=None):
-    data = copy.deepcopy(BASE)
-    if change:
-        change(data)
-    return parse_case(data, source_file="net.toml")
+EXAMPLE = NETWORK_EXAMPLE
+network_case = network_example_case
 
 
 @pytest.mark.parametrize("path", CASES, ids=lambda p: p.stem)

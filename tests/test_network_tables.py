@@ -4,7 +4,6 @@ is a CaseError naming the file, the dotted key and the value."""
 
 from __future__ import annotations
 
-import copy
 import tomllib
 from pathlib import Path
 
@@ -12,19 +11,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from conftest import NETWORK_EXAMPLE, network_example_case
 from solver.case import load_case, parse_case
 from solver.errors import CaseError
 
-EXAMPLE = Path(__file__).parent / "data" / "network_side_stripper.toml"
 CASES = sorted((Path(__file__).parent.parent / "cases").glob("*.toml"))
-BASE = tomllib.loads(EXAMPLE.read_text())
-
-
-def parsed(change=None):
-    data = copy.deepcopy(BASE)
-    if change:
-        change(data)
-    return parse_case(data, source_file="net.toml")
+EXAMPLE = NETWORK_EXAMPLE
+parsed = network_example_case
 
 
 def refused(change, *parts):

@@ -21,7 +21,6 @@ from solver.case.fields import (
     Field,
     check_keys,
     component_key,
-    quantity,
     read_choice,
     read_fields,
     read_integer,
@@ -100,7 +99,7 @@ def _read_columns(value: Any, names: tuple[str, ...], at: At) -> dict[str, Colum
 
 
 def _read_exchanger(kind: str, value: Any, at: At) -> ConnectionExchanger:
-    table = read_table(value, at, f"{{ duty = ... }} or {{ return_temperature = ... }}")
+    table = read_table(value, at, "{ duty = ... } or { return_temperature = ... }")
     check_keys(table, at, ("duty", "return_temperature"))
     if len(table) != 1:
         at.fail("give exactly one of duty and return_temperature", dict(table), "duty = \"-2 MW\" (or \"free\") or return_temperature = \"90 degC\"")

@@ -253,6 +253,24 @@ def _equipment_words(network: Network, name: str) -> str:
     return f"column {name!r}" if any(s.name == name for s in network.columns) else f"connection {name!r}"
 
 
+def _check_fixed_connections(network: Network, where: str) -> None:
+    """A spec on a connection's rate or fraction needs ``flow = "free"``, one on its cooler or
+    heater a ``duty = "free"``: otherwise the connection has two values for one quantity."""
+    connections = {c.name: c for c in network.connections}
+    for spec in network.specs:
+        connection = connections.get(spec.equipment) if spec.column is None else None
+        if connection is None:
+            continue
+        if spec.kind in ("connection_flow", "connection_fraction") and not connection.free:
+            given = "all of the phase" if connection.takes_all else (
+                f"fraction = {connection.fraction:g}" if connection.fraction is not None else f"flow = {connection.flow:g} mol/s")
+            raise SpecError(f"{where}{spec.key}: connection {connection.name!r} already has {given} "
+                            f"({connection.key}); it has two specs (write flow = \"free\" there to let this spec set it)")
+        if spec.kind in ("exchanger_duty", "return_temperature") and not connection.exchanger.is_free:
+            raise SpecError(f"{where}{spec.key}: the {connection.exchanger.kind} of connection {connection.name!r} is already "
+                            f"fixed ({connection.key}.{connection.exchanger.kind}); it has two specs (write duty = \"free\" there)")
+
+
 def count_degrees_of_freedom(network: Network, source_file: str = "") -> tuple[DegreeOfFreedom, ...]:
     """The degrees of freedom of ``network`` (see the module docstring), checked against its
     specs; raises :class:`SpecError` naming each piece of equipment that lacks a spec or has
@@ -268,6 +286,7 @@ def count_degrees_of_freedom(network: Network, source_file: str = "") -> tuple[D
         if spec.column in heat_linked and (spec.equipment.endswith(".reboiler") or spec.kind == "boilup_ratio"):
             raise SpecError(f"{where}{spec.key}: the reboiler of {spec.column!r} is heated by heat link "
                             f"{heat_linked[spec.column]!r}, which sets its duty; it has two specs")
+    _check_fixed_connections(network, where)
     freedoms = _degrees_of_freedom(network)
     owners = _spec_owners(network)
     if len(owners) == len(freedoms):

@@ -142,3 +142,38 @@ def test_run_reports_a_network_spec_mismatch_with_exit_2(capsys, tmp_path):
     assert main(["run", str(path)]) == 2
     error = capsys.readouterr().err
     assert "too few" in error and "to-stripper" in error and "Traceback" not in error
+
+
+@pytest.mark.parametrize(
+    "spec, parts",
+    [
+        ({"on": "pumparound", "fraction": 0.2}, ["specs[1].fraction", "'pumparound' already has fraction = 0.3", "two specs"]),
+        ({"on": "stripper-vapor", "flow": "5 kmol/h"}, ["'stripper-vapor' already has all of the phase"]),
+        ({"on": "pumparound", "return_temperature": "90 degC"}, ["cooling of connection 'pumparound' is already fixed"]),
+    ],
+)
+def test_a_spec_on_a_fixed_connection_is_two_specs(spec, parts):
+    def change(data):
+        data["columns"][1].pop("specs")  # so that the counts alone would balance
+        data["specs"].append(spec)
+    with pytest.raises(SpecError) as caught:
+        check_network(network_case(change))
+    for part in parts:
+        assert part in str(caught.value)
+
+
+@pytest.mark.parametrize("command", ["shortcut", "audit", "sweep"])
+def test_every_solving_command_refuses_a_network(command, capsys, tmp_path):
+    extra = ["--vary", "feeds.0.flow=90:110:2"] if command == "sweep" else []
+    assert main([command, str(EXAMPLE), *extra]) == 2
+    error = capsys.readouterr().err
+    assert f"`traystack {command}` does not solve column networks yet" in error and "Traceback" not in error
+
+
+def test_check_reports_a_network_case_as_failed_not_a_crash(tmp_path):
+    from solver.regress import check_case
+
+    path = tmp_path / "network.toml"
+    path.write_text(EXAMPLE.read_text())
+    outcome = check_case(path)
+    assert outcome.status == "failed" and "does not solve column networks yet" in outcome.message

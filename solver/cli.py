@@ -59,13 +59,18 @@ def _progress(console: Console) -> Progress:
     )
 
 
-def _known_components(case) -> None:
-    """Refuse an unknown component before the engine's modules are imported (they take
-    seconds); the lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
+def _known_components(case, command: str) -> None:
+    """Refuse an unknown component, and a network of columns (read and checked, not yet
+    solved by ``command``), before the engine's modules are imported (they take seconds); the
+    lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
     from .components import component_info
 
     for name in case.component_names:
         component_info(name, case.component_data)
+    if case.network is not None:
+        from .network_graph import refuse_network
+
+        refuse_network(case, command)
 
 
 def _at_least_three(text: str) -> int:
@@ -95,7 +100,7 @@ def command_run(args: argparse.Namespace) -> int:
 
     case_path = Path(args.case)
     case = load_case(case_path)
-    _known_components(case)  # a bad case is refused before the engine is imported
+    _known_components(case, "run")  # a bad case is refused before the engine is imported
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -171,7 +176,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
 
     case_path = Path(args.case)
     case = load_case(case_path)
-    _known_components(case)  # a bad case is refused before the engine is imported
+    _known_components(case, "shortcut")  # a bad case is refused before the engine is imported
     from .audit import shortcut_case
     from .audit.flags import two_liquids
     from .engine import case_summary
@@ -227,7 +232,7 @@ def command_audit(args: argparse.Namespace) -> int:
 
     case_path = Path(args.case)
     case = load_case(case_path)
-    _known_components(case)  # a bad case is refused before the engine is imported
+    _known_components(case, "audit")  # a bad case is refused before the engine is imported
     from .audit import MAX_SOLVES, audit_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
@@ -348,7 +353,7 @@ def command_size(args: argparse.Namespace) -> int:
 
     case_path = Path(args.case)
     case = load_case(case_path)
-    _known_components(case)  # a bad case is refused before the engine is imported
+    _known_components(case, "size")  # a bad case is refused before the engine is imported
     from .engine import simulate
     from .reports import display_units, write_summary
     from .results import write_result_json, write_stages_csv
@@ -485,6 +490,7 @@ def command_sweep(args: argparse.Namespace) -> int:
     console = _console()
     case_path = Path(args.case)
     base = load_case(case_path)  # a bad case is reported before any point runs
+    _known_components(base, "sweep")
     document = load_document(case_path)
     variations = [parse_variation(text) for text in args.vary]
     if len(variations) > 2:

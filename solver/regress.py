@@ -51,6 +51,7 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 
 from . import __version__
 from .case import TOLERANCE_KEYS, Case, load_case
+from .network_graph import refuse_network
 from .errors import CaseError, TraystackError
 from .audit import AuditReport, SolutionAudit, audit_solution
 from .results import Result, write_atomic
@@ -302,6 +303,7 @@ def check_case(case_file: str) -> CaseCheck:
     expected_file = baseline_path(case_file)
     try:
         case = load_case(case_file)
+        refuse_network(case, "check")
         result = solve_case(case)
     except TraystackError as exc:
         return CaseCheck(name, str(case_file), FAILED, str(exc), seconds=time.perf_counter() - started)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import os
 import tempfile
 import textwrap
+from pathlib import Path
 
 import pytest
 
@@ -73,3 +74,20 @@ def methanol_water_case(
 @pytest.fixture
 def make_case():
     return case_from_text
+
+
+#: The network example of tests/data (two columns, three connections), as parsed TOML.
+NETWORK_EXAMPLE = Path(__file__).parent / "data" / "network_side_stripper.toml"
+
+
+def network_example_case(change=None):
+    """The network example read as the case file "net.toml", after ``change(data)`` edits a
+    deep copy of its parsed TOML."""
+    import tomllib
+
+    from solver.case import parse_case
+
+    data = tomllib.loads(NETWORK_EXAMPLE.read_text())
+    if change:
+        change(data)
+    return parse_case(data, source_file="net.toml")

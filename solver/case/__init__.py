@@ -7,7 +7,8 @@ Every error is a :class:`~solver.errors.CaseError` that names the file, the key 
 Modules: :mod:`~solver.case.model` (the frozen dataclasses), :mod:`~solver.case.fields` (where
 a value sits, and the readers of single values and flat tables), one module per table of the
 file (``components_table``, ``thermo_table``, ``column_table``, ``feeds_table``,
-``specs_table``, ``options_table`` for [check], [display] and [audit]) and
+``specs_table``, ``options_table`` for [check], [display] and [audit], ``network_tables`` for
+a network of columns) and
 :mod:`~solver.case.reader` (``load_case``, ``loads_case``, ``parse_case``).
 
 Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg/mol, m**3/mol):
@@ -36,6 +37,13 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   ``condenser_duty`` (< 0), ``reboiler_duty``, ``distillate``/``bottoms`` = {NAME = x},
   ``recovery`` = {NAME = {distillate|bottoms = r}}, ``stage_temperature`` = {stage, value} (or a
   list of them), ``reflux_temperature`` / ``reflux_subcooling`` (column settings, not specs).
+- a network in place of ``[column]``: ``[[columns]]`` (``name`` and the [column] keys, with
+  ``[columns.specs]`` in the [specs] vocabulary), ``[[connections]]`` {name, from = {column,
+  stage, phase}, to = {column, stage}, flow (a rate or "free") or fraction, cooling or heating =
+  {duty (or "free") or return_temperature}}, ``[[heat_links]]`` {name, from = "A.condenser", to =
+  "B.reboiler"}, feeds with ``column``, and a top-level ``[[specs]]`` list {on, stage, one of
+  flow, fraction, duty, return_temperature, temperature, mole_fraction, recovery, reflux_ratio,
+  boilup_ratio}; read into :class:`Network` on ``Case.network`` (``Case.column`` is then None).
 - ``[check]`` ``tolerances`` = {duty_rel, composition_abs, temperature_abs, flow_rel};
   ``[display]`` {temperature, pressure, flow, duty} units.
 - ``[audit]`` (optional, read by ``traystack audit`` and ``traystack shortcut``): what the shortcut
@@ -59,7 +67,14 @@ from solver.case.model import (
     BinaryParameters,
     Case,
     Column,
+    ColumnSection,
+    Connection,
+    ConnectionExchanger,
     Feed,
+    HeatLink,
+    NETWORK_SPEC_KINDS,
+    Network,
+    NetworkSpec,
     SideDraw,
     Spec,
     StageDuty,
@@ -83,13 +98,20 @@ __all__ = [
     "BinaryParameters",
     "Case",
     "Column",
+    "ColumnSection",
     "ComponentHydraulicData",
     "DowncomerRule",
     "PackingData",
     "SizingOptions",
     "ComponentData",
+    "Connection",
+    "ConnectionExchanger",
     "Correlation",
     "Feed",
+    "HeatLink",
+    "NETWORK_SPEC_KINDS",
+    "Network",
+    "NetworkSpec",
     "SideDraw",
     "Spec",
     "StageDuty",

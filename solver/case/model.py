@@ -19,7 +19,14 @@ __all__ = [
     "BinaryParameters",
     "Case",
     "Column",
+    "ColumnSection",
+    "Connection",
+    "ConnectionExchanger",
     "Feed",
+    "HeatLink",
+    "NETWORK_SPEC_KINDS",
+    "Network",
+    "NetworkSpec",
     "SideDraw",
     "Spec",
     "StageDuty",
@@ -40,6 +47,20 @@ SPEC_KINDS = (
     "stage_temperature",
 )
 
+
+#: Kinds of the specs of a column network's top-level [[specs]] list (each names its equipment).
+NETWORK_SPEC_KINDS = (
+    "connection_flow",  # the rate of a connection whose flow is "free"
+    "connection_fraction",  # the fraction of a stage's liquid or vapor a connection takes
+    "product_flow",  # COLUMN.distillate, COLUMN.bottoms or a side draw
+    "mole_fraction",  # of a component in a product
+    "recovery",  # of a component of all feeds, in a product
+    "exchanger_duty",  # COLUMN.condenser, COLUMN.reboiler, or the cooler/heater of a connection
+    "return_temperature",  # of the cooler/heater of a connection
+    "stage_temperature",
+    "reflux_ratio",
+    "boilup_ratio",
+)
 
 #: Screen units when [display] does not say otherwise.
 DEFAULT_DISPLAY = {"temperature": "degC", "pressure": "bar", "flow": "kmol/h", "duty": "kW"}
@@ -185,12 +206,107 @@ class AuditOptions:
 
 
 @dataclass(frozen=True)
+class ColumnSection:
+    """One column of a network: its ``name``, the column itself (stages numbered from its own
+    top, pressures, efficiencies, side draws, heaters, reflux temperature) and its own specs
+    (``[columns.specs]``, the single-column vocabulary)."""
+
+    name: str
+    column: Column
+    specs: tuple[Spec, ...] = ()
+
+
+@dataclass(frozen=True)
+class ConnectionExchanger:
+    """A cooler (``duty`` < 0) or heater (> 0) on a connection: a fixed ``duty`` [W], a fixed
+    ``return_temperature`` [K], or neither (a spec sets it)."""
+
+    kind: str  # "cooling" | "heating"
+    duty: float | None = None
+    return_temperature: float | None = None
+
+    @property
+    def is_free(self) -> bool:
+        return self.duty is None and self.return_temperature is None
+
+
+@dataclass(frozen=True)
+class Connection:
+    """A stream from a stage's liquid or vapor to a stage of the same or another column. Its
+    size is one of: ``flow`` (a fixed rate, mol/s), ``fraction`` (of the phase leaving the
+    stage for its neighbours), ``free`` (a rate a spec sets), or neither (all of that phase)."""
+
+    name: str
+    from_column: str
+    from_stage: int  # 1-based, of from_column
+    phase: str  # "liquid" | "vapor"
+    to_column: str
+    to_stage: int
+    flow: float | None = None
+    fraction: float | None = None
+    free: bool = False
+    exchanger: ConnectionExchanger | None = None
+    key: str = ""  # where it came from in the file: "connections[1]"
+
+    @property
+    def takes_all(self) -> bool:
+        return self.flow is None and self.fraction is None and not self.free
+
+
+@dataclass(frozen=True)
+class HeatLink:
+    """``from_column``'s condenser heats ``to_column``'s reboiler: the two duties are equal and
+    opposite (one equation, one degree of freedom less)."""
+
+    name: str
+    from_column: str
+    to_column: str
+    key: str = ""
+
+
+@dataclass(frozen=True)
+class NetworkSpec:
+    """A spec of the top-level ``[[specs]]`` list of a network. ``kind`` is one of
+    :data:`NETWORK_SPEC_KINDS`, ``value`` SI; ``equipment`` the name it is on as written after
+    ``on`` (a connection, ``COLUMN.distillate``, ``COLUMN.condenser``, a side draw, a column);
+    ``column`` the column it belongs to (None for a connection), ``stage`` for a stage
+    temperature, ``component`` for a mole fraction or recovery."""
+
+    kind: str
+    value: float
+    equipment: str
+    column: str | None = None
+    stage: int | None = None
+    component: str | None = None
+    key: str = ""
+
+
+@dataclass(frozen=True)
+class Network:
+    """Several columns and what joins them: ``columns`` in file order, ``connections``,
+    ``heat_links``, ``feed_columns`` (the column of each of Case.feeds, in order) and the
+    network ``specs`` (the top-level [[specs]] list; each column's own are in its section)."""
+
+    columns: tuple[ColumnSection, ...]
+    connections: tuple[Connection, ...] = ()
+    heat_links: tuple[HeatLink, ...] = ()
+    feed_columns: tuple[str, ...] = ()
+    specs: tuple[NetworkSpec, ...] = ()
+
+    def section(self, name: str) -> ColumnSection:
+        for section in self.columns:
+            if section.name == name:
+                return section
+        raise KeyError(name)
+
+
+@dataclass(frozen=True)
 class Case:
     title: str
     component_names: tuple[str, ...]
     component_data: Mapping[str, ComponentData]  # only the user-defined ones
     thermo: ThermoOptions
-    column: Column
+    column: Column | None  # None for a network case (see ``network``)
     feeds: tuple[Feed, ...]
     specs: tuple[Spec, ...]
     check: Mapping[str, float] = field(default_factory=_frozen_mapping)  # tolerances
@@ -202,6 +318,9 @@ class Case:
     # Added by the parser: notes that are not errors, e.g. a [components.data] entry that
     # components.names does not list (it is checked, then left out of component_data).
     warnings: tuple[str, ...] = ()
+    # A case of several columns ([[columns]], [[connections]], [[heat_links]]); None for the
+    # single-column form, whose [column] is ``column``. Feed stages then count in their column.
+    network: Network | None = None
 
     @property
     def component_count(self) -> int:

@@ -16,6 +16,7 @@ from solver.case.components_table import read_components_table
 from solver.case.feeds_table import read_feeds_table
 from solver.case.fields import At, Field, plain, read_fields, read_text
 from solver.case.model import Case
+from solver.case.network_tables import read_network
 from solver.case.options_table import read_audit_table, read_check_table, read_display_table
 from solver.case.sizing_table import read_sizing_table
 from solver.case.specs_table import read_specs_table
@@ -32,7 +33,10 @@ _TOP_FIELDS = {
     "title": Field(lambda value, at: read_text(value, at, max_length=500), default=""),
     "components": Field(required=True),
     "thermo": Field(),
-    "column": Field(required=True),
+    "column": Field(),  # [column], or [[columns]] for a network (solver.case.network_tables)
+    "columns": Field(),
+    "connections": Field(),
+    "heat_links": Field(),
     "feeds": Field(required=True),
     "specs": Field(),
     "check": Field(),
@@ -109,10 +113,12 @@ def _parse(data: Any, at: At) -> Case:
     title = read_fields(data, at, _TOP_FIELDS, "a case: a TOML document with [components], [column] and [[feeds]]")["title"]
     names, component_data, warnings = read_components_table(data["components"], at.child("components"))
     thermo = read_thermo_table(data.get("thermo", {}), names, at.child("thermo"))
-    column = read_column_table(data["column"], at.child("column"))
-    feeds = read_feeds_table(data["feeds"], names, component_data, column, at.child("feeds"))
-    specs, reflux_temperature, reflux_subcooling = read_specs_table(data.get("specs", {}), names, column, at.child("specs"))
-    column = replace(column, reflux_temperature=reflux_temperature, reflux_subcooling=reflux_subcooling)
+    if "columns" in data:
+        network, feeds = read_network(data, names, component_data, at)
+        column, specs = None, ()
+    else:
+        network = None
+        column, feeds, specs = _read_single_column(data, names, component_data, at)
     check = read_check_table(data.get("check", {}), at.child("check"))
     display = read_display_table(data.get("display", {}), at.child("display"))
     audit = read_audit_table(data["audit"], names, at.child("audit")) if "audit" in data else None
@@ -132,4 +138,20 @@ def _parse(data: Any, at: At) -> Case:
         source_file=at.file,
         raw=MappingProxyType(plain(data)),
         warnings=tuple(warnings),
+        network=network,
     )
+
+
+def _read_single_column(data: Mapping[str, Any], names, component_data, at: At):
+    """[column], [[feeds]] and [specs] of a single-column case: (column, feeds, specs)."""
+    for key in ("connections", "heat_links"):
+        if key in data:
+            at.child(key).fail("needs a network of columns: [[columns]] in place of [column]", "a list",
+                               f"[[columns]] tables, or no [[{key}]]")
+    if "column" not in data:
+        at.child("column").fail("missing", expected="a value for 'column' (a [column] table, or [[columns]] tables for a network)")
+    column = read_column_table(data["column"], at.child("column"))
+    feeds = read_feeds_table(data["feeds"], names, component_data, column, at.child("feeds"))
+    specs, reflux_temperature, reflux_subcooling = read_specs_table(data.get("specs", {}), names, column, at.child("specs"))
+    column = replace(column, reflux_temperature=reflux_temperature, reflux_subcooling=reflux_subcooling)
+    return column, feeds, specs

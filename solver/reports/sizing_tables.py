@@ -22,7 +22,7 @@ __all__ = ["SIZING_CAUTION", "diameter_rows", "print_sizing", "sizing_markdown",
 
 #: Shown under every sizing.
 SIZING_CAUTION = ("Hydraulics are preliminary (Fair's flooding correlation, Robbins' pressure drop, rules of thumb for "
-                  "downcomers and HETP); the tray or packing maker's data and rating rule.")
+                  "downcomers and HETP); the tray or packing maker's data and rating decide the hardware.")
 
 
 def _larger(difference: float) -> str:

@@ -17,7 +17,7 @@ and what the CMO traffic of the shortcut design would have sized (``traystack si
 
 The hydraulics are preliminary: correlations of limited accuracy (Fair's flooding chart about
 +-10 to 15 %, Robbins' pressure drop about +-20 %), rules of thumb for downcomers and HETP.
-Vendor data and the tray or packing maker's rating rule.
+Vendor data and the tray or packing maker's rating decide the hardware.
 """
 
 from .column import BasisSizing, ColumnSizing, Rating, SectionSizing, attach_sizing, size_column, sizing_inputs

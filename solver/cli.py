@@ -122,6 +122,9 @@ def command_run(args: argparse.Namespace) -> int:
         result = exc.result
     result = result.with_extra(flags=RunFlags(run_flags(result)))
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    if args.sensitivity:
+        from .cli_sensitivity import run_sensitivities
+        result = run_sensitivities(case, result, out, console)
     if sizing_data is not None and result.converged:
         result = _with_sizing(case, result, sizing_data, console)
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
@@ -159,6 +162,9 @@ def add_run_command(sub) -> None:
     run.add_argument("--json", action="store_true", help="print the result JSON on stdout (and nothing else there)")
     run.add_argument("--max-iterations", type=_positive_int, metavar="N",
                      help="diagnostic: limit Newton to N iterations (default 60), e.g. to see a partial solve")
+    run.add_argument("--sensitivity", action="store_true",
+                     help="also the derivatives of every output with respect to specs, feed, pressure, efficiency and "
+                     "model parameters (largest elasticities on screen; all in result.json and sensitivity.csv)")
     run.set_defaults(handler=command_run)
 
 

@@ -522,7 +522,8 @@ def command_sweep(args: argparse.Namespace) -> int:
                     write_sweep_csv(SweepResult(tuple(variations), base.component_names, done, total), out / "sweep.csv")
                     last_write[0] = time.monotonic()
 
-            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance,
+                               warm=not args.cold, chains=args.jobs)
     except SweepInterrupted as stop:
         stop_workers(executor)
         written = write_sweep_csv(stop.result, out / "sweep.csv")
@@ -576,6 +577,8 @@ def add_sweep_command(sub) -> None:
                        "and COUNT evenly spaced values; START and STOP may carry a unit ('feeds[0].temperature=40 degC:70 degC:4'); "
                        "give it twice for a grid")
     sweep.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="solve N points at a time in worker processes (default 1)")
+    sweep.add_argument("--cold", action="store_true",
+                       help="solve every point from the default start (by default each starts from its nearest solved neighbour)")
     sweep.add_argument("--out", metavar="DIR", help="output folder (default: CASE_sweep in the current folder)")
     sweep.set_defaults(handler=command_sweep)
 

@@ -14,7 +14,8 @@ output along the tangent, ``(y(X + h t, p + h) - y(X - h t, p - h)) / 2h``.
 The scales of the moved systems are the nominal ones, so that the unknowns ``X`` mean the same
 stage profile in every one of them. A feed given by its temperature that is all liquid or all
 vapor keeps its phase under a small step: its enthalpy is then that of the phase at its
-temperature and pressure (no flash); every other feed is flashed again.
+temperature and pressure (no flash); a saturated feed's is that of the phase at its bubble (dew)
+point; a two-phase feed is flashed again.
 
 Outputs (SI): distillate and bottoms flows, their mole fractions, each component's recovery in
 each product (fraction of its feed), the condenser and reboiler duties, every stage's
@@ -49,6 +50,7 @@ from .network import StageGraph, build_stage_graph
 from .results import Result, json_safe
 from .sensitivity_inputs import InputParameter, choose_inputs
 from .streams import FlashedFeed
+from .thermo.flash import bubble_temperature, dew_temperature
 from .thermo.package import ThermoPackage
 
 __all__ = [
@@ -187,24 +189,38 @@ def _system(case: Case, thermo: ThermoPackage, graph: StageGraph, feeds: Sequenc
     )
 
 
-def _single_phase(feed: FlashedFeed) -> bool:
-    return feed.temperature is not None and feed.vapor_fraction in (0.0, 1.0)
+def _single_phase(feed, flashed: FlashedFeed) -> bool:
+    """A feed all liquid or all vapor: given by its temperature (and found so by the flash), or
+    saturated (vapor fraction 0 or 1)."""
+    if feed.temperature is None:
+        return feed.vapor_fraction in (0.0, 1.0)
+    return flashed.vapor_fraction in (0.0, 1.0)
+
+
+def _feed_temperature(feed, thermo: ThermoPackage, z: np.ndarray, pressure: np.ndarray, flashed: FlashedFeed) -> np.ndarray:
+    """The feed's temperature as given, or its bubble (dew) point when saturated liquid (vapor),
+    started from the nominal flash's temperature."""
+    if feed.temperature is not None:
+        return np.array([feed.temperature])
+    point = bubble_temperature if feed.vapor_fraction == 0.0 else dew_temperature
+    return point(thermo, pressure, z, guess=np.array([flashed.temperature]))[0]
 
 
 def _moved_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph, nominal: Sequence[FlashedFeed]) -> tuple[FlashedFeed, ...]:
     """The feeds of the moved ``case``: a feed that the nominal flash found all liquid or all
     vapor at its temperature keeps that phase (its enthalpy that of the phase); otherwise all
     are flashed again."""
-    if thermo.enthalpy_model != "rigorous" or not all(_single_phase(f) for f in nominal):
+    if thermo.enthalpy_model != "rigorous" or not all(_single_phase(f, n) for f, n in zip(case.feeds, nominal)):
         return flash_feeds(case, thermo, graph)
     moved = []
     for feed, before in zip(case.feeds, nominal):
         pressure = feed.pressure if feed.pressure is not None else float(graph.pressures[feed.stage - 1])
-        T, z, P = np.array([feed.temperature]), np.asarray(feed.composition, dtype=float)[None, :], np.array([pressure])
+        z, P = np.asarray(feed.composition, dtype=float)[None, :], np.array([pressure])
+        T = _feed_temperature(feed, thermo, z, P, before)
         phase = thermo.liquid_enthalpy if before.vapor_fraction == 0.0 else thermo.vapor_enthalpy
         h = float(phase(T, z, model="rigorous", pressure=P).molar[0])
         moved.append(dataclasses.replace(before, flow=feed.flow, z=tuple(z[0].tolist()), h=h,
-                                         temperature=feed.temperature, pressure=pressure))
+                                         temperature=float(T[0]), pressure=pressure))
     return tuple(moved)
 
 

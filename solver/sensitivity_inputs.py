@@ -33,7 +33,7 @@ import numpy as np
 
 from .case import Case
 from .case.model import InteractionParameter
-from .thermo.package import ThermoPackage
+from .thermo.package import ThermoPackage, activity_model
 
 __all__ = ["INPUT_KINDS", "InputParameter", "ShiftedVaporPressure", "choose_inputs"]
 
@@ -154,7 +154,10 @@ def _with_pair_term(index: int, term: str, side: int) -> Apply:
             both[side] = value
             pairs[index] = dataclasses.replace(pair, **{term: tuple(both)})
         moved = dataclasses.replace(case, thermo=dataclasses.replace(case.thermo, pairs=tuple(pairs)))
-        return moved, ThermoPackage.from_case(moved)
+        # the pairs fitted to UNIFAC do not depend on the stated ones: kept, not fitted again
+        activity = activity_model(moved, moved.component_names, getattr(thermo, "predicted_pairs", ()))
+        return moved, ThermoPackage(thermo.pure, activity, enthalpy=thermo.enthalpy_model,
+                                    cmo_latent_heat=thermo.cmo_latent_heat)
     return apply
 
 

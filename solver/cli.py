@@ -122,6 +122,9 @@ def command_run(args: argparse.Namespace) -> int:
         result = exc.result
     result = result.with_extra(flags=RunFlags(run_flags(result)))
     out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    if args.sensitivity:
+        from .cli_sensitivity import run_sensitivities
+        result = run_sensitivities(case, result, out, console)
     if sizing_data is not None and result.converged:
         result = _with_sizing(case, result, sizing_data, console)
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
@@ -159,6 +162,9 @@ def add_run_command(sub) -> None:
     run.add_argument("--json", action="store_true", help="print the result JSON on stdout (and nothing else there)")
     run.add_argument("--max-iterations", type=_positive_int, metavar="N",
                      help="diagnostic: limit Newton to N iterations (default 60), e.g. to see a partial solve")
+    run.add_argument("--sensitivity", action="store_true",
+                     help="also the derivatives of every output with respect to specs, feed, pressure, efficiency and "
+                     "model parameters (largest elasticities on screen; all in result.json and sensitivity.csv)")
     run.set_defaults(handler=command_run)
 
 
@@ -516,7 +522,8 @@ def command_sweep(args: argparse.Namespace) -> int:
                     write_sweep_csv(SweepResult(tuple(variations), base.component_names, done, total), out / "sweep.csv")
                     last_write[0] = time.monotonic()
 
-            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance)
+            result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance,
+                               warm=not args.cold, chains=args.jobs)
     except SweepInterrupted as stop:
         stop_workers(executor)
         written = write_sweep_csv(stop.result, out / "sweep.csv")
@@ -570,6 +577,8 @@ def add_sweep_command(sub) -> None:
                        "and COUNT evenly spaced values; START and STOP may carry a unit ('feeds[0].temperature=40 degC:70 degC:4'); "
                        "give it twice for a grid")
     sweep.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="solve N points at a time in worker processes (default 1)")
+    sweep.add_argument("--cold", action="store_true",
+                       help="solve every point from the default start (by default each starts from its nearest solved neighbour)")
     sweep.add_argument("--out", metavar="DIR", help="output folder (default: CASE_sweep in the current folder)")
     sweep.set_defaults(handler=command_sweep)
 

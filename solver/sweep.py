@@ -23,6 +23,7 @@ already solved, a partial study that ``sweep.csv`` marks as such.
 from __future__ import annotations
 
 import copy
+import dataclasses
 import csv
 import io
 import itertools
@@ -31,7 +32,7 @@ import os
 import re
 import time
 import tomllib
-from concurrent.futures import Executor, as_completed
+from concurrent.futures import FIRST_COMPLETED, Executor, wait
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any, Callable, Mapping, Sequence
@@ -42,7 +43,8 @@ from .case import parse_case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError, TraystackError
 from .plots import sweep_plot
 from .results import write_atomic
-from .engine import simulate
+from .engine import stage_profile
+from .warm_starts import SolvedPoint, nearest_profile, solve_warm
 
 __all__ = [
     "Variation",
@@ -56,6 +58,8 @@ __all__ = [
     "load_document",
     "sweep_points",
     "solve_point",
+    "point_outcome",
+    "failed_point",
     "run_sweep",
     "sweep_csv",
     "write_sweep_csv",
@@ -116,6 +120,8 @@ class PointOutcome:
     products: Mapping[str, tuple[float, tuple[float, ...]]] | None = None  # name -> (flow, composition)
     seconds: float = 0.0
     diameters: Mapping[str, float] | None = None  # section -> diameter (m), when the case has [sizing]
+    warm_start: bool = False  # solved from a neighbour's profile (a warm sweep)
+    profile: Any = None  # the converged StageProfile, on its way from a worker to the next point's start
 
     @property
     def converged(self) -> bool:
@@ -309,7 +315,8 @@ def _apply(document: Mapping, assignments) -> dict:
 _STATUS = ((CaseError, "bad input"), (SpecError, "infeasible"), (ThermoError, "thermo error"), (ConvergenceError, "not converged"))
 
 
-def _failure(index: int, values: tuple, exc: BaseException, seconds: float) -> PointOutcome:
+def failed_point(index: int, values: tuple, exc: BaseException, seconds: float) -> PointOutcome:
+    """The outcome of a point that raised ``exc`` (its status from the error's kind)."""
     if not isinstance(exc, TraystackError):
         return PointOutcome(index, values, "internal error",
                             f"{type(exc).__name__}: {exc} (a bug in traystack; please report it)", seconds=seconds)
@@ -317,17 +324,26 @@ def _failure(index: int, values: tuple, exc: BaseException, seconds: float) -> P
     return PointOutcome(index, values, status, str(exc), seconds=seconds)
 
 
-def solve_point(index: int, document: Mapping, assignments, source_file: str = "<sweep>") -> PointOutcome:
+def solve_point(index: int, document: Mapping, assignments, source_file: str = "<sweep>", start=None) -> PointOutcome:
     """Solve one point: write ``assignments`` ((path, key, value), ...) into a copy of the TOML
-    ``document``, validate it and simulate. Runs in a worker; never raises for a failed point."""
+    ``document``, validate it and simulate, from ``start`` (a neighbour's StageProfile, see
+    :func:`solver.warm_starts.solve_warm`) if given. Runs in a worker; never raises for a
+    failed point."""
     started = time.perf_counter()
     values = tuple(value for _, _, value in assignments)
     try:
         case = parse_case(_apply(document, assignments), source_file=source_file)
-        result = simulate(case)
+        found = solve_warm(case, start)
     except Exception as exc:  # a failed point is reported, not fatal
-        return _failure(index, values, exc, time.perf_counter() - started)
-    seconds = time.perf_counter() - started
+        return failed_point(index, values, exc, time.perf_counter() - started)
+    outcome = point_outcome(index, values, case, found.result, time.perf_counter() - started)
+    if not found.result.converged:
+        return outcome
+    return dataclasses.replace(outcome, warm_start=found.warm, profile=stage_profile(found.result))
+
+
+def point_outcome(index: int, values: tuple, case, result, seconds: float) -> PointOutcome:
+    """The outcome of one solved point (its numbers only if it converged)."""
     if not result.converged:  # the numbers of an unconverged iterate are not results
         return PointOutcome(index, values, "not converged", result.message, result.iterations, result.residual_norm,
                             seconds=seconds)
@@ -366,13 +382,19 @@ def run_sweep(
     *,
     source_file: str = "<sweep>",
     progress: Callable[[PointOutcome], None] | None = None,
+    warm: bool = False,
+    chains: int = 1,
 ) -> SweepResult:
     """Solve every point of the grid of ``variations`` through ``executor``.
 
     Each point is first validated here (writing its values and parsing the case); a point that
     does not validate is a failed point and is not sent to the executor. When no point
     validates, the sweep itself is bad input: :class:`CaseError` with the first point's
-    message. ``progress`` is called with each outcome as it arrives."""
+    message. ``progress`` is called with each outcome as it arrives.
+
+    With ``warm``, the points go to the executor as ``chains`` runs of neighbouring points, and
+    in each run a point starts from its nearest converged neighbour (:mod:`solver.warm_starts`),
+    the default start where there is none or Newton fails from it."""
     if not variations:
         raise CaseError("nothing to vary", key="--vary", expected="at least one --vary KEY=START:STOP:COUNT")
     if len({variation.path for variation in variations}) != len(variations):
@@ -384,7 +406,8 @@ def run_sweep(
     futures: dict = {}
     components: list[str] = []  # filled by the first point that validates
     try:
-        _solve_points(points, variations, document, executor, source_file, progress, outcomes, futures, components)
+        _solve_points(points, variations, document, executor, source_file, progress, outcomes, futures, components,
+                      chains if warm else 0)
     except KeyboardInterrupt:
         for future in futures:  # the points not started are dropped; the caller stops the workers
             future.cancel()
@@ -394,34 +417,63 @@ def run_sweep(
 
 
 def _solve_points(points, variations, document, executor, source_file, progress, outcomes: list, futures: dict,
-                  components: list) -> None:
+                  components: list, chains: int = 0) -> None:
     """The body of :func:`run_sweep`: fills ``outcomes``, ``futures`` and ``components`` as it
-    goes, so that an interrupt leaves what is done."""
+    goes, so that an interrupt leaves what is done. ``chains`` > 0: warm-started runs."""
+    valid = []
     for index, values in enumerate(points):
         assignments = _assignments(variations, values)
         try:
             case = parse_case(_apply(document, assignments), source_file=source_file)
         except TraystackError as exc:
-            outcomes[index] = _failure(index, tuple(values), exc, 0.0)
+            outcomes[index] = failed_point(index, tuple(values), exc, 0.0)
             continue
         if not components:
             components.extend(case.component_names)
-        futures[executor.submit(solve_point, index, document, assignments, source_file)] = index
-    if not futures:
+        valid.append((index, assignments, _coordinates(variations, values)))
+    if not valid:
         first = outcomes[0]
         raise CaseError(f"no point of the sweep is a valid case; the first: {first.message}", key="--vary")
     for outcome in outcomes:
         if outcome is not None and progress is not None:
             progress(outcome)
-    for future in as_completed(futures):
-        index = futures[future]
-        try:
-            outcome = future.result()
-        except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
-            outcome = _failure(index, tuple(points[index]), exc, 0.0)
-        outcomes[index] = outcome
-        if progress is not None:
-            progress(outcome)
+    runs = [list(run) for run in np.array_split(np.arange(len(valid)), min(chains, len(valid)))] if chains else []
+    solved: list = []  # converged points of a warm sweep: where they lie and their profiles
+
+    def submit(k: int) -> None:
+        index, assignments, coordinates = valid[k]
+        start = nearest_profile(coordinates, solved) if chains else None
+        futures[executor.submit(solve_point, index, document, assignments, source_file, start)] = k
+
+    for k in ([run.pop(0) for run in runs] if chains else range(len(valid))):
+        submit(k)
+    while futures:
+        done, _ = wait(futures, return_when=FIRST_COMPLETED)
+        for future in done:
+            k = futures.pop(future)
+            index = valid[k][0]
+            try:
+                outcome = future.result()
+            except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
+                outcome = failed_point(index, tuple(points[index]), exc, 0.0)
+            if outcome.profile is not None:
+                solved.append(SolvedPoint(valid[k][2], outcome.profile))
+            outcomes[index] = dataclasses.replace(outcome, profile=None)
+            if progress is not None:
+                progress(outcomes[index])
+            run = next((run for run in runs if run and run[0] == k + 1), None)
+            if run:
+                submit(run.pop(0))
+
+
+def _coordinates(variations: Sequence[Variation], values: Sequence[Any]) -> tuple[float, ...]:
+    """Where a point lies in the study, each varied value scaled to its range (0..1)."""
+    scaled = []
+    for variation, value in zip(variations, values):
+        numbers = np.asarray(variation.magnitudes, dtype=float)
+        span = float(numbers.max() - numbers.min()) or 1.0
+        scaled.append(float((numbers[variation.values.index(value)] - numbers.min()) / span))
+    return tuple(scaled)
 
 
 # =======================================================================================

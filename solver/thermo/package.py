@@ -36,7 +36,7 @@ from .unifac import DortmundUNIFAC, UNIFAC
 if TYPE_CHECKING:  # the case reader is upstream; only its data model is read here
     from ..case import Case
 
-__all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage"]
+__all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage", "activity_model"]
 
 
 @dataclass(frozen=True)
@@ -67,7 +67,7 @@ class PhaseEnthalpy:
     excess: np.ndarray
 
 
-def _activity_model(case: Case, names: Sequence[str], pairs: Sequence = ()):
+def activity_model(case: Case, names: Sequence[str], pairs: Sequence = ()):
     """Build the case's activity model, with parameter matrices in the component order;
     ``pairs`` are predicted pairs added to the case's own."""
     options = case.thermo
@@ -175,7 +175,7 @@ class ThermoPackage:
         infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
         pure = PureComponents(infos, case.component_data)
         predicted = _predicted_pairs(case, pure)
-        activity = _activity_model(case, case.component_names, [p.parameters for p in predicted])
+        activity = activity_model(case, case.component_names, [p.parameters for p in predicted])
         description = {
             "liquid": case.thermo.liquid,
             "vapor": case.thermo.vapor,
@@ -207,7 +207,9 @@ class ThermoPackage:
             "missing_pairs": case.thermo.missing_pairs or None,
             "uniquac_structure": {name: list(rq) for name, rq in case.thermo.uniquac_structure.items()},
         }
-        return cls(pure, activity, enthalpy=case.thermo.enthalpy, description=description)
+        package = cls(pure, activity, enthalpy=case.thermo.enthalpy, description=description)
+        package.predicted_pairs = tuple(p.parameters for p in predicted)  # the fitted pairs, to build the model again
+        return package
 
     def describe(self) -> dict:
         """Every model and parameter used, with sources, for the result file."""

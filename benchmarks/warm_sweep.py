@@ -1,0 +1,54 @@
+"""Warm-started sweeps against cold ones: the same study solved with every point from the
+default start (``--cold``) and with each point from its nearest solved neighbour. Figures:
+Newton iterations and seconds per point (the first point, cold in both, left out of the
+per-point figures), and the ratios cold / warm. Writes benchmarks/results/warm_sweep.json."""
+
+from __future__ import annotations
+
+from concurrent.futures import ThreadPoolExecutor
+
+from _common import HERE, save
+
+from solver.sweep import load_document, parse_variation, run_sweep
+
+STUDIES = {
+    "methanol_water reflux ratio (12 points)": ("methanol_water.toml", ["specs.reflux_ratio=1.3:3.0:12"]),
+    "naphtha_side_draw reflux ratio x draw stage (3 x 3)": (
+        "naphtha_side_draw.toml", ["specs.reflux_ratio=3:5:3", "column.side_draws[0].stage=10:40:3"]),
+}
+
+
+def measure(document, variations, warm: bool) -> dict:
+    with ThreadPoolExecutor(max_workers=1) as executor:
+        result = run_sweep(document, variations, executor, warm=warm, chains=1)
+    later = result.outcomes[1:]
+    return {
+        "converged": sum(o.converged for o in result.outcomes),
+        "points": len(result.outcomes),
+        "iterations_after_first": sum(o.iterations or 0 for o in later),
+        "seconds_after_first": sum(o.seconds for o in later),
+        "seconds_total": sum(o.seconds for o in result.outcomes),
+        "warm_started": sum(o.warm_start for o in result.outcomes),
+    }
+
+
+def main() -> None:
+    figures = {}
+    for name, (case, keys) in STUDIES.items():
+        document = load_document(HERE.parent / "cases" / case)
+        variations = [parse_variation(key) for key in keys]
+        cold, warm = measure(document, variations, False), measure(document, variations, True)
+        figures[name] = {
+            "cold": cold, "warm": warm,
+            "iteration_ratio_cold_over_warm": cold["iterations_after_first"] / max(warm["iterations_after_first"], 1),
+            "seconds_ratio_cold_over_warm": cold["seconds_after_first"] / warm["seconds_after_first"],
+        }
+        print(f"{name}: iterations {cold['iterations_after_first']} cold / {warm['iterations_after_first']} warm, "
+              f"seconds {cold['seconds_after_first']:.2f} / {warm['seconds_after_first']:.2f} "
+              f"({figures[name]['seconds_ratio_cold_over_warm']:.1f}x)")
+    figures["goal"] = "warm points at least 3x cheaper than cold ones"
+    save("warm_sweep", figures)
+
+
+if __name__ == "__main__":
+    main()

@@ -265,7 +265,7 @@ def command_audit(args: argparse.Namespace) -> int:
         plots.append(composition_profiles(result, out / "compositions.png"))
         if report.cmo is not None:
             plots.append(cmo_flow_profiles(result, report.cmo.liquid_cmo, report.cmo.vapor_cmo, out / "cmo_flows.png"))
-        if report.shortcut.is_binary:
+        if report.shortcut is not None and report.shortcut.is_binary:
             layers = [shortcut_layer(report.shortcut.design)]
             plots.append(yx_diagram(result, out / "yx.png", layers=layers, rigorous_steps=False))
         plots += _sizing_figure(result, out)
@@ -276,7 +276,8 @@ def command_audit(args: argparse.Namespace) -> int:
     written += plots
     for table in audit_tables(result, units):
         console.print(table)
-    console.print(SIDE_BY_SIDE_NOTE, style="dim")
+    if report.shortcut is not None:
+        console.print(SIDE_BY_SIDE_NOTE, style="dim")
     _print_sizing(result, console)
     console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
     for text in cautions(result)[:-1]:

@@ -176,12 +176,14 @@ class AuditReport:
     reflux, the case as specified when it was solved), the CMO audit of the run at the design,
     the flags, the solves used and the time taken. ``solution`` is the rigorous solution of the
     shortcut's column; ``result`` is that solution with ``extra["shortcut"]`` and
-    ``extra["audit"]`` (this report) attached. ``as_json()`` is result.json's "audit"."""
+    ``extra["audit"]`` (this report) attached. ``as_json()`` is result.json's "audit".
+    ``shortcut`` None (with ``shortcut_error``, why): no shortcut design was possible, and
+    ``solution`` is the case as specified."""
 
     scope: ClassVar[str] = "full"
     applicable: ClassVar[bool] = True
 
-    shortcut: ShortcutReport
+    shortcut: ShortcutReport | None
     thresholds: Mapping[str, float]
     shortcut_reflux_at_stages: float | None
     at_design: RigorousRun
@@ -194,9 +196,12 @@ class AuditReport:
     solution: Result
     case_run: RigorousRun | None = None
     notes: tuple[str, ...] = ()
+    shortcut_error: str = ""
 
     @cached_property
     def result(self) -> Result:
+        if self.shortcut is None:
+            return self.solution.with_extra(audit=self)
         return self.solution.with_extra(shortcut=self.shortcut, audit=self)
 
     def as_json(self) -> dict[str, Any]:
@@ -205,19 +210,21 @@ class AuditReport:
 
 def full_audit_record(report: AuditReport) -> dict[str, Any]:
     """result.json "audit" of :func:`~.full.audit_case` (``scope`` "full")."""
-    names = list(report.shortcut.case.component_names)
-    basis, cmo, case_run = report.shortcut.basis, report.cmo, report.case_run
+    names = list(report.solution.components)
+    cmo, case_run = report.cmo, report.case_run
     needed, search = report.reflux_needed, report.stages_needed
+    basis = None if report.shortcut is None else report.shortcut.basis
     return {
         "scope": "full",
         "applicable": True,
-        "basis": {
+        "basis": None if basis is None else {
             "method": basis.method,
             "targets": list(basis.described_targets),
             "reflux_ratio": report.shortcut.design.reflux_ratio,
             "reflux_factor": basis.reflux_factor,
             "sources": dict(basis.sources),
         },
+        "shortcut_error": report.shortcut_error or None,
         "thresholds": dict(report.thresholds),
         "threshold_reasons": dict(THRESHOLD_REASONS),
         "shortcut_reflux_at_shortcut_stages": report.shortcut_reflux_at_stages,

@@ -342,7 +342,10 @@ def two_liquids(check: LiquidSplitCheck | None, where: str = "stage") -> Flag | 
         f"the {check.model} liquid would split into two liquid phases on {where}(s) {labels}: e.g. on {where} "
         f"{check.labels[worst]} the liquid ({_composition(names, check.compositions[worst])}) is unstable against a "
         f"second liquid ({_composition(names, check.trial_compositions[worst])}); a one-liquid solution is not "
-        "physical there (a decanter, or a model and parameters fitted to liquid-liquid data, is needed)",
+        "physical there (a decanter, or a model and parameters fitted to liquid-liquid data, is needed)"
+        + ("; a binary boiling in two liquid phases has, at a given pressure, one boiling temperature and one "
+           "vapor for every overall composition between the two liquids (a heterogeneous azeotrope when that vapor "
+           "lies between them)" if len(names) == 2 else ""),
         {
             where + "s": list(check.split_labels),
             "liquids": [check.compositions[k].tolist() for k in check.split],

@@ -13,6 +13,10 @@ For a case with one feed, a condenser and a partial reboiler (no side draws) :fu
    search on N, the distillate rate held, the feed stage moved: :mod:`.search`);
 5. raises the flags of :mod:`.flags` against the thresholds of :mod:`.thresholds`.
 
+A binary whose activity model splits the liquid (n-butanol/water) has no monotonic equilibrium
+curve, so no shortcut design; when the case as specified then solves to liquids that split, the
+audit reports that solution with its TWO_LIQUIDS flag and the reason the shortcut is missing.
+
 Units are SI: K, Pa, mol/s, W, J/mol; compositions are mole fractions.
 """
 
@@ -27,7 +31,7 @@ import numpy as np
 from scipy.optimize import brentq
 
 from ..case import Case, Spec
-from ..errors import SpecError
+from ..errors import SpecError, ThermoError
 from ..results import Result
 from ..shortcut import BinaryDesign, MulticomponentDesign
 from ..shortcut.fug import gilliland_stages
@@ -38,7 +42,7 @@ from .cmo import CMOAudit, cmo_audit
 from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_condition, pinch_moved_by_enthalpies,
                     pinch_moved_in_column, purity_shortfall, reflux_difference, search_incomplete, solve_failed,
                     stage_difference, tangent_pinch, two_liquids)
-from .findings import AuditReport, ShortcutReport
+from .findings import AuditBasis, AuditReport, ShortcutReport
 from .search import StageSearch, stage_search
 from .solution import run_flags
 from .targets import describe_spec
@@ -92,7 +96,11 @@ def audit_case(
     chosen = resolve_thresholds(case, thresholds)
     thermo = thermo or ThermoPackage.from_case(case)
     columns = RigorousColumns(case, thermo, max_solves)
-    shortcut = shortcut_designs(case, audit_basis(case, thermo, columns.solve_case), thermo)
+    basis = audit_basis(case, thermo, columns.solve_case)
+    try:
+        shortcut = shortcut_designs(case, basis, thermo)
+    except ThermoError as exc:
+        return _without_shortcut(case, basis, columns, chosen, str(exc), started, exc)
     column = _DesignColumn.of(shortcut)
     solution, at_design = _solve_at_design(columns, column)
     cmo = reflux_needed = search = shortcut_reflux = None
@@ -122,6 +130,24 @@ def audit_case(
         reflux_needed=reflux_needed, stages_needed=search, cmo=cmo, flags=by_severity(flags), solves=columns.count,
         seconds=time.perf_counter() - started, solution=solution, case_run=case_run,
         notes=shortcut.basis.notes + tuple(shortcut.design.notes) + tuple(columns.notes),
+    )
+
+
+def _without_shortcut(case: Case, basis: AuditBasis, columns: RigorousColumns, chosen: Mapping[str, float], reason: str,
+                      started: float, error: ThermoError) -> AuditReport:
+    """The audit of a case the shortcut cannot design for because the liquid splits: the case as
+    specified, solved rigorously, with its own flags. Any other property failure is raised."""
+    solution = basis.case_result if basis.case_result is not None else columns.solve_case(case)
+    if not (solution.converged and solution.liquid_split is not None and solution.liquid_split.split):
+        raise error
+    feed = case.feeds[0]
+    case_run = run_summary("rigorous, the case as specified", solution, case.column.stages, feed.stage, case.specs,
+                           basis.targets, np.asarray(feed.composition, dtype=float))
+    return AuditReport(
+        shortcut=None, thresholds=chosen, shortcut_reflux_at_stages=None, at_design=case_run, reflux_needed=None,
+        stages_needed=None, cmo=None, flags=by_severity(list(run_flags(solution))), solves=columns.count,
+        seconds=time.perf_counter() - started, solution=solution, case_run=case_run,
+        notes=basis.notes + tuple(columns.notes), shortcut_error=reason,
     )
 
 

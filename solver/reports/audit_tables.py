@@ -12,6 +12,7 @@ from rich.table import Table
 
 from ..results import Result
 from .display import DisplayUnits, cell, markdown_table, screen_table
+from .run_tables import summary_tables
 
 if TYPE_CHECKING:  # read by attribute only, so that showing a result does not load the audit's solvers
     from ..audit import AuditReport, CMOAudit, Flag, RigorousRun, ShortcutReport, SolutionAudit
@@ -197,10 +198,17 @@ def shortcut_tables(shortcut: ShortcutReport, units: DisplayUnits, title: str = 
 def audit_tables(result: Result, units: DisplayUnits) -> list[Table]:
     """Screen tables of ``traystack audit``: side by side, the CMO audit, the flags."""
     audit: AuditReport = result.extra["audit"]
-    header, rows = side_by_side_rows(result, units)
-    tables = [screen_table(f"shortcut and rigorous side by side: {result.title}", header, rows)]
-    tables.append(screen_table("what the shortcut designs for", ["", "value", "from"],
-                               basis_rows(result.extra["shortcut"]), left=3))
+    if "shortcut" in result.extra:
+        header, rows = side_by_side_rows(result, units)
+        tables = [screen_table(f"shortcut and rigorous side by side: {result.title}", header, rows)]
+        tables.append(screen_table("what the shortcut designs for", ["", "value", "from"],
+                                   basis_rows(result.extra["shortcut"]), left=3))
+    else:
+        tables = summary_tables(result, units)
+        why = Table(title="no shortcut design", header_style="bold")
+        why.add_column("why", overflow="fold")
+        why.add_row(_no_shortcut(audit))
+        tables.append(why)
     if audit.cmo is not None:
         header, rows = cmo_rows(audit.cmo, units)
         tables.append(screen_table("CMO audit of the rigorous column at the shortcut's design", header, rows))
@@ -216,6 +224,11 @@ def audit_tables(result: Result, units: DisplayUnits) -> list[Table]:
     return tables
 
 
+def _no_shortcut(audit: AuditReport) -> str:
+    return (f"{audit.shortcut_error}. The column below is the case as specified, solved rigorously with one liquid "
+            "per stage; see the TWO_LIQUIDS flag.")
+
+
 def audit_markdown(result: Result, units: DisplayUnits) -> list[str]:
     """The audit's sections of summary.md (empty without an audit)."""
     audit: AuditReport | SolutionAudit | None = result.extra.get("audit")
@@ -224,6 +237,8 @@ def audit_markdown(result: Result, units: DisplayUnits) -> list[str]:
     lines: list[str] = []
     if audit.scope == "full" and "shortcut" in result.extra:
         lines += _side_by_side_markdown(result, units)
+    elif audit.scope == "full":
+        lines += ["## No shortcut design", "", _no_shortcut(audit), ""]
     if audit.cmo is not None:
         lines += ["## CMO audit", ""]
         lines.append(

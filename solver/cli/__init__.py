@@ -95,6 +95,22 @@ def main(argv: list[str] | None = None) -> int:
     return _handle(args)
 
 
+def _naming_the_file(message: str, args: argparse.Namespace) -> str:
+    """``message``, led by the case file the command read when it does not name it yet."""
+    case = getattr(args, "case", None)
+    if case and os.path.basename(case) not in message:
+        return f"{case}: {message}"
+    return message
+
+
+def _quiet_stdout() -> None:
+    """Point stdout at the null device, so that flushing it at exit raises no second error."""
+    try:
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    except (OSError, ValueError):  # stdout is no file (tests capture it)
+        pass
+
+
 def _handle(args: argparse.Namespace) -> int:
     """Run the command, turning every error into its message and exit code."""
     try:
@@ -102,8 +118,11 @@ def _handle(args: argparse.Namespace) -> int:
     except TraystackError as exc:
         if args.debug:
             traceback.print_exc()
-        print(f"traystack: error: {exc}", file=sys.stderr)
+        print(f"traystack: error: {_naming_the_file(str(exc), args)}", file=sys.stderr)
         return exc.exit_code
+    except BrokenPipeError:  # the reader went away (`traystack run CASE | head`): stop quietly, as Unix tools do
+        _quiet_stdout()
+        return 0
     except KeyboardInterrupt:
         print("traystack: interrupted; files already written are complete, nothing was half-written", file=sys.stderr)
         return 130

@@ -11,21 +11,23 @@ import time
 from pathlib import Path
 
 from rich.table import Table
+from rich.text import Text
 
 from .. import __version__
 from ..caution import CAUTION
 from ..errors import CaseError
-from .common import console_for, default_out, positive_int, progress_bar, refuse_before_engine
+from .common import console_for, output_folder, positive_int, progress_bar, refuse_before_engine, styled
 
 __all__ = ["add_check_command", "add_sweep_command", "command_check", "command_sweep"]
 
 
 def _moved(check) -> str:
     from ..regress import FAILED, headlines
+    from ..reports import display_units
 
     if check.status == FAILED:
         return check.message
-    lines = headlines(check.deviations)
+    lines = headlines(check.deviations, display_units())
     if check.baseline_version and check.baseline_version != __version__:
         lines.append(f"(baseline from traystack {check.baseline_version})")
     return "\n".join(lines)
@@ -68,7 +70,7 @@ def command_check(args: argparse.Namespace) -> int:
         table.add_column(column, justify="right" if column in ("iterations", "time / s") else "left")
     for check in checks:
         style = styles.get(check.status, "cyan")
-        table.add_row(check.name, f"[{style}]{check.status}[/]", "" if check.iterations is None else str(check.iterations),
+        table.add_row(check.name, Text(check.status, style=style), "" if check.iterations is None else str(check.iterations),
                       f"{check.seconds:.2f}", _moved(check))
     console.print(table)
     counts = {status: sum(check.status == status for check in checks) for status in (PASS, DRIFT, FAILED, NO_BASELINE)}
@@ -117,7 +119,7 @@ def command_sweep(args: argparse.Namespace) -> int:
     variations = [parse_variation(text) for text in args.vary]
     if len(variations) > 2:
         raise CaseError("at most two keys can be varied", key="--vary", value=[v.key for v in variations])
-    out = Path(args.out) if args.out else default_out(case_path, "_sweep")
+    out = output_folder(args.out, case_path, "_sweep")
     total = 1
     for variation in variations:
         total *= len(variation.values)
@@ -165,7 +167,7 @@ def command_sweep(args: argparse.Namespace) -> int:
         table.add_column(column, justify="right")
     for outcome in result.outcomes:
         cells = [str(value) for value in outcome.values]
-        cells.append(outcome.status if outcome.converged else f"[bold red]{outcome.status}[/]")
+        cells.append(outcome.status if outcome.converged else Text(outcome.status, style="bold red"))
         cells.append("" if outcome.iterations is None else str(outcome.iterations))
         if outcome.converged:
             cells += [f"{outcome.reboiler_duty / 1e3:.5g}" if outcome.reboiler_duty is not None else "",
@@ -176,11 +178,11 @@ def command_sweep(args: argparse.Namespace) -> int:
         table.add_row(*cells)
     console.print(table)
     for outcome in result.failed:
-        console.print(f"[bold red]point {outcome.index + 1} failed[/] ({outcome.status}): {outcome.message}")
+        console.print(styled((f"point {outcome.index + 1} failed", "bold red"), f" ({outcome.status}): {outcome.message}"))
     converged = len(result.outcomes) - len(result.failed)
     console.print(f"{converged} of {len(result.outcomes)} points converged; files written to {out}{os.sep}: "
                   + ", ".join(path.name for path in files))
-    console.print(f"[dim]Caution: {CAUTION}[/]")
+    console.print(f"Caution: {CAUTION}", style="dim")
     return 0 if converged else 3
 
 

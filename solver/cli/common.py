@@ -9,8 +9,11 @@ from pathlib import Path
 
 from rich.console import Console
 from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeElapsedColumn
+from rich.text import Text
 
-__all__ = ["PLOT_FILES", "at_least_three", "console_for", "default_out", "fail_on", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "with_sizing"]
+from ..errors import CaseError
+
+__all__ = ["PLOT_FILES", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
 
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
@@ -18,8 +21,22 @@ __all__ = ["PLOT_FILES", "at_least_three", "console_for", "default_out", "fail_o
 PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 
 
+class _Screen(Console):
+    def on_broken_pipe(self) -> None:
+        """The reader went away (``traystack run CASE | head``): stop printing; ``main`` exits 0."""
+        self.quiet = True
+        raise BrokenPipeError
+
+
 def console_for(quiet: bool = False, stderr: bool = False) -> Console:
-    return Console(stderr=stderr, quiet=quiet, highlight=False, soft_wrap=False, width=120)
+    """The screen: markup off, so square brackets in titles, names and messages are shown as
+    written (styles are given as ``style=`` or :class:`rich.text.Text`, never as markup)."""
+    return _Screen(stderr=stderr, quiet=quiet, highlight=False, soft_wrap=False, width=120, markup=False)
+
+
+def styled(*parts: str | tuple[str, str]) -> Text:
+    """Plain text and ``(text, style)`` pieces as one line for the console."""
+    return Text.assemble(*parts)
 
 
 def default_out(case_path: Path, suffix: str) -> Path:
@@ -27,10 +44,19 @@ def default_out(case_path: Path, suffix: str) -> Path:
     return Path.cwd() / f"{case_path.stem}{suffix}"
 
 
+def output_folder(out: str | None, case_path: Path, suffix: str) -> Path:
+    """``--out`` (else the default folder); refuses a path that exists and is not a folder."""
+    folder = Path(out) if out else default_out(case_path, suffix)
+    if folder.exists() and not folder.is_dir():
+        raise CaseError("exists and is not a folder", key="--out", value=str(folder),
+                        expected="a folder (created if missing) for the files the command writes")
+    return folder
+
+
 def progress_bar(console: Console) -> Progress:
     # auto_refresh=False: no refresh thread, so worker processes are never forked while one runs
     return Progress(
-        TextColumn("{task.description}"), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
+        TextColumn("{task.description}", markup=False), BarColumn(), MofNCompleteColumn(), TimeElapsedColumn(),
         console=console, auto_refresh=False, transient=True, disable=not console.is_terminal,
     )
 
@@ -73,7 +99,7 @@ def with_sizing(case, result, sizing_data, console):
 
     sized, reason = attach_sizing(case, result, sizing_data)
     if reason:
-        console.print(f"[yellow]no sizing:[/] {reason}")
+        console.print(styled(("no sizing:", "yellow"), f" {reason}"))
     return sized
 
 

@@ -17,8 +17,6 @@ def command_components(args: argparse.Namespace) -> int:
     """List the CoolProp fluids and handbook compounds a pattern finds, or show one component's
     properties with their sources. Reads shipped indexes; CoolProp or ``chemicals`` is imported
     only to show one component's properties."""
-    from rich.markup import escape
-
     from ..catalog import close_names, coolprop_fluid, exact_handbook, matches
 
     console = console_for()
@@ -27,9 +25,9 @@ def command_components(args: argparse.Namespace) -> int:
         fluid, entry = coolprop_fluid(pattern), exact_handbook(pattern)
         if fluid is not None or entry is not None:
             if fluid is not None:
-                _show_coolprop_fluid(console, fluid, escape)
+                _show_coolprop_fluid(console, fluid)
             if entry is not None:
-                _show_handbook_compound(console, entry.name, escape, used=fluid is None)
+                _show_handbook_compound(console, entry.name, used=fluid is None)
             return 0
     found = matches(pattern)
     if not found.coolprop and not found.handbook:
@@ -42,19 +40,19 @@ def command_components(args: argparse.Namespace) -> int:
             table.add_column(column, justify="left" if column in ("name", "source") else "right")
         for fluid in found.coolprop:
             Tb = fluid.normal_boiling_point
-            table.add_row(escape(fluid.name), f"{fluid.molar_mass * 1000:.3f}", f"{Tb - 273.15:.2f}" if Tb else "-",
+            table.add_row((fluid.name), f"{fluid.molar_mass * 1000:.3f}", f"{Tb - 273.15:.2f}" if Tb else "-",
                           f"{fluid.critical_temperature - 273.15:.2f}", f"{fluid.critical_pressure / 1e5:.3f}",
-                          f"CoolProp {escape(fluid.coolprop_name)} reference EOS")
+                          f"CoolProp {(fluid.coolprop_name)} reference EOS")
         console.print(table)
     if found.handbook:
         table = Table(title="handbook library (correlations from published tables; estimates)", header_style="bold")
         for column in ("name", "CAS", "formula", "also called", "source"):
             table.add_column(column)
         for entry in found.handbook:
-            table.add_row(escape(entry.name), entry.cas, escape(entry.formula), escape(", ".join(entry.synonyms[:3])),
+            table.add_row((entry.name), entry.cas, (entry.formula), (", ".join(entry.synonyms[:3])),
                           "handbook tables per property")
         console.print(table)
-    console.print(escape(
+    console.print((
         f"{len(found.coolprop)} CoolProp fluid(s), {len(found.handbook)} handbook compound(s). "
         "`traystack components NAME` shows one component's properties with their sources. A case takes a name "
         "from CoolProp when CoolProp has it, else from the handbook; [components] from_handbook = [...] chooses "
@@ -62,11 +60,11 @@ def command_components(args: argparse.Namespace) -> int:
     return 0
 
 
-def _show_coolprop_fluid(console, fluid, escape) -> None:
+def _show_coolprop_fluid(console, fluid) -> None:
     from ..components import coolprop_source
 
-    source = escape(coolprop_source(fluid.coolprop_name))
-    table = Table(title=f"{escape(fluid.name)}: CoolProp fluid (used unless from_handbook lists it)", header_style="bold")
+    source = (coolprop_source(fluid.coolprop_name))
+    table = Table(title=f"{(fluid.name)}: CoolProp fluid (used unless from_handbook lists it)", header_style="bold")
     for column in ("property", "value", "source"):
         table.add_column(column)
     Tb = fluid.normal_boiling_point
@@ -79,20 +77,20 @@ def _show_coolprop_fluid(console, fluid, escape) -> None:
     console.print(table)
 
 
-def _show_handbook_compound(console, name: str, escape, *, used: bool) -> None:
+def _show_handbook_compound(console, name: str, *, used: bool) -> None:
     from ..handbook import lookup, property_rows
 
     component = lookup(name, key="PATTERN")
     when = "used for this name" if used else "used when from_handbook lists it"
-    table = Table(title=f"{escape(component.name)} ({component.cas}, {escape(component.formula)}): handbook library, "
+    table = Table(title=f"{(component.name)} ({component.cas}, {(component.formula)}): handbook library, "
                         f"{when}", header_style="bold")
     for column in ("property", "value or form", "range", "source"):
         table.add_column(column)
     for row in property_rows(component):
-        table.add_row(escape(row["property"]), escape(row["value"] or row["form"]), escape(row["range"]),
-                      escape(row["source"]))
+        table.add_row((row["property"]), (row["value"] or row["form"]), (row["range"]),
+                      (row["source"]))
     console.print(table)
-    console.print(escape("Handbook correlations are fits to measured data within their ranges and estimates beyond "
+    console.print(("Handbook correlations are fits to measured data within their ranges and estimates beyond "
                          "them (extrapolated toward the critical point, with a note in the result)."))
 
 

@@ -7,11 +7,12 @@ import os
 import sys
 from pathlib import Path
 
-from rich.markup import escape
-
 from ..caution import CAUTION
 from ..errors import ConvergenceError
-from .common import PLOT_FILES, console_for, default_out, positive_int, print_sizing, refuse_before_engine, sizing_figure, with_sizing
+from .common import (
+    PLOT_FILES, console_for, output_folder, positive_int, print_sizing, refuse_before_engine, sizing_figure, styled,
+    with_sizing,
+)
 
 __all__ = ["add_run_command", "command_run"]
 
@@ -34,6 +35,7 @@ def command_run(args: argparse.Namespace) -> int:
     console = console_for(args.quiet or args.json)
     units = display_units(case.display, args.units)
     sizing_data = sizing_inputs(case) if case.sizing is not None else None  # a missing property is bad input
+    out = output_folder(args.out, case_path, "_out")
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     try:
         result = simulate(case, options=options)
@@ -42,7 +44,6 @@ def command_run(args: argparse.Namespace) -> int:
             raise
         result = exc.result
     result = result.with_extra(flags=RunFlags(run_flags(result)))
-    out = Path(args.out) if args.out else default_out(case_path, "_out")
     if sizing_data is not None and result.converged:
         result = with_sizing(case, result, sizing_data, console)
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
@@ -60,9 +61,9 @@ def command_run(args: argparse.Namespace) -> int:
         console.print(table)
     print_sizing(result, console)
     for text in cautions(result)[:-1]:
-        console.print(f"[yellow]caution:[/] {escape(text)}")
+        console.print(styled(("caution:", "yellow"), f" {text}"))
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
+    console.print(f"Caution: {CAUTION}", style="dim")
     if not result.converged:
         print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
               "marked converged: false", file=sys.stderr)

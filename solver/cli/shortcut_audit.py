@@ -8,13 +8,11 @@ import os
 import sys
 from pathlib import Path
 
-from rich.markup import escape
-
 from ..caution import CAUTION
 from ..errors import CaseError
 from .common import (
-    PLOT_FILES, at_least_three, console_for, default_out, fail_on, print_sizing, refuse_before_engine, sizing_figure,
-    sizing_flags, with_sizing,
+    PLOT_FILES, at_least_three, console_for, fail_on, output_folder, print_sizing, refuse_before_engine, sizing_figure,
+    sizing_flags, styled, with_sizing,
 )
 
 __all__ = ["SHORTCUT_SCHEMA", "add_audit_command", "add_shortcut_command", "command_audit", "command_shortcut"]
@@ -41,7 +39,7 @@ def command_shortcut(args: argparse.Namespace) -> int:
     console = console_for(args.quiet)
     units = display_units(case.display, args.units)
     report = shortcut_case(case)
-    out = Path(args.out) if args.out else default_out(case_path, "_shortcut")
+    out = output_folder(args.out, case_path, "_shortcut")
     document = {
         "schema": SHORTCUT_SCHEMA, "title": case.title, "case": case_summary(case),
         "components": list(case.component_names), "units": dict(UNITS), "shortcut": report.as_json(),
@@ -56,11 +54,11 @@ def command_shortcut(args: argparse.Namespace) -> int:
     for note in report.design.notes:
         console.print(f"note: {note}")
     if report.enthalpy_message:
-        console.print(f"[yellow]Ponchon-Savarit design not possible:[/] {report.enthalpy_message}")
+        console.print(styled(("Ponchon-Savarit design not possible:", "yellow"), f" {report.enthalpy_message}"))
     for flag in filter(None, [two_liquids(report.liquid_split, "equilibrium-curve point")]):
-        console.print(f"[red]\\[{flag.severity}] {flag.code}:[/] {flag.message}")
+        console.print(styled((f"[{flag.severity}] {flag.code}:", "red"), f" {flag.message}"))
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
+    console.print(f"Caution: {CAUTION}", style="dim")
     return 0
 
 
@@ -102,10 +100,10 @@ def command_audit(args: argparse.Namespace) -> int:
         try:
             sizing_data = sizing_inputs(case)
         except CaseError as exc:
-            console.print(f"[yellow]no sizing:[/] {exc}")
+            console.print(styled(("no sizing:", "yellow"), f" {exc}"))
         else:
             result = with_sizing(case, result, sizing_data, console)
-    out = Path(args.out) if args.out else default_out(case_path, "_audit")
+    out = output_folder(args.out, case_path, "_audit")
     written = [write_result_json(result, out / "result.json"), write_stages_csv(result, out / "stages.csv")]
     plots = []
     if result.converged:
@@ -126,12 +124,14 @@ def command_audit(args: argparse.Namespace) -> int:
         console.print(table)
     console.print(SIDE_BY_SIDE_NOTE, style="dim")
     print_sizing(result, console)
+    for note in report.notes:  # e.g. the shortcut's theoretical stages against a case of real (Murphree) stages
+        console.print(f"note: {note}")
     console.print(f"{report.solves} rigorous solves in {report.seconds:.1f} s")
     for text in cautions(result)[:-1]:
         if not text.startswith("["):  # the flags are in their table
-            console.print(f"[yellow]caution:[/] {escape(text)}")
+            console.print(styled(("caution:", "yellow"), f" {text}"))
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
+    console.print(f"Caution: {CAUTION}", style="dim")
     if not result.converged:
         print(f"traystack: the shortcut's column did not converge rigorously: {result.message}; the result is written "
               f"to {out / 'result.json'} marked converged: false", file=sys.stderr)

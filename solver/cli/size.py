@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 
 from ..caution import CAUTION
-from .common import console_for, default_out, fail_on, print_sizing, refuse_before_engine, sizing_figure, sizing_flags
+from .common import console_for, fail_on, output_folder, print_sizing, refuse_before_engine, sizing_figure, sizing_flags
 
 __all__ = ["add_size_command", "command_size"]
 
@@ -28,7 +28,7 @@ def command_size(args: argparse.Namespace) -> int:
     units = display_units(case.display, args.units)
     thermo, liquids = sizing_inputs(case)
     result = simulate(case)
-    out = Path(args.out) if args.out else default_out(case_path, "_size")
+    out = output_folder(args.out, case_path, "_size")
     if not result.converged:
         write_result_json(result, out / "result.json")
         (out / "flood.png").unlink(missing_ok=True)
@@ -41,7 +41,7 @@ def command_size(args: argparse.Namespace) -> int:
                write_summary(result, out / "summary.md", units, [path.name for path in plots]), *plots]
     print_sizing(result, console)
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
+    console.print(f"Caution: {CAUTION}", style="dim")
     return fail_on(args.fail_on, sizing_flags(result), "sizing")
 
 

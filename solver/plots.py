@@ -29,7 +29,12 @@ __all__ = [
     "cmo_flow_profiles",
     "composition_profiles",
     "equilibrium_curve",
+    "composition_figure",
+    "flow_figure",
     "flow_profiles",
+    "stage_marks",
+    "sweep_figure",
+    "temperature_figure",
     "light_component",
     "shortcut_layer",
     "shortcut_yx_diagram",
@@ -58,19 +63,59 @@ def _stage_axis(ax, count: int) -> None:
     ax.grid(True, alpha=0.3)
 
 
-def temperature_profile(result: Result, path: Path) -> Path:
+def _title(figure, result_title: str, what: str) -> None:
+    """One title style for every figure: what it shows, then the case's title, above the axes."""
+    figure.suptitle(f"{what}\n{result_title}" if result_title else what, fontsize=9)
+
+
+def stage_marks(result: Result) -> list[tuple[int, str]]:
+    """(stage, label) of every stage where the flows jump: feeds, side draws, side heaters
+    and coolers (stage numbers from 1)."""
+    marks = [(j + 1, "feed") for j, feeds in enumerate(result.stage_feeds) if feeds]
+    marks += [(int(j) + 1, "side draw") for j in np.flatnonzero((result.liquid_draw > 0) | (result.vapor_draw > 0))]
+    marks += [(duty.stage, "side heater" if duty.duty > 0 else "side cooler") for duty in result.stage_duties]
+    return sorted(marks)
+
+
+_MARK_STYLES = {"feed": ("tab:green", "--"), "side draw": ("tab:purple", "-."), "side heater": ("tab:red", ":"),
+                "side cooler": ("tab:blue", ":")}
+
+
+def _mark_stages(ax, result: Result) -> None:
+    """A horizontal line at each feed, side-draw, heater and cooler stage, labelled once per kind."""
+    shown = set()
+    for stage, kind in stage_marks(result):
+        color, style = _MARK_STYLES[kind]
+        ax.axhline(stage, color=color, linestyle=style, linewidth=0.9, alpha=0.8,
+                   label=None if kind in shown else kind, gid=f"stage-mark {kind} {stage}")
+        shown.add(kind)
+
+
+def temperature_figure(result: Result):
+    """Temperature against stage number, feeds and side streams marked."""
     stages = np.arange(1, result.stage_count + 1)
     figure, ax = plt.subplots(figsize=(5, 6))
-    ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3)
+    ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3, label="temperature")
     ax.set_xlabel("temperature / °C")
     _stage_axis(ax, result.stage_count)
-    ax.set_title(result.title, fontsize=9)
-    return _save(figure, path)
+    _mark_stages(ax, result)
+    ax.legend(loc="best", fontsize=8)
+    _title(figure, result.title, "stage temperatures")
+    return figure
+
+
+def temperature_profile(result: Result, path: Path) -> Path:
+    return _save(temperature_figure(result), path)
 
 
 def flow_profiles(result: Result, path: Path) -> Path:
+    return _save(flow_figure(result), path)
+
+
+def flow_figure(result: Result):
     """Liquid and vapor flows leaving each tray (kmol/h); the condenser and reboiler slots
-    hold products and are left out so the internal flows can be read."""
+    hold products and are left out so the internal flows can be read. Feed, side-draw and
+    side-duty stages are marked, where the flows jump."""
     stages = np.arange(1, result.stage_count + 1)
     inner = np.ones(result.stage_count, dtype=bool)
     if result.condenser != "none":
@@ -83,21 +128,37 @@ def flow_profiles(result: Result, path: Path) -> Path:
     ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", markersize=3, label="vapor V")
     ax.set_xlabel("flow leaving the stage / kmol/h")
     _stage_axis(ax, result.stage_count)
+    _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
-    ax.set_title("internal flows (rigorous)", fontsize=9)
-    return _save(figure, path)
+    _title(figure, result.title, "internal flows (rigorous)")
+    return figure
+
+
+def composition_figure(result: Result):
+    """Liquid mole fractions against stage number, on a linear scale and on a log scale (where
+    key impurities of 1e-4 and below can be read); feeds and side streams marked."""
+    stages = np.arange(1, result.stage_count + 1)
+    figure, (linear, logarithmic) = plt.subplots(1, 2, figsize=(9, 6), sharey=True)
+    for i, name in enumerate(result.components):
+        line, = linear.plot(result.x[:, i], stages, "-", label=f"x {name}")
+        logarithmic.plot(np.clip(result.x[:, i], 1e-300, None), stages, "-", color=line.get_color())
+    linear.set_xlabel("liquid mole fraction")
+    linear.set_xlim(-0.02, 1.02)
+    logarithmic.set_xscale("log")
+    logarithmic.set_xlabel("liquid mole fraction (log scale)")
+    smallest = float(np.min(result.x[result.x > 0])) if np.any(result.x > 0) else 1e-12
+    logarithmic.set_xlim(max(smallest, 1e-15) / 2, 1.5)
+    for ax in (linear, logarithmic):
+        _stage_axis(ax, result.stage_count)
+        _mark_stages(ax, result)
+    logarithmic.set_ylabel("")
+    linear.legend(loc="best", fontsize=8)
+    _title(figure, result.title, "liquid compositions")
+    return figure
 
 
 def composition_profiles(result: Result, path: Path) -> Path:
-    stages = np.arange(1, result.stage_count + 1)
-    figure, ax = plt.subplots(figsize=(5, 6))
-    for i, name in enumerate(result.components):
-        ax.plot(result.x[:, i], stages, "-", label=f"x {name}")
-    ax.set_xlabel("liquid mole fraction")
-    ax.set_xlim(-0.02, 1.02)
-    _stage_axis(ax, result.stage_count)
-    ax.legend(loc="best", fontsize=8)
-    return _save(figure, path)
+    return _save(composition_figure(result), path)
 
 
 def light_component(result: Result) -> int:
@@ -177,7 +238,7 @@ def yx_diagram(
     for layer in layers:
         layer(ax, light)
     _yx_frame(ax, result.components[light])
-    ax.set_title(result.title, fontsize=9)
+    _title(figure, result.title, "y-x diagram")
     return _save(figure, path)
 
 
@@ -235,11 +296,8 @@ def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence
         layer(ax, 0)
     _yx_frame(ax, design.light)
     pinch = design.minimum_reflux
-    ax.set_title(
-        (title + "\n" if title else "")
-        + f"R = {design.reflux_ratio:.4g}, R_min = {pinch.ratio:.4g} ({pinch.pinch} pinch), N_min = {design.minimum_stages:.3g}",
-        fontsize=9,
-    )
+    _title(figure, title, f"shortcut design: R = {design.reflux_ratio:.4g}, R_min = {pinch.ratio:.4g} ({pinch.pinch} pinch), "
+           f"N_min = {design.minimum_stages:.3g}")
     return _save(figure, path)
 
 
@@ -269,8 +327,9 @@ def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndar
             linewidth=1.0, label="vapor V, CMO")
     ax.set_xlabel("flow leaving the stage / kmol/h")
     _stage_axis(ax, result.stage_count)
+    _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
-    ax.set_title("internal flows: rigorous against constant molar overflow", fontsize=9)
+    _title(figure, result.title, "internal flows: rigorous against constant molar overflow")
     return _save(figure, path)
 
 
@@ -288,6 +347,53 @@ def write_all(result: Result, folder: Path, *, thermo=None, yx_layers: Sequence[
     return written
 
 
+def sweep_figure(
+    x: np.ndarray,
+    x_label: str,
+    groups: Mapping[str, Mapping[str, np.ndarray]],
+    panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
+    title: str = "",
+    failed_x: Sequence[float] | Mapping[str, Sequence[float]] = (),
+):
+    """Results of a parameter sweep against the first varied key.
+
+    ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
+    columns of values along ``x`` (NaN where a point failed, which leaves a gap); ``panels``
+    is one ``(axis label, [(column, line label), ...])`` per subplot. Each group has one colour
+    (the columns of a panel differ by line style), named in one short legend outside the axes.
+    ``failed_x`` (per group, or for all) are marked by crosses on the x axis, not by lines."""
+    x = np.asarray(x, dtype=float)
+    figure, axes = plt.subplots(len(panels), 1, figsize=(7.5, 2.8 * len(panels)), sharex=True, squeeze=False)
+    labels = list(groups)
+    colours = plt.get_cmap("viridis")(np.linspace(0.0, 0.85, max(len(labels), 1))) if len(labels) > 1 else ["tab:blue"]
+    styles = ["-", "--", ":", "-."]
+    failed = failed_x if isinstance(failed_x, Mapping) else {label: failed_x for label in labels}
+    for ax, (axis_label, columns) in zip(axes[:, 0], panels):
+        for colour, group in zip(colours, labels):
+            for style, (column, line_label) in zip(styles, columns):
+                ax.plot(x, groups[group][column], "o", linestyle=style, color=colour, markersize=3.5,
+                        label=line_label if len(labels) == 1 else None)
+            spots = sorted(set(failed.get(group, ())))
+            if spots:
+                ax.plot(spots, [0.0] * len(spots), "x", color=colour, markersize=7, clip_on=False,
+                        transform=ax.get_xaxis_transform(), label="failed point" if group == labels[0] else None)
+        if len(labels) > 1:  # the line styles once, in black; the colours in the figure's legend
+            for style, (_, line_label) in zip(styles, columns):
+                ax.plot([], [], linestyle=style, color="black", label=line_label)
+        ax.set_ylabel(axis_label)
+        ax.grid(True, alpha=0.3)
+        ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, borderaxespad=0.0)
+    if len(labels) > 1:
+        handles = [plt.Line2D([], [], color=colour, marker="o", linestyle="-") for colour in colours]
+        figure.legend(handles, labels, loc="lower left", bbox_to_anchor=(0.91, 0.02), fontsize=7,
+                      title="second key", title_fontsize=7)
+    axes[-1, 0].set_xlabel(x_label)
+    if np.all(x == np.round(x)):
+        axes[-1, 0].xaxis.set_major_locator(MaxNLocator(integer=True))
+    figure.suptitle(f"parameter sweep\n{title}" if title else "parameter sweep", fontsize=9)
+    return figure
+
+
 def sweep_plot(
     x: np.ndarray,
     x_label: str,
@@ -295,29 +401,7 @@ def sweep_plot(
     panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
     path: Path,
     title: str = "",
-    failed_x: Sequence[float] = (),
+    failed_x: Sequence[float] | Mapping[str, Sequence[float]] = (),
 ) -> Path:
-    """Results of a parameter sweep against the first varied key.
-
-    ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
-    columns of values along ``x`` (NaN where a point failed, which leaves a gap); ``panels``
-    is one ``(axis label, [(column, line label), ...])`` per subplot; ``failed_x`` are marked
-    with dotted vertical lines."""
-    x = np.asarray(x, dtype=float)
-    figure, axes = plt.subplots(len(panels), 1, figsize=(6.5, 2.8 * len(panels)), sharex=True, squeeze=False)
-    for ax, (axis_label, columns) in zip(axes[:, 0], panels):
-        for group, values in groups.items():
-            for column, line_label in columns:
-                label = f"{line_label}, {group}" if group else line_label
-                ax.plot(x, values[column], "o-", markersize=3.5, label=label)
-        for number, position in enumerate(sorted(set(failed_x))):
-            ax.axvline(position, color="0.6", linestyle=":", linewidth=1, label="failed point" if number == 0 else None)
-        ax.set_ylabel(axis_label)
-        ax.grid(True, alpha=0.3)
-        ax.legend(loc="best", fontsize=7)
-    axes[-1, 0].set_xlabel(x_label)
-    if np.all(x == np.round(x)):
-        axes[-1, 0].xaxis.set_major_locator(MaxNLocator(integer=True))
-    if title:
-        axes[0, 0].set_title(title, fontsize=9)
-    return _save(figure, path)
+    """:func:`sweep_figure` saved as PNG in ``path``."""
+    return _save(sweep_figure(x, x_label, groups, panels, title, failed_x), path)

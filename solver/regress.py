@@ -57,6 +57,7 @@ from .audit import AuditReport, SolutionAudit, audit_solution
 from .results import Result, write_atomic
 from .engine import simulate
 from .thermo.package import ThermoPackage
+from .reports.display import DisplayUnits
 
 __all__ = [
     "BASELINE_SCHEMA",
@@ -104,13 +105,15 @@ class Deviation:
     tolerance: float | None = None
     measure: str = ""  # "rel" | "abs" | ""
 
-    def describe(self) -> str:
+    def describe(self, units: DisplayUnits | None = None) -> str:
+        """One line: the quantity, baseline -> now, and the difference against its tolerance;
+        with ``units`` the values in display units (temperatures, flows, duties) and an absolute
+        temperature difference in kelvin."""
         if self.tolerance is None:
             return f"{self.quantity}: {self.baseline} -> {self.current}"
-        return (
-            f"{self.quantity}: {_number(self.baseline)} -> {_number(self.current)} "
-            f"({self.measure} {self.difference:.2e} > {self.tolerance:.0e})"
-        )
+        baseline, current, unit = _in_units(self.quantity, self.baseline, self.current, units)
+        measure = f"{self.measure} {self.difference:.2e}" + (" K" if unit and self.quantity.startswith("stage_") else "")
+        return f"{self.quantity}: {_number(baseline)} -> {_number(current)}{unit} ({measure} > {self.tolerance:.0e})"
 
     @property
     def excess(self) -> float:
@@ -139,7 +142,21 @@ class CaseCheck:
         return self.status in (PASS, NO_BASELINE, WRITTEN, UPDATED)
 
 
-def headlines(deviations: Sequence[Deviation]) -> list[str]:
+def _in_units(quantity: str, baseline: Any, current: Any, units: DisplayUnits | None) -> tuple[Any, Any, str]:
+    """(baseline, current, " unit") of a compared number in display units (SI when ``units``
+    is None, with no unit named, as the baseline file holds them)."""
+    if units is None or not all(isinstance(v, (int, float)) for v in (baseline, current)):
+        return baseline, current, ""
+    if quantity.startswith("stage_temperatures"):
+        return units.T(baseline), units.T(current), f" {units.temperature_label}"
+    if quantity.startswith("duties."):
+        return units.Q(baseline), units.Q(current), f" {units.duty}"
+    if quantity.endswith(".flow"):
+        return units.F(baseline), units.F(current), f" {units.flow}"
+    return baseline, current, ""
+
+
+def headlines(deviations: Sequence[Deviation], units: DisplayUnits | None = None) -> list[str]:
     """A short account of what moved: every duty, ratio, product flow and structural change,
     the worst composition of each product, and the worst stage temperature with a count."""
     lines, worst_composition, temperatures = [], {}, []
@@ -150,11 +167,11 @@ def headlines(deviations: Sequence[Deviation]) -> list[str]:
             product = deviation.quantity.split(".composition.")[0]
             worst_composition.setdefault(product, deviation)
         else:
-            lines.append(deviation.describe())
-    lines += [deviation.describe() for deviation in worst_composition.values()]
+            lines.append(deviation.describe(units))
+    lines += [deviation.describe(units) for deviation in worst_composition.values()]
     if temperatures:
         more = f" (worst of {len(temperatures)} stages that moved)" if len(temperatures) > 1 else ""
-        lines.append(temperatures[0].describe() + more)
+        lines.append(temperatures[0].describe(units) + more)
     return lines
 
 
@@ -292,8 +309,9 @@ def compare_baselines(baseline: Mapping[str, Any], current: Mapping[str, Any], t
     return sorted((d for d in found if d is not None), key=lambda d: -d.excess)
 
 
-def check_case(case_file: str) -> CaseCheck:
-    """Solve the case in ``case_file`` and compare it with its baseline (if there is one).
+def check_case(case_file: str, without_baseline: bool = True) -> CaseCheck:
+    """Solve the case in ``case_file`` and compare it with its baseline (if there is one; a
+    case without one is solved only when ``without_baseline``, else listed as such).
 
     Never raises for a bad case or a failed solve: those come back as status ``failed`` with
     the message. The baseline file is only read here; writing is the caller's decision
@@ -301,6 +319,8 @@ def check_case(case_file: str) -> CaseCheck:
     started = time.perf_counter()
     name = Path(case_file).stem
     expected_file = baseline_path(case_file)
+    if not without_baseline and not expected_file.exists():
+        return CaseCheck(name, str(case_file), NO_BASELINE, f"no baseline {expected_file.name}: not run")
     try:
         case = load_case(case_file)
         refuse_network(case, "check")
@@ -340,9 +360,9 @@ def check_cases(
 ) -> list[CaseCheck]:
     """Check every case through ``executor`` (one :func:`check_case` per case), in the order of
     ``case_files``. With ``update``, a case that drifted or had no baseline gets a new one
-    (written atomically); a passing baseline is left as it is, byte for byte, and a case that
+    (written atomically), and only then is a case without baseline solved; a passing baseline is left as it is, byte for byte, and a case that
     failed never gets one."""
-    futures = {executor.submit(check_case, str(path)): index for index, path in enumerate(case_files)}
+    futures = {executor.submit(check_case, str(path), update): index for index, path in enumerate(case_files)}
     checks: list[CaseCheck | None] = [None] * len(futures)
     for future in as_completed(futures):
         outcome = future.result()

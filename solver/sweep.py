@@ -70,6 +70,7 @@ __all__ = [
 MAX_POINTS = 10_000
 #: Significant digits of an interpolated value (so that 0.1 steps print as 0.1, not 0.30000000000000004).
 VALUE_DIGITS = 12
+_DECIMALS = re.compile(r"\d\.(\d+)")
 
 #: Keys of one table that exclude each other: writing one removes the other, so that varying a
 #: feed's temperature works on a case that gives its vapor fraction, and the reverse.
@@ -97,6 +98,15 @@ class Variation:
     values: tuple[Any, ...]  # numbers, or strings with units ("40 degC")
     magnitudes: tuple[float, ...]  # the numbers, in ``unit``
     unit: str = ""
+    decimals: int = 0  # decimal places of START and STOP as written
+
+    def shown(self) -> list[str]:
+        """Each value as the key was written: the decimals of START and STOP (more only where
+        that would show two values alike), with the unit."""
+        digits = self.decimals
+        while digits < VALUE_DIGITS and len({f"{m:.{digits}f}" for m in self.magnitudes}) < len(set(self.magnitudes)):
+            digits += 1
+        return [f"{m:.{digits}f}" + (f" {self.unit}" if self.unit else "") for m in self.magnitudes]
 
     @property
     def label(self) -> str:
@@ -274,7 +284,8 @@ def parse_variation(text: str) -> Variation:
         values = magnitudes
     if start_unit:
         values = tuple(f"{value:.{VALUE_DIGITS}g} {start_unit}" for value in values)
-    return Variation(key, path, values, magnitudes, start_unit)
+    decimals = max(len(found) for found in (_DECIMALS.findall(parts[0]) + _DECIMALS.findall(parts[1]) + [""]))
+    return Variation(key, path, values, magnitudes, start_unit, decimals)
 
 
 def load_document(path: str | os.PathLike) -> dict:
@@ -535,8 +546,11 @@ def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = 
     primary = result.variations[0]
     groups: dict[str, dict[str, np.ndarray]] = {}
     second = result.variations[1] if len(result.variations) > 1 else None
-    for group_value in (second.values if second else (None,)):
-        label = f"{second.key} = {group_value}" if second else ""
+    failed_x: dict[str, list[float]] = {}
+    for group_value, shown in (zip(second.values, second.shown()) if second else [(None, "")]):
+        label = f"{second.key} = {shown}" if second else ""
+        failed_x[label] = [primary.magnitudes[primary.values.index(o.values[0])] for o in result.failed
+                           if second is None or o.values[1] == group_value]
         members = {o.values[0]: o for o in result.outcomes if second is None or o.values[1] == group_value}
         columns = {name: np.full(len(primary.values), np.nan) for name in ("reboiler", "condenser", "light", "heavy")}
         for i, value in enumerate(primary.values):
@@ -555,7 +569,6 @@ def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = 
         ("mole fraction", [("light", f"distillate {result.components[light]}"),
                            ("heavy", f"bottoms {result.components[heavy]}")]),
     ]
-    failed_x = [primary.magnitudes[primary.values.index(o.values[0])] for o in result.failed]
     return sweep_plot(np.asarray(primary.magnitudes), primary.label, groups, panels, Path(path),
                       f"{title} — {note}" if title else note, failed_x)
 

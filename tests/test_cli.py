@@ -57,6 +57,7 @@ def check_sequence(folder: Path) -> dict:
     naphtha.write_text(naphtha.read_text().replace("reflux_ratio = 4.0", "reflux_ratio = 4.2"))
     shutil.copy(CASES / "ethanol_water_wankat.toml", folder / "fresh_case.toml")
     (folder / "broken.toml").write_text("[column\nstages = 4\n")
+    shutil.copy(kept, folder / "broken.expected.json")  # a case without baseline would only be listed
     steps["drift"] = traystack("check", folder, "--junit", folder / "report.xml", "--jobs", "2")
     steps["stamps_after_drift"] = {path.name: stamp(path) for path in (kept, moved)}
     steps["junit"] = (folder / "report.xml").read_text()

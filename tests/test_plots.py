@@ -181,4 +181,4 @@ def test_cmo_flow_profiles_draw_the_cmo_values_as_steps(binary, monkeypatch, tmp
     assert is_png(path)
     figures = captured(monkeypatch)
     cmo_flow_profiles(result, result.liquid_flow, result.vapor_flow, tmp_path / "cmo2.png")
-    assert labels(figures[0]) == ["liquid L, rigorous", "liquid L, CMO", "vapor V, rigorous", "vapor V, CMO"]
+    assert labels(figures[0]) == ["liquid L, rigorous", "liquid L, CMO", "vapor V, rigorous", "vapor V, CMO", "feed"]

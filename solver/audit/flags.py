@@ -154,9 +154,12 @@ def duty_difference(duty: str, estimate: float, rigorous: float | None, what: st
     severity = severity_of(difference, thresholds["duty_difference"], thresholds["serious_factor"])
     if severity is None:
         return None
+    more = abs(estimate) > abs(rigorous)
+    task = "to remove" if rigorous < 0 else "to supply"
     return Flag(
         "DUTY_DIFFERENCE", severity,
-        f"the shortcut's {duty} duty ({estimate / 1e3:.4g} kW, {what}) is {100 * difference:+.1f} % off the "
+        f"the shortcut's {duty} duty ({estimate / 1e3:.4g} kW, {what}) has {100 * abs(difference):.1f} % "
+        f"{'more' if more else 'less'} heat {task} than the "
         f"rigorous {rigorous / 1e3:.4g} kW at the same reflux ratio and distillate rate "
         f"(threshold {100 * thresholds['duty_difference']:.3g} %)",
         {"duty": duty, "shortcut": estimate, "rigorous": rigorous, "difference": difference,

@@ -9,6 +9,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any, Callable, Sequence
 
 from rich.table import Table
+from rich.text import Text
 
 from ..results import Result
 from .display import DisplayUnits, cell, markdown_table, screen_table
@@ -132,7 +133,9 @@ def side_by_side_rows(result: Result, units: DisplayUnits) -> tuple[list[str], l
     runs = [("rigorous: at design", audit.at_design), ("rigorous: R needed", audit.reflux_needed),
             ("rigorous: N needed", None if search is None else search.run)]
     if audit.case_run is not None:
-        runs.append(("rigorous: the case", audit.case_run))
+        efficiencies = shortcut.case.column.efficiencies
+        real = f" (real stages, Murphree E {min(efficiencies):.3g})" if min(efficiencies) < 1.0 else ""
+        runs.append((f"rigorous: the case{real}", audit.case_run))
     header = ["quantity"] + [_method_label(shortcut, d) for d in designs] + [label for label, _ in runs]
     blank = [""] * len(runs)
     rows = [
@@ -217,7 +220,7 @@ def audit_tables(result: Result, units: DisplayUnits) -> list[Table]:
         flag_table.add_column(column, overflow="fold")
     styles = {"serious": "bold red", "warning": "yellow", "info": "cyan"}
     for severity, code, message in flag_rows(audit.flags):
-        flag_table.add_row(f"[{styles.get(severity, '')}]{severity}[/]", code, message)
+        flag_table.add_row(Text(severity, style=styles.get(severity, "")), code, message)
     if not audit.flags:
         flag_table.add_row("-", "-", f"no flags: {_NO_FLAGS}")
     tables.append(flag_table)

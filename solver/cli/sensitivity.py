@@ -29,7 +29,7 @@ def headline_outputs(view) -> list[str]:
 def sensitivity_tables(study) -> list:
     """One screen table per view: each headline output, its value and its largest drivers with
     their elasticities."""
-    from .reports.display import screen_table
+    from ..reports.display import screen_table
 
     titles = {"as_specified": "Sensitivities, specs held (elasticities: % change per % change of the input)",
               "as_operated": "Sensitivities, reflux and boilup ratios held"}
@@ -50,11 +50,11 @@ def run_sensitivities(case, result, out: Path, console):
     """The sensitivities of a converged ``result``: printed, written to ``out/sensitivity.csv``
     and returned attached to the result (``extra["sensitivity"]``, for result.json). An
     unconverged result is returned as it is, with a note (there is nothing to differentiate)."""
-    from .results import write_atomic
-    from .sensitivity import sensitivity_study
+    from ..results import write_atomic
+    from ..sensitivity import sensitivity_study
 
     if not result.converged:
-        console.print("[yellow]no sensitivities: the column did not converge[/]")
+        console.print("no sensitivities: the column did not converge", style="yellow")
         return result
     study = sensitivity_study(case, result)
     for table in sensitivity_tables(study):

@@ -1,0 +1,7 @@
+"""``python -m solver.cli``: the ``traystack`` command."""
+
+import sys
+
+from . import main
+
+sys.exit(main())

@@ -16,6 +16,11 @@ import pytest
 ROOT = Path(__file__).resolve().parent.parent
 
 
+#: How an interrupted command ends: exit 130, or death by SIGINT itself (the shell shows both as
+#: status 130). The second was seen about once in 20 interrupts under load, after the command had
+#: printed its "interrupted" line and returned 130; the interpreter then chose it at exit.
+INTERRUPTED = (130, -signal.SIGINT)
+
 def test_sigint_leaves_previous_outputs_intact(tmp_path):
     out = tmp_path / "out"
     case = ROOT / "cases" / "methanol_water.toml"
@@ -35,7 +40,7 @@ def test_sigint_leaves_previous_outputs_intact(tmp_path):
     assert "Traceback" not in stderr
     after = {p.name: p.read_bytes() for p in out.iterdir()}
     assert not [name for name in after if name.endswith(".tmp")]
-    if process.returncode == 130:
+    if process.returncode in INTERRUPTED:
         assert "interrupted" in stderr
         # every file is either the old one or a complete new one
         for name, data in after.items():
@@ -46,7 +51,7 @@ def test_sigint_leaves_previous_outputs_intact(tmp_path):
     else:  # the machine was fast enough to finish first: the new outputs are complete
         assert process.returncode == 0
         assert json.loads(after["result.json"])["title"]
-    if process.returncode == 130 and after["result.json"] != before["result.json"]:
+    if process.returncode in INTERRUPTED and after["result.json"] != before["result.json"]:
         assert json.loads(after["result.json"])["stages"].__len__() == 150
 
 
@@ -82,7 +87,7 @@ def test_sigint_stops_a_sweep_soon_and_keeps_the_points_already_solved(tmp_path,
                "--jobs", jobs, "--out", str(out)]
     # the first point is solved and written
     process, stderr, stopped = _interrupt(command, lambda process: _wait_for(out / "sweep.csv", process, timeout=300))
-    assert process.returncode == 130, stderr
+    assert process.returncode in INTERRUPTED, stderr
     assert "Traceback" not in stderr and "interrupted" in stderr
     assert stopped < 5.0  # about a second on an idle machine; generous for a loaded one
     rows = list(csv.DictReader(io.StringIO((out / "sweep.csv").read_text())))
@@ -107,6 +112,6 @@ def test_sigint_stops_check_with_workers_soon(tmp_path):
 
     command = [sys.executable, "-m", "solver.cli", "check", str(tmp_path), "--jobs", "2"]
     process, stderr, stopped = _interrupt(command, busy)
-    assert process.returncode == 130, stderr
+    assert process.returncode in INTERRUPTED, stderr
     assert "Traceback" not in stderr and "interrupted" in stderr and f"of {total} case(s) checked" in stderr
     assert stopped < 5.0

@@ -60,6 +60,14 @@ def case_summary(case: Case) -> dict[str, Any]:
     return plain(case)
 
 
+def _at_feed(case: Case, feed, error: ThermoError) -> ThermoError:
+    """``error`` with the file and the feed it concerns named in front."""
+    index = case.feeds.index(feed)
+    where = f"{case.source_file}: " if case.source_file else ""
+    name = f" ({feed.name})" if feed.name else ""
+    return ThermoError(f"{where}feeds[{index}]{name}, stage {feed.stage}: {error}")
+
+
 def flash_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[FlashedFeed, ...]:
     """Flash each feed at its own temperature (or vapor fraction) and pressure, q judged at its
     stage's pressure; the energy balance takes its rigorous enthalpy, or ``(1 - q) lambda``
@@ -77,9 +85,9 @@ def flash_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[F
                 vapor_fraction=feed.vapor_fraction,
                 reference_pressure=stage_pressure,
             )
-        except ThermoError:
+        except ThermoError as exc:
             if thermo.enthalpy_model != "cmo":
-                raise
+                raise _at_feed(case, feed, exc) from exc
             state = feed_state_by_phase(
                 thermo, np.asarray(feed.composition), pressure,
                 temperature=feed.temperature, vapor_fraction=feed.vapor_fraction,

@@ -350,6 +350,7 @@ def test_audit_result_file_holds_shortcut_audit_and_per_stage_deviations(methano
     for item in audit["flags"]:
         assert set(item) == {"code", "severity", "message", "numbers"} and item["code"].isupper()
     assert audit["rigorous_solves"] == methanol_water.solves
+    assert audit["ideal_vapor"] is None and methanol_water.ideal_vapor is None  # the vapor is ideal already
     assert audit["basis"]["sources"]["target 2"] == "case specs (specs.bottoms.water)"
 
 

@@ -5,6 +5,7 @@ point."""
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 import CoolProp.CoolProp as CP
@@ -12,9 +13,9 @@ import numpy as np
 import pytest
 
 from conftest import case_from_text
-from solver.case import load_case
+from solver.case import load_case, loads_case
 from solver.engine import simulate
-from solver.errors import CaseError
+from solver.errors import CaseError, ThermoError
 from solver.thermo.flash import bubble_temperature, dew_temperature
 from solver.thermo.package import ThermoPackage
 
@@ -155,6 +156,21 @@ def test_column_above_the_mixture_critical_pressure_is_refused_with_a_reason():
     result = simulate(binary(pressure="60 bar"))
     assert not result.converged
     assert "one phase, not two" in result.message and "60 bar" in result.message
+    # the stage's mixture critical point with its numbers: a propane/n-butane critical pressure
+    # lies between the pure ones (42.5 and 38.0 bar, CoolProp) and the binary's maximum (~43 bar)
+    found = re.search(r"at 60 bar is above the critical pressure of its mixture, ([0-9.]+) bar "
+                      r"\(critical temperature ([0-9.]+) K", result.message)
+    assert found, result.message
+    assert 37.5 < float(found.group(1)) < 44.0 and 369.0 < float(found.group(2)) < 425.5
+
+
+def test_feed_above_its_critical_pressure_is_refused_before_solving():
+    """The deethanizer at 60 bar: its feed cannot split into liquid and vapor there (above the
+    critical pressure of its mixture, about 50 bar by the equation of state): a ThermoError
+    (exit 2) that says so with the numbers, not a division by zero."""
+    text = (CASES / "deethanizer.toml").read_text().replace('pressure.top = "25 bar"', 'pressure.top = "60 bar"')
+    with pytest.raises(ThermoError, match=r"feed at 60.* bar is above the critical pressure of its mixture, [0-9.]+ bar"):
+        simulate(loads_case(text, source_file="deethanizer.toml"))
 
 
 USER_COMPONENT = """

@@ -11,7 +11,8 @@ method misleads.
 * :mod:`.record` -- the audit as plain data for result.json;
 * :mod:`.basis` -- what the shortcut designs for, and its designs (``traystack shortcut``);
 * :mod:`.solution` -- the audit of one solution without further solves (``traystack check``);
-* :mod:`.full` -- the full audit of a case (``traystack audit``).
+* :mod:`.full` -- the full audit of a case (``traystack audit``);
+* :mod:`.ideal_vapor` -- a vapor from an equation of state against ideal-vapor K-values.
 """
 
 from .basis import audit_basis, shortcut_case, shortcut_designs

@@ -18,6 +18,7 @@ from ..shortcut import BinaryDesign, MinimumReflux, MulticomponentDesign
 from .cmo import CMOAudit
 from ..thermo.liquid_split import LiquidSplitCheck
 from .flags import Flag, two_liquids
+from .ideal_vapor import IdealVaporComparison, ideal_vapor_record
 from .record import binary_design_record, cmo_deviation_record, multicomponent_design_record, cmo_record, flag_record, run_record, stage_search_record
 from .search import StageSearch
 from .targets import describe_spec
@@ -197,6 +198,7 @@ class AuditReport:
     case_run: RigorousRun | None = None
     notes: tuple[str, ...] = ()
     shortcut_error: str = ""
+    ideal_vapor: IdealVaporComparison | None = None  # a vapor from an equation of state against an ideal vapor
 
     @cached_property
     def result(self) -> Result:
@@ -235,6 +237,8 @@ def full_audit_record(report: AuditReport) -> dict[str, Any]:
         "cmo": None if cmo is None else cmo_record(cmo),
         "cmo_deviation": None if cmo is None else cmo_deviation_record(cmo),
         "flags": [flag_record(flag) for flag in report.flags],
+        "ideal_vapor": None if report.ideal_vapor is None else ideal_vapor_record(report.ideal_vapor, names,
+                                                                                   report.thresholds),
         "rigorous_solves": report.solves,
         "seconds": report.seconds,
         "notes": list(report.notes),

@@ -4,7 +4,7 @@ the difference it measures stays within its threshold (:mod:`.thresholds`).
 
 Codes: PURITY_SHORTFALL, CMO_DEVIATION, FEED_CONDITION, DUTY_DIFFERENCE, TANGENT_PINCH,
 PINCH_MOVED, REFLUX_UNDER / REFLUX_OVER, STAGES_UNDER / STAGES_OVER, SEARCH_INCOMPLETE,
-SOLVE_FAILED, TWO_LIQUIDS, PREDICTED_PAIRS. Numbers are SI.
+SOLVE_FAILED, TWO_LIQUIDS, PREDICTED_PAIRS (IDEAL_VAPOR_SHIFT: :mod:`.ideal_vapor`). Numbers are SI.
 """
 
 from __future__ import annotations

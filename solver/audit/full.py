@@ -11,7 +11,9 @@ For a case with one feed, a condenser and a partial reboiler (no side draws) :fu
    stage (the product targets as specs) against the shortcut's own reflux for that count;
 4. finds the stage count the rigorous column needs at the shortcut's reflux ratio (integer
    search on N, the distillate rate held, the feed stage moved: :mod:`.search`);
-5. raises the flags of :mod:`.flags` against the thresholds of :mod:`.thresholds`.
+5. raises the flags of :mod:`.flags` against the thresholds of :mod:`.thresholds`;
+6. for a vapor from an equation of state, asks steps 3 and 4 once more with ideal-vapor
+   K-values and flags how far they would move the design (:mod:`.ideal_vapor`).
 
 A binary whose activity model splits the liquid (n-butanol/water) has no monotonic equilibrium
 curve, so no shortcut design; when the case as specified then solves to liquids that split, the
@@ -43,6 +45,7 @@ from .flags import (Flag, by_severity, cmo_deviation, duty_difference, feed_cond
                     pinch_moved_in_column, purity_shortfall, reflux_difference, search_incomplete, solve_failed,
                     stage_difference, tangent_pinch, two_liquids)
 from .findings import AuditBasis, AuditReport, ShortcutReport
+from .ideal_vapor import IdealVaporComparison, ideal_vapor_comparison, ideal_vapor_shift
 from .search import StageSearch, stage_search
 from .solution import run_flags
 from .targets import describe_spec
@@ -103,7 +106,7 @@ def audit_case(
         return _without_shortcut(case, basis, columns, chosen, str(exc), started, exc)
     column = _DesignColumn.of(shortcut)
     solution, at_design = _solve_at_design(columns, column)
-    cmo = reflux_needed = search = shortcut_reflux = None
+    cmo = reflux_needed = search = shortcut_reflux = ideal_vapor = None
     if solution.converged:
         light = case.component_names.index(shortcut.basis.light) if shortcut.basis.light else None
         cmo = cmo_audit(solution, light)
@@ -117,6 +120,8 @@ def audit_case(
             stage_difference(search, column.stages, column.feed_stage, chosen),
             search_incomplete(search, columns.count, max_solves),
         ]
+        ideal_vapor = _ideal_vapor(case, thermo, columns, column, reflux_needed, search, max_solves)
+        flags.append(ideal_vapor_shift(ideal_vapor, chosen))
     else:
         flags = [solve_failed(column.stages, column.feed_stage, column.reflux_ratio, solution.message)]
     case_result = shortcut.basis.case_result
@@ -129,7 +134,7 @@ def audit_case(
         shortcut=shortcut, thresholds=chosen, shortcut_reflux_at_stages=shortcut_reflux, at_design=at_design,
         reflux_needed=reflux_needed, stages_needed=search, cmo=cmo, flags=by_severity(flags), solves=columns.count,
         seconds=time.perf_counter() - started, solution=solution, case_run=case_run,
-        notes=shortcut.basis.notes + tuple(shortcut.design.notes) + tuple(columns.notes),
+        notes=shortcut.basis.notes + tuple(shortcut.design.notes) + tuple(columns.notes), ideal_vapor=ideal_vapor,
     )
 
 
@@ -149,6 +154,17 @@ def _without_shortcut(case: Case, basis: AuditBasis, columns: RigorousColumns, c
         seconds=time.perf_counter() - started, solution=solution, case_run=case_run,
         notes=basis.notes + tuple(columns.notes), shortcut_error=reason,
     )
+
+
+def _ideal_vapor(case: Case, thermo: ThermoPackage, columns: RigorousColumns, column: _DesignColumn,
+                 reflux_needed: RigorousRun, search: StageSearch, budget: int) -> IdealVaporComparison | None:
+    """For a vapor from an equation of state: the design questions once more with ideal-vapor
+    K-values (:mod:`.ideal_vapor`), warm-started from the solutions already found."""
+    if not getattr(thermo, "vapor_dependent", False):
+        return None
+    return ideal_vapor_comparison(case, column.stages, column.feed_stage, column.reflux_ratio, column.distillate_flow,
+                                  column.targets, column.feed_composition, reflux_needed, search, budget,
+                                  seeds=columns.solutions)
 
 
 def _solve_at_design(columns: RigorousColumns, column: _DesignColumn) -> tuple[Result, RigorousRun]:

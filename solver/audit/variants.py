@@ -127,6 +127,17 @@ class RigorousColumns:
     def spent(self) -> bool:
         return self.count >= self.budget
 
+    @property
+    def solutions(self) -> tuple[tuple[int, int, Result], ...]:
+        """(stages, feed stage, result) of every converged solve so far."""
+        return tuple(self._solutions)
+
+    def seed(self, stages: int, feed_stage: int, result: Result) -> None:
+        """Take ``result`` (a converged column of ``stages`` stages, feed on ``feed_stage``,
+        perhaps of another thermo model) as a warm start for later solves; no solve is counted."""
+        if result.converged:
+            self._solutions.append((stages, feed_stage, result))
+
     def _simulate(self, case: Case, start: StageProfile | None) -> Result:
         self.count += 1
         return simulate(case, thermo=self.thermo, start=start)

@@ -26,6 +26,7 @@ __all__ = [
     "basis_rows",
     "cmo_rows",
     "flag_rows",
+    "ideal_vapor_rows",
     "shortcut_rows",
     "shortcut_tables",
     "side_by_side_rows",
@@ -38,6 +39,14 @@ SIDE_BY_SIDE_NOTE = (
     "distillate rate with the stage count searched and the feed stage moved; 'the case' is the case as specified. "
     "Impurity ratio k is the delivered impurity of target k over the specified one (above 1: the target is missed). "
     "'R for exactly its stages' is the shortcut's own reflux ratio for its integer stage count."
+)
+
+#: What the ideal-vapor comparison is.
+IDEAL_VAPOR_NOTE = (
+    "The reflux ratio needed at the shortcut's stage count and the stage count needed at its reflux ratio, both for "
+    "the same product targets, from the equation of state and from ideal-vapor K-values (modified Raoult's law, "
+    "K_i = Psat_i / P, vapor pressures from CoolProp or the handbook library): how far ideal-vapor K-values would "
+    "move the design (flag IDEAL_VAPOR_SHIFT beyond the reflux_difference or stage_difference threshold)."
 )
 
 _NO_FLAGS = "the shortcut and the rigorous column agree within the thresholds"
@@ -190,6 +199,28 @@ def flag_rows(flags: Sequence[Flag]) -> list[list[str]]:
     return [[flag.severity, flag.code, flag.message] for flag in flags]
 
 
+def ideal_vapor_rows(audit: AuditReport) -> tuple[str, list[str], list[list[str]], str] | None:
+    """(title, header, rows, note) of the design questions answered by the equation of state
+    and by ideal-vapor K-values at the same products (the note says why the ideal-vapor model
+    does not apply, if it does not); None when the audit has no such comparison."""
+    c = audit.ideal_vapor
+    if c is None:
+        return None
+    title = f"ideal-vapor K-values beside {c.model}, same products"
+    header = ["", c.model, "ideal vapor", "change"]
+    reflux_change = "-" if c.reflux_shift is None else f"{100 * c.reflux_shift:+.1f} %"
+    stage_change = "-" if c.stage_shift is None else f"{c.stage_shift:+d}"
+    ideal_reflux, ideal_stages = (cell(c.ideal_reflux), cell(c.ideal_stages)) if c.applicable else ("n/a", "n/a")
+    if c.stages_needed is not None and c.stages_needed.stages is not None and not c.stages_needed.complete:
+        ideal_stages = f"at most {ideal_stages} (search incomplete)"
+    rows = [
+        [f"R needed at {c.stages} stages (feed {c.feed_stage})", cell(c.equation_reflux), ideal_reflux, reflux_change],
+        [f"N needed at R = {c.reflux_ratio:.4g}", cell(c.equation_stages), ideal_stages, stage_change],
+    ]
+    note = "" if c.applicable else f"Ideal-vapor K-values do not apply: {c.reason}"
+    return title, header, rows, note
+
+
 def shortcut_tables(shortcut: ShortcutReport, units: DisplayUnits, title: str = "") -> list[Table]:
     """Screen tables of ``traystack shortcut``: the designs and their basis."""
     header, rows = shortcut_rows(shortcut, units)
@@ -215,6 +246,12 @@ def audit_tables(result: Result, units: DisplayUnits) -> list[Table]:
     if audit.cmo is not None:
         header, rows = cmo_rows(audit.cmo, units)
         tables.append(screen_table("CMO audit of the rigorous column at the shortcut's design", header, rows))
+    ideal_vapor = ideal_vapor_rows(audit)
+    if ideal_vapor is not None:
+        title, header, rows, note = ideal_vapor
+        table = screen_table(title, header, rows)
+        table.caption = note or None
+        tables.append(table)
     flag_table = Table(title="audit flags", header_style="bold")
     for column in ("severity", "code", "message"):
         flag_table.add_column(column, overflow="fold")
@@ -255,6 +292,13 @@ def audit_markdown(result: Result, units: DisplayUnits) -> list[str]:
         lines.append("")
     if not audit.applicable:
         return lines + ["## Audit", "", f"Not applicable: {audit.reason}", ""]
+    ideal_vapor = ideal_vapor_rows(audit) if audit.scope == "full" else None
+    if ideal_vapor is not None:
+        title, header, rows, note = ideal_vapor
+        lines += [f"## {title[0].upper()}{title[1:]}", "", IDEAL_VAPOR_NOTE, ""]
+        lines += markdown_table(header, rows, [False, True, True, True]) + [""]
+        if note:
+            lines += [note, ""]
     lines += ["## Audit flags", ""]
     if audit.flags:
         lines += markdown_table(["severity", "code", "message"], flag_rows(audit.flags), [False, False, False])

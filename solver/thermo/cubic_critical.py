@@ -40,8 +40,11 @@ __all__ = [
     "pseudo_critical",
     "critical_points",
     "near_critical",
+    "critical_pressure_note",
     "phase_identification",
 ]
+
+_EQUATION_NAMES = {"peng-robinson": "Peng-Robinson", "soave-redlich-kwong": "Soave-Redlich-Kwong"}
 
 #: Defaults of the trivial-solution test: |Z_L - Z_V| below this and ...
 TRIVIAL_Z_GAP = 1e-6
@@ -238,6 +241,24 @@ def near_critical(parameters: CubicParameters, temperature, pressure, x, *, temp
     above = Pr >= 1.0
     near = above | ((np.abs(Tr - 1.0) < temperature_margin) & (Pr > 1.0 - pressure_margin))
     return NearCriticalCheck(critical, Tr, Pr, above, near)
+
+
+def critical_pressure_note(parameters: CubicParameters, pressure: float, x, what: str) -> str:
+    """One sentence on ``what`` (e.g. "stage 3") at ``pressure`` [Pa] against the critical
+    point of its mixture ``x (c,)`` by :func:`critical_points`: above the critical pressure
+    (liquid and vapor of that composition cannot coexist at the critical temperature or above
+    it, and above the cricondenbar not at all), or how far below it; "" if the critical point
+    is not found."""
+    point = critical_points(parameters, np.atleast_2d(x))
+    Pc, Tc = float(point.pressure[0]), float(point.temperature[0])
+    if not (point.converged[0] and np.isfinite(Pc) and Pc > 0.0):
+        return ""
+    where = "above" if pressure >= Pc else "below"
+    text = (f"{what} at {pressure / 1e5:.4g} bar is {where} the critical pressure of its mixture, {Pc / 1e5:.4g} bar "
+            f"(critical temperature {Tc:.2f} K; Heidemann-Khalil critical point of the {_EQUATION_NAMES.get(parameters.variant, parameters.variant)} equation)")
+    if pressure >= Pc:
+        text += ": a liquid and a vapor of that composition need a lower pressure; lower the column pressure"
+    return text
 
 
 def phase_identification(parameters: CubicParameters, temperature, pressure, x, phase: str = "liquid") -> np.ndarray:

@@ -27,7 +27,7 @@ from ..components import component_info
 from ..errors import CaseError
 from . import activity as activity_models
 from .cubic import CubicParameters, cubic_k_values, cubic_phase, cubic_phase_enthalpy, cubic_stage_properties
-from .cubic_critical import trivial_solution
+from .cubic_critical import critical_pressure_note, trivial_solution
 from .cubic_flash import wilson_k_values
 from .package import KValues, PhaseEnthalpy, StageProperties, ThermoPackage
 from .pure import PureComponents
@@ -231,12 +231,20 @@ class CubicThermoPackage(ThermoPackage):
             return None
         j = int(np.flatnonzero(one_phase)[0])
         P = np.broadcast_to(np.asarray(pressure, dtype=float), T.shape)
-        return (
+        text = (
             f"stage {j + 1} has one phase, not two (the trivial solution of the equation of state): "
             f"Z_liquid = {kv.liquid.Z[j]:.5g}, Z_vapor = {kv.vapor.Z[j]:.5g}, largest |ln K| = "
             f"{check.largest_ln_k[j]:.3g} at {T[j]:.2f} K and {P[j] / 1e5:.4g} bar; the stage is at or above "
             f"the critical point of its mixture ({int(one_phase.sum())} such stage(s))"
         )
+        note = self.critical_pressure_note(P[j], _phase_composition(x)[j], f"stage {j + 1}")
+        return f"{text}; {note}" if note else text
+
+    def critical_pressure_note(self, pressure: float, x, what: str) -> str:
+        """``what`` (a stage, a feed) at ``pressure`` [Pa] against the critical pressure of its
+        mixture ``x (c,)`` by the equation of state, with the numbers (""
+        if the critical point is not found)."""
+        return critical_pressure_note(self.parameters, float(pressure), np.asarray(x, dtype=float), what)
 
 
 def _phase_composition(x) -> np.ndarray:

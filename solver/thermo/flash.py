@@ -323,6 +323,17 @@ def feed_state_by_phase(
     )
 
 
+def _one_phase_feed(thermo, z, pressure: float, temperature: float) -> str:
+    """Why a feed's thermal condition has no meaning: its composition has no two-phase region
+    at ``pressure`` (its bubble and dew points and their enthalpies coincide), with the
+    mixture's critical point where the thermo package gives one."""
+    text = (f"the feed's composition does not split into a liquid and a vapor at {pressure / 1e5:.4g} bar: its bubble "
+            f"and dew points coincide ({temperature:.2f} K), so its thermal condition q is not defined")
+    note = getattr(thermo, "critical_pressure_note", None)
+    detail = note(pressure, z, "the feed") if note is not None else ""
+    return f"{text}; {detail}" if detail else text
+
+
 def feed_state(
     thermo,
     composition,
@@ -349,7 +360,10 @@ def feed_state(
         p_ref = p
     saturated_liquid, _ = thermo.rigorous_enthalpies(bubble_ref, z, z, pressure=p_ref)
     _, saturated_vapor = thermo.rigorous_enthalpies(dew_ref, z, z, pressure=p_ref)
-    q = (float(saturated_vapor[0]) - enthalpy) / (float(saturated_vapor[0]) - float(saturated_liquid[0]))
+    latent = float(saturated_vapor[0]) - float(saturated_liquid[0])
+    if not abs(latent) > 1e-9 * max(abs(float(saturated_vapor[0])), 1.0):
+        raise ThermoError(_one_phase_feed(thermo, z[0], float(p_ref[0]), float(bubble_ref[0])))
+    q = (float(saturated_vapor[0]) - enthalpy) / latent
     return FeedState(
         temperature=float(flash.temperature[0]),
         pressure=float(pressure),

@@ -185,6 +185,18 @@ HARD_CASES: dict[str, str] = {
         ["methane"] + C2_C5[:3], {"methane": 0.03, "ethane": 0.35, "propane": 0.42, "isobutane": 0.20},
         "recovery = { ethane = { distillate = 0.97 }, propane = { bottoms = 0.98 } }", stages=30, feed_stage=12,
         model="peng-robinson", pressure="38 bar", drop="0.7 kPa", condenser="partial"),
+    "c4-splitter-pr": case_text("isobutane/n-butane at 7 bar, 100 stages, Peng-Robinson with the pair's k_ij",
+        ["isobutane", "n-butane"], {"isobutane": 0.4, "n-butane": 0.6},
+        'distillate = { isobutane = 0.97 }\nbottoms = { "n-butane" = 0.98 }', stages=100, feed_stage=50,
+        model="peng-robinson", pressure="7 bar", drop="0.5 kPa",
+        extra='[thermo.interaction.isobutane.n-butane]\nk = -0.0004\nsource = "Knapp et al. 1982, DECHEMA VI (from memory)"'),
+    "lpg-splitter-srk-17bar": case_text("propane/n-butane at 17 bar (reboiler within 25 K of n-butane's critical temperature), SRK",
+        ["propane", "n-butane"], {"propane": 0.5, "n-butane": 0.5},
+        "distillate = { propane = 0.98 }\nrecovery = { propane = { distillate = 0.98 } }", stages=30, feed_stage=15,
+        model="soave-redlich-kwong", pressure="17 bar", drop="0.7 kPa"),
+    "ethane-propane-30bar-pr": case_text("ethane/propane at 30 bar: ethane above its critical temperature below the top",
+        ["ethane", "propane"], {"ethane": 0.4, "propane": 0.6}, "distillate = { ethane = 0.98 }\nbottoms = { propane = 0.99 }",
+        stages=40, feed_stage=18, model="peng-robinson", pressure="30 bar", drop="0.7 kPa"),
     # --- models and specs
     "mw-wilson-high-purity": case_text("methanol/water, Wilson, 99.9 % both ends", MW, {"methanol": 0.5, "water": 0.5},
         "distillate = { methanol = 0.999 }\nbottoms = { water = 0.999 }", stages=40, feed_stage=25, model="wilson"),
@@ -192,4 +204,24 @@ HARD_CASES: dict[str, str] = {
         "reflux_ratio = 4.0\nbottoms = { water = 0.999 }", stages=30, feed_stage=22, model="nrtl", enthalpy="cmo"),
     "mw-duties": case_text("methanol/water specified by reboiler duty and reflux", MW, {"methanol": 0.35, "water": 0.65},
         'reflux_ratio = 1.6\nreboiler_duty = "1000 kW"', stages=20, feed_stage=12, model="nrtl"),
+}
+
+
+#: Pressure columns that have no answer, each refused (an error, or a result marked not
+#: converged) with a message that must name the reason (a regular expression).
+REFUSED_CASES: dict[str, tuple[str, str]] = {
+    "deethanizer-above-critical-pressure-pr": (
+        case_text("deethanizer at 60 bar: above the critical pressure of its feed's mixture (about 50 bar, Peng-Robinson)",
+            ["methane"] + C2_C5, {"methane": 0.01, "ethane": 0.24, "propane": 0.36, "isobutane": 0.12, "n-butane": 0.17,
+            "n-pentane": 0.10}, "recovery = { ethane = { distillate = 0.98 }, propane = { bottoms = 0.99 } }", stages=30,
+            feed_stage=12, model="peng-robinson", pressure="60 bar", drop="0.7 kPa", condenser="partial"),
+        r"above the critical pressure of its mixture, [0-9.]+ bar \(critical temperature [0-9.]+ K",
+    ),
+    "lpg-splitter-above-critical-pressure-pr": (
+        case_text("propane/n-butane at 45 bar: above every critical pressure of the pair (at most about 43 bar)",
+            ["propane", "n-butane"], {"propane": 0.5, "n-butane": 0.5},
+            "distillate = { propane = 0.98 }\nrecovery = { propane = { distillate = 0.98 } }", stages=20, feed_stage=10,
+            model="peng-robinson", pressure="45 bar", drop="0.7 kPa"),
+        r"above the critical pressure of its mixture, [0-9.]+ bar",
+    ),
 }

@@ -4,19 +4,39 @@
 
 from __future__ import annotations
 
+import re
 import sys
 from pathlib import Path
 
 import pytest
 
 sys.path.insert(0, str(Path(__file__).parent))
-from hard_cases import HARD_CASES  # noqa: E402
+from hard_cases import HARD_CASES, REFUSED_CASES  # noqa: E402
 from solver.case import loads_case
 from solver.engine import simulate
+from solver.errors import TraystackError
+
+#: Words in a hard case's title that make it a pressure column (an equation of state for both phases).
+EQUATIONS_OF_STATE = ('liquid = "peng-robinson"', 'liquid = "soave-redlich-kwong"')
 
 
 def test_the_suite_is_large_enough():
     assert len(HARD_CASES) >= 25
+    pressure_columns = [name for name, text in HARD_CASES.items() if any(m in text for m in EQUATIONS_OF_STATE)]
+    assert len(pressure_columns) >= 8, pressure_columns
+
+
+@pytest.mark.parametrize("name", sorted(REFUSED_CASES))
+def test_pressure_column_without_an_answer_is_refused_with_its_reason(name):
+    text, reason = REFUSED_CASES[name]
+    try:
+        result = simulate(loads_case(text, source_file=f"<refused case {name}>"))
+    except TraystackError as exc:
+        message = str(exc)
+    else:
+        assert not result.converged, name
+        message = result.message
+    assert re.search(reason, message), message
 
 
 @pytest.mark.parametrize("name", sorted(HARD_CASES))

@@ -42,6 +42,10 @@ __all__ = ["CACHED_COMMANDS", "COMMANDS", "PLOT_FILES", "build_parser", "main"]
 PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 
 
+#: The commands that solve a network case (the others refuse one with exit 2).
+NETWORK_COMMANDS = ("run",)
+
+
 def _console(quiet: bool = False, stderr: bool = False) -> Console:
     return Console(stderr=stderr, quiet=quiet, highlight=False, soft_wrap=False, width=120)
 
@@ -68,9 +72,12 @@ def _known_components(case, command: str) -> None:
     for name in case.component_names:
         component_info(name, case.component_data)
     if case.network is not None:
-        from .network_graph import refuse_network
+        from .network_graph import check_network, refuse_network
 
-        refuse_network(case, command)
+        if command in NETWORK_COMMANDS:
+            check_network(case)
+        else:
+            refuse_network(case, command)
 
 
 def _at_least_three(text: str) -> int:
@@ -101,6 +108,8 @@ def command_run(args: argparse.Namespace) -> int:
     case_path = Path(args.case)
     case = load_case(case_path)
     _known_components(case, "run")  # a bad case is refused before the engine is imported
+    if case.network is not None:
+        return _run_network(args, case, case_path)
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -140,6 +149,34 @@ def command_run(args: argparse.Namespace) -> int:
     _print_sizing(result, console)
     for text in cautions(result)[:-1]:
         console.print(f"[yellow]caution:[/] {escape(text)}")
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"[dim]Caution: {CAUTION}[/]")
+    if not result.converged:
+        print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
+              "marked converged: false", file=sys.stderr)
+        return 3
+    return 0
+
+
+def _run_network(args: argparse.Namespace, case, case_path: Path) -> int:
+    """``run`` on a network case: result.json (schema traystack-result/2) and the tables per
+    column on screen."""
+    from .network_engine import simulate_network
+    from .network_results import write_network_result_json
+    from .newton import NewtonOptions
+    from .reports import display_units
+    from .reports.network_tables import network_tables
+
+    console = _console(args.quiet or args.json)
+    units = display_units(case.display, args.units)
+    options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
+    result = simulate_network(case, options=options)
+    out = Path(args.out) if args.out else _default_out(case_path, "_out")
+    written = [write_network_result_json(result, out / "result.json")]
+    if args.json:
+        print(result.to_json())
+    for table in network_tables(result, units):
+        console.print(table)
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
     if not result.converged:

@@ -325,3 +325,10 @@ class Case:
     @property
     def component_count(self) -> int:
         return len(self.component_names)
+
+    @property
+    def stage_pressures(self) -> tuple[float, ...]:
+        """Every stage's pressure (Pa): the column's, or every column's of a network in order."""
+        if self.network is None:
+            return self.column.pressures
+        return tuple(p for section in self.network.columns for p in section.column.pressures)

@@ -1,0 +1,276 @@
+"""The default start of a column network, from its feeds and specs alone.
+
+1. Flows by constant molar overflow over the whole network at once: the total material balance
+   and the CMO enthalpy balance of every stage (liquid enthalpy 0, vapor enthalpy one mean
+   latent heat, feeds entering with their vapor fraction ``1 - q``) together with the specs as
+   linear relations among the totals, the condenser and reboiler duties and the connections'
+   free rates form one sparse linear system. A composition or temperature spec, which says
+   nothing linear about the flows, is replaced there by a product rate guessed from the
+   components' volatility order (the product takes the components on its side of the spec's
+   component, and the share of that component the spec implies).
+2. Compositions and temperatures by bubble-point sweeps (Wang & Henke 1966, Hydrocarbon
+   Processing 45(8):155) at those flows over the whole graph: the component balances of all
+   stages of all columns at ``v = S l`` are one sparse linear system per component; the
+   temperatures move to the bubble points of the new liquids.
+3. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
+   balances hold at the start.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .errors import ThermoError
+from .network_mesh import NetworkSystem
+from .thermo.flash import bubble_temperature
+
+__all__ = ["cmo_network_flows", "network_initial_estimate", "network_sweeps"]
+
+_SWEEPS = 40  # at most; the sweeps stop when no temperature moves by 1e-3 K
+
+
+def _volatility_order(system: NetworkSystem) -> np.ndarray:
+    """ln K of each component at the bubble point of all feeds together (mean pressure)."""
+    z = system.total_feed_by_component / system.total_feed_by_component.sum()
+    P = np.array([float(np.mean(system.pressures))])
+    T, _ = bubble_temperature(system.thermo, P, z[None, :])
+    return np.log(system.thermo.k_values(T, P, z[None, :], derivatives=False).K[0])
+
+
+def _guessed_product_rate(system: NetworkSystem, row, ln_K: np.ndarray) -> float:
+    """A product's rate (scaled) from a composition spec: the components on its side of the
+    spec's component (lighter for a vapor slot, heavier for a liquid one) plus the share of the
+    component itself the spec implies."""
+    feed = system.total_feed_by_component
+    i = row.component
+    lighter_side = row.product.phase == "vapor"
+    side = feed[(ln_K > ln_K[i]) if lighter_side else (ln_K < ln_K[i])].sum()
+    if row.kind == "recovery":
+        return float(side + row.value * feed[i])
+    if row.value >= 0.5:
+        return float(side + 0.97 * feed[i])
+    return float(side / (1.0 - row.value))
+
+
+def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(L, V, extras): total flows leaving every stage (scaled) and the extra unknowns (duties
+    in units of the mean latent heat times the scaled flow, rates scaled) by CMO."""
+    N, n = system.N, len(system.extra_names)
+    size = 2 * N + n
+    A = sp.lil_matrix((size, size))
+    b = np.zeros(size)
+    stages = np.arange(N)
+    A[stages, stages] = 1.0
+    A[stages, N + stages] = 1.0
+    vapor_enthalpy = np.ones(N)
+    vapor_enthalpy[system.total_condensers] = 0.0  # the total condenser's vapor slot holds liquid
+    A[N + stages, N + stages] = vapor_enthalpy
+    for (src, dst), weight in zip(system.liquid_edges, system.liquid_weights):
+        A[dst, src] -= weight
+    for (src, dst), weight in zip(system.vapor_edges, system.vapor_weights):
+        A[dst, N + src] -= weight
+        A[N + dst, N + src] -= weight * vapor_enthalpy[src]
+    q = np.array([feed.q for feed in system.feeds])
+    flows = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
+    b[:N] = system.feed_flows.sum(axis=1) - system.side_liquid_draws - system.side_vapor_draws
+    b[N : 2 * N] = np.bincount(system.feed_stage_index, (1.0 - np.clip(q, -1.0, 2.0)) * flows, minlength=N) - system.side_vapor_draws
+    b[N : 2 * N] += system.fixed_duties
+    for k, stage in enumerate(system.extra_duty_stage):
+        if stage >= 0:
+            A[N + stage, 2 * N + k] = -1.0
+    for m, (src, dst) in enumerate(zip(system.transfer_source, system.transfer_destination)):
+        k = system.transfer_extra[m]
+        liquid = system.transfer_liquid[m]
+        terms = [(src, 1.0), (dst, -1.0)] + ([] if liquid else [(N + src, 1.0), (N + dst, -1.0)])
+        for row, sign in terms:
+            if k >= 0:
+                A[row, 2 * N + k] += sign
+            else:
+                b[row] -= sign * system.transfer_fixed[m]
+    fixed = _fixed_by_specs(system)
+    for r, row in enumerate(system.specs + system.internal_rows):
+        _cmo_spec_row(system, A, b, 2 * N + r, row, ln_K, fixed)
+    for r, (condenser, reboiler, _) in enumerate(system.heat_links, start=2 * N + len(system.specs) + len(system.internal_rows)):
+        A[r, 2 * N + system.extra_index(condenser)] = 1.0
+        A[r, 2 * N + system.extra_index(reboiler)] = 1.0
+    solution = spla.spsolve(A.tocsc(), b)
+    if not np.all(np.isfinite(solution)):
+        solution = np.linalg.lstsq(A.toarray(), b, rcond=None)[0]
+    floor = 1e-3
+    L = np.maximum(solution[:N], floor)
+    V = np.maximum(solution[N : 2 * N], floor)
+    extras = solution[2 * N :].copy()
+    rates = system.extra_duty_stage < 0
+    extras[rates] = np.maximum(extras[rates], floor)
+    return L, V, extras
+
+
+def _column_of(system: NetworkSystem, stage: int) -> str:
+    return system.graph.stage_nodes[stage][0]
+
+
+def _fixed_by_specs(system: NetworkSystem) -> dict[str, set[str]]:
+    """Column -> what its linear specs fix: "rate" (a product rate of a distillate or bottoms),
+    "ratio" (a reflux or boilup ratio, a condenser or reboiler duty)."""
+    fixed: dict[str, set[str]] = {section.name: set() for section in system.graph.network.columns}
+    for row in system.specs:
+        if row.kind == "product_flow" and row.product.rate is None:
+            fixed[_column_of(system, row.product.stage)].add("rate")
+        elif row.kind in ("reflux_ratio", "boilup_ratio"):
+            fixed[_column_of(system, row.stage)].add("ratio")
+        elif row.kind == "duty" and row.extra.endswith((".condenser", ".reboiler")):
+            fixed[row.extra.rsplit(".", 1)[0]].add("ratio")
+    return fixed
+
+
+def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[str, set[str]]) -> None:
+    """A spec as a linear relation among the CMO unknowns (L: 0.., V: N.., extras: 2N..). A
+    composition or temperature spec becomes, on its column, a guessed product rate if no spec
+    fixes one, else a reflux ratio of 2 (a boilup ratio of 2 without a condenser)."""
+    N = system.N
+    kind = row.kind
+    if kind in ("mole_fraction", "recovery", "stage_temperature"):
+        stage = row.stage if kind == "stage_temperature" else row.product.stage
+        column = _column_of(system, stage)
+        if "rate" in fixed[column]:
+            fixed[column].add("ratio")
+            _ratio_of_two(system, A, r, column)
+            return
+        fixed[column].add("rate")
+        if kind == "stage_temperature" or row.product.rate is not None:
+            _half_the_feed(system, A, b, r, column)
+            return
+    if kind in ("mole_fraction", "recovery", "product_flow"):
+        p = row.product
+        rate = row.value / system.flow_scale if kind == "product_flow" else _guessed_product_rate(system, row, ln_K)
+        A[r, (p.stage if p.phase == "liquid" else N + p.stage)] = p.share
+        b[r] = rate
+    elif kind in ("reflux_ratio", "boilup_ratio"):
+        g, share = row.stage, row.product.share
+        own, other = (g, N + g) if kind == "reflux_ratio" else (N + g, g)
+        A[r, own] = 1.0
+        A[r, other] = -row.value * share
+    elif kind == "duty":
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        b[r] = row.value / (system.flow_scale * system.energy_scale)
+    elif kind == "connection_flow":
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        b[r] = row.value / system.flow_scale
+    elif kind == "connection_fraction":
+        g, liquid = row.source_stage, row.phase == "liquid"
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        A[r, g if liquid else N + g] -= row.value
+        for m in np.flatnonzero((system.transfer_source == g) & (system.transfer_liquid == liquid)):
+            k = system.transfer_extra[m]
+            if k >= 0:
+                A[r, 2 * N + k] -= row.value
+            else:
+                b[r] += row.value * system.transfer_fixed[m]
+        b[r] += row.value * (system.side_liquid_draws[g] if liquid else system.side_vapor_draws[g])
+    elif kind == "return_temperature":
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0  # no duty to start with
+    else:
+        raise ValueError(f"no start relation for spec kind {kind!r}")
+
+
+def _half_the_feed(system: NetworkSystem, A, b, r: int, column: str) -> None:
+    """Row ``r``: the column's overhead product (else its bottoms) takes half the network's feed."""
+    N, graph = system.N, system.graph
+    top = graph.index[(column, 1)]
+    bottom = top + graph.network.section(column).column.stages - 1
+    if graph.vapor_product_share[top] > 0:
+        A[r, N + top] = graph.vapor_product_share[top]
+    else:
+        A[r, bottom] = graph.liquid_product_share[bottom]
+    b[r] = 0.5
+
+
+def _ratio_of_two(system: NetworkSystem, A, r: int, column: str) -> None:
+    """Row ``r``: a reflux ratio of 2 on ``column`` (a boilup ratio of 2 without a condenser)."""
+    N, graph = system.N, system.graph
+    top = graph.index[(column, 1)]
+    bottom = top + graph.network.section(column).column.stages - 1
+    if graph.roles[top] != "tray":
+        A[r, top], A[r, N + top] = 1.0, -2.0 * graph.vapor_product_share[top]
+    else:
+        A[r, N + bottom], A[r, bottom] = 1.0, -2.0 * graph.liquid_product_share[bottom]
+
+
+def _balance_matrix(system: NetworkSystem, L, V, U, W, rates, S) -> sp.csc_matrix:
+    """The component balances of every component at fixed totals with ``v = S l``, one
+    block-diagonal sparse matrix in the liquid component flows (component-major)."""
+    N, c = system.N, system.c
+    offsets = (np.arange(c) * N)[:, None]
+    diagonal = (1.0 + U / L)[:, None] + S * (1.0 + W / V)[:, None]
+    rows = [np.broadcast_to(offsets + np.arange(N)[None, :], (c, N)).ravel()]
+    cols = [rows[0]]
+    vals = [diagonal.T.ravel()]
+    le, lw = system.liquid_edges, system.liquid_weights
+    ve, vw = system.vapor_edges, system.vapor_weights
+    src, dst, liquid = system.transfer_source, system.transfer_destination, system.transfer_liquid
+    transfer_factor = np.where(liquid[:, None], (rates / L[src])[:, None], (rates / V[src])[:, None] * S[src])
+    for sources, destinations, factor in (
+        (le[:, 0], le[:, 1], np.broadcast_to(lw[:, None], (len(le), c))),
+        (ve[:, 0], ve[:, 1], vw[:, None] * S[ve[:, 0]]),
+        (src, dst, transfer_factor),
+    ):
+        rows.append((offsets + destinations[None, :]).ravel())
+        cols.append((offsets + sources[None, :]).ravel())
+        vals.append(-np.asarray(factor).T.ravel())
+    return sp.csc_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(N * c, N * c))
+
+
+def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = _SWEEPS):
+    """Bubble-point sweeps at fixed flows: (T, x, y)."""
+    thermo, N, c = system.thermo, system.N, system.c
+    rates = system.transfer_rates(extras)
+    U, W = system.draws(rates)
+    rhs = system.feed_flows.T.ravel()
+    y = None
+    tops = system.total_condensers
+    for _ in range(max_sweeps):
+        K = thermo.k_values(T, system.pressures, x, derivatives=False, y=y).K
+        S = K * (V / L)[:, None]
+        S[tops] = (V[tops] / L[tops])[:, None]
+        solution = spla.spsolve(_balance_matrix(system, L, V, U, W, rates, S), rhs)
+        l = np.maximum(solution.reshape(c, N).T, 1e-30)
+        x = l / l.sum(axis=1, keepdims=True)
+        try:
+            T_new, y_new = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60, vapor_guess=y)
+        except ThermoError:
+            break
+        moved = float(np.max(np.abs(T_new - T)))
+        T, y = T_new, y_new
+        if moved < 1e-3:
+            break
+    if y is None:
+        y = thermo.k_values(T, system.pressures, x, derivatives=False).K * x
+        y = y / y.sum(axis=1, keepdims=True)
+    return T, x, y
+
+
+def network_initial_estimate(system: NetworkSystem) -> np.ndarray:
+    """The default start of the network (the module docstring's steps) as scaled unknowns."""
+    ln_K = _volatility_order(system)
+    L, V, extras = cmo_network_flows(system, ln_K)
+    z = system.total_feed_by_component / system.total_feed_by_component.sum()
+    x = np.tile(z, (system.N, 1))
+    T, _ = bubble_temperature(system.thermo, system.pressures, x)
+    T, x, y = network_sweeps(system, L, V, extras, T, x)
+    y = y.copy()
+    tops = system.total_condensers
+    y[tops] = x[tops]
+    T = T.copy()
+    fixed = ~np.isnan(system.reflux_temperature)
+    T[tops] = np.where(fixed, system.reflux_temperature, T[tops] - system.reflux_shift)
+    X = system.pack(T, L[:, None] * x, V[:, None] * y, extras)
+    # condenser and reboiler duties that no spec fixes: their enthalpy balances met at the start
+    set_by_spec = {row.extra for row in system.specs if row.kind == "duty"}
+    energy_rows = np.arange(system.N) * system.width + 2 * system.c
+    residuals = system.evaluate(X, jacobian=False).residuals[energy_rows]
+    for k, name in enumerate(system.extra_names):
+        if name.endswith((".condenser", ".reboiler")) and name not in set_by_spec:
+            X[system.stage_size + k] += residuals[system.extra_duty_stage[k]]
+    return X

@@ -27,7 +27,7 @@ from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
 from .thermo.package import ThermoPackage
 
-__all__ = ["NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
+__all__ = ["FIRST_START_ITERATIONS", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
 
 NETWORK_POST_CHECK_TOLERANCE = 1e-7
 _VANISHING_FLOW = 1e-6  # of the total feed
@@ -42,17 +42,48 @@ def build_network_system(case: Case, thermo: ThermoPackage | None = None) -> Net
     return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names)
 
 
+#: Newton iterations the first start gets before the second is tried (the first is continued
+#: afterwards with the full budget if the second fails too).
+FIRST_START_ITERATIONS = 20
+
+
 def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None,
                      start: np.ndarray | None = None) -> NetworkResult:
     """Solve the network of ``case`` (or a single-column case as a network of one) from the
     default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
-    ``converged`` says whether it may be used."""
+    ``converged`` says whether it may be used.
+
+    The chain without ``start``: Newton from the network start with its energy passes
+    (:func:`solver.network_start.network_initial_estimate`) for at most
+    :data:`FIRST_START_ITERATIONS`; then from the start of CMO flows alone ("second start");
+    then the first again, continued with the full budget."""
     system = build_network_system(case, thermo)
-    newton = solve_system(system, network_initial_estimate(system) if start is None else start, options or NewtonOptions())
-    full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
-    strategy = {"rung": ("newton" if full_steps else "damped newton") if newton.converged else None,
-                "newton_iterations": newton.iterations, "chain": "damped Newton (line search, dogleg) from the network's default start"}
+    options = options or NewtonOptions()
+    if start is not None:
+        newton = solve_system(system, start, options)
+        return _judged(network_result(case, system, newton, _record(newton, "newton")), system)
+    first_budget = dataclasses.replace(options, max_iterations=min(options.max_iterations, FIRST_START_ITERATIONS))
+    newton = solve_system(system, network_initial_estimate(system), first_budget)
+    strategy = _record(newton, "newton")
+    if not newton.converged:
+        second = solve_system(system, network_initial_estimate(system, energy_passes=0), options)
+        strategy["second_start"] = {"converged": bool(second.converged), "newton_iterations": second.iterations}
+        if second.converged:
+            newton, strategy["rung"] = second, "second start"
+        elif options.max_iterations > first_budget.max_iterations:
+            continued = solve_system(system, newton.X, dataclasses.replace(options, max_iterations=options.max_iterations - newton.iterations))
+            strategy["continued"] = {"converged": bool(continued.converged), "newton_iterations": continued.iterations}
+            newton = continued
+            if continued.converged:
+                strategy["rung"] = "continued"
+    strategy["chain"] = ("damped Newton (line search, dogleg) from the network start with energy passes for "
+                         f"{FIRST_START_ITERATIONS} iterations; then from the CMO start; then the first continued")
     return _judged(network_result(case, system, newton, strategy), system)
+
+
+def _record(newton: NewtonResult, name: str) -> dict[str, Any]:
+    full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
+    return {"rung": ((name if full_steps else f"damped {name}") if newton.converged else None), "newton_iterations": newton.iterations}
 
 
 def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, strategy: dict[str, Any]) -> NetworkResult:

@@ -12,7 +12,13 @@
    Processing 45(8):155) at those flows over the whole graph: the component balances of all
    stages of all columns at ``v = S l`` are one sparse linear system per component; the
    temperatures move to the bubble points of the new liquids.
-3. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
+3. Twice more: the flows from the same balances with the stages' own enthalpies at the sweeps'
+   profile (the energy-balance step of the bubble-point method; a return temperature's duty
+   from its stream's enthalpy change), then the sweeps again.
+4. Each product rate guessed for a composition spec is moved (secant method, each on its own
+   spec) until the sweeps' profile meets the spec, as the single-column start moves its
+   overhead rate.
+5. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
    balances hold at the start.
 """
 
@@ -29,6 +35,8 @@ from .thermo.flash import bubble_temperature
 __all__ = ["cmo_network_flows", "network_initial_estimate", "network_sweeps"]
 
 _SWEEPS = 40  # at most; the sweeps stop when no temperature moves by 1e-3 K
+_ENERGY_PASSES = 2  # flows from the stages' own enthalpies, then the sweeps again
+_SPEC_ROUNDS = 8  # at most, of moving guessed product rates to meet composition specs
 
 
 def _volatility_order(system: NetworkSystem) -> np.ndarray:
@@ -54,44 +62,58 @@ def _guessed_product_rate(system: NetworkSystem, row, ln_K: np.ndarray) -> float
     return float(side / (1.0 - row.value))
 
 
-def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """(L, V, extras): total flows leaving every stage (scaled) and the extra unknowns (duties
-    in units of the mean latent heat times the scaled flow, rates scaled) by CMO."""
+def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, rates: dict | None = None):
+    """(L, V, extras, guessed): total flows leaving every stage (scaled), the extra unknowns
+    (duties scaled like the system's, rates scaled) and the product rates guessed for
+    composition specs (spec index -> scaled rate; ``rates`` gives them instead) from the
+    material and enthalpy balances of every stage with the specs. Without ``enthalpies`` by CMO (liquid 0, vapor one mean latent heat);
+    with ``(h_L, h_V, return_differences)`` (stage enthalpies over the energy scale, and for each
+    return-temperature row the enthalpy change of its stream, by the duty's name) by those
+    enthalpies, a step of the bubble-point method (Wang & Henke 1966)."""
     N, n = system.N, len(system.extra_names)
     size = 2 * N + n
     A = sp.lil_matrix((size, size))
     b = np.zeros(size)
     stages = np.arange(N)
+    if enthalpies is None:
+        h_L, h_V = np.zeros(N), np.ones(N)
+        h_V[system.total_condensers] = 0.0  # the total condenser's vapor slot holds liquid
+        q = np.array([feed.q for feed in system.feeds])
+        flows = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
+        feed_h = np.bincount(system.feed_stage_index, (1.0 - np.clip(q, -1.0, 2.0)) * flows, minlength=N)
+        differences = {}
+    else:
+        h_L, h_V, differences = enthalpies
+        feed_h = system.feed_enthalpy
     A[stages, stages] = 1.0
     A[stages, N + stages] = 1.0
-    vapor_enthalpy = np.ones(N)
-    vapor_enthalpy[system.total_condensers] = 0.0  # the total condenser's vapor slot holds liquid
-    A[N + stages, N + stages] = vapor_enthalpy
+    A[N + stages, stages] = h_L
+    A[N + stages, N + stages] = h_V
     for (src, dst), weight in zip(system.liquid_edges, system.liquid_weights):
         A[dst, src] -= weight
+        A[N + dst, src] -= weight * h_L[src]
     for (src, dst), weight in zip(system.vapor_edges, system.vapor_weights):
         A[dst, N + src] -= weight
-        A[N + dst, N + src] -= weight * vapor_enthalpy[src]
-    q = np.array([feed.q for feed in system.feeds])
-    flows = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
+        A[N + dst, N + src] -= weight * h_V[src]
     b[:N] = system.feed_flows.sum(axis=1) - system.side_liquid_draws - system.side_vapor_draws
-    b[N : 2 * N] = np.bincount(system.feed_stage_index, (1.0 - np.clip(q, -1.0, 2.0)) * flows, minlength=N) - system.side_vapor_draws
-    b[N : 2 * N] += system.fixed_duties
+    b[N : 2 * N] = feed_h + system.fixed_duties - system.side_liquid_draws * h_L - system.side_vapor_draws * h_V
     for k, stage in enumerate(system.extra_duty_stage):
         if stage >= 0:
             A[N + stage, 2 * N + k] = -1.0
     for m, (src, dst) in enumerate(zip(system.transfer_source, system.transfer_destination)):
         k = system.transfer_extra[m]
-        liquid = system.transfer_liquid[m]
-        terms = [(src, 1.0), (dst, -1.0)] + ([] if liquid else [(N + src, 1.0), (N + dst, -1.0)])
-        for row, sign in terms:
+        h = h_L[src] if system.transfer_liquid[m] else h_V[src]
+        for row, factor in ((src, 1.0), (dst, -1.0), (N + src, h), (N + dst, -h)):
             if k >= 0:
-                A[row, 2 * N + k] += sign
+                A[row, 2 * N + k] += factor
             else:
-                b[row] -= sign * system.transfer_fixed[m]
+                b[row] -= factor * system.transfer_fixed[m]
     fixed = _fixed_by_specs(system)
+    guessed: dict[int, float] = {}
     for r, row in enumerate(system.specs + system.internal_rows):
-        _cmo_spec_row(system, A, b, 2 * N + r, row, ln_K, fixed)
+        rate = _cmo_spec_row(system, A, b, 2 * N + r, row, ln_K, fixed, differences, (rates or {}).get(r))
+        if rate is not None:
+            guessed[r] = rate
     for r, (condenser, reboiler, _) in enumerate(system.heat_links, start=2 * N + len(system.specs) + len(system.internal_rows)):
         A[r, 2 * N + system.extra_index(condenser)] = 1.0
         A[r, 2 * N + system.extra_index(reboiler)] = 1.0
@@ -102,9 +124,9 @@ def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray) -> tuple[np.ndarr
     L = np.maximum(solution[:N], floor)
     V = np.maximum(solution[N : 2 * N], floor)
     extras = solution[2 * N :].copy()
-    rates = system.extra_duty_stage < 0
-    extras[rates] = np.maximum(extras[rates], floor)
-    return L, V, extras
+    free_rates = system.extra_duty_stage < 0
+    extras[free_rates] = np.maximum(extras[free_rates], floor)
+    return L, V, extras, guessed
 
 
 def _column_of(system: NetworkSystem, stage: int) -> str:
@@ -125,10 +147,12 @@ def _fixed_by_specs(system: NetworkSystem) -> dict[str, set[str]]:
     return fixed
 
 
-def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[str, set[str]]) -> None:
+def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[str, set[str]], differences,
+                  rate: float | None) -> float | None:
     """A spec as a linear relation among the CMO unknowns (L: 0.., V: N.., extras: 2N..). A
     composition or temperature spec becomes, on its column, a guessed product rate if no spec
-    fixes one, else a reflux ratio of 2 (a boilup ratio of 2 without a condenser)."""
+    fixes one (``rate``, or one from the volatility order; returned), else a reflux ratio of 2
+    (a boilup ratio of 2 without a condenser)."""
     N = system.N
     kind = row.kind
     if kind in ("mole_fraction", "recovery", "stage_temperature"):
@@ -144,9 +168,10 @@ def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[st
             return
     if kind in ("mole_fraction", "recovery", "product_flow"):
         p = row.product
-        rate = row.value / system.flow_scale if kind == "product_flow" else _guessed_product_rate(system, row, ln_K)
+        guess = None if kind == "product_flow" else (rate if rate is not None else _guessed_product_rate(system, row, ln_K))
         A[r, (p.stage if p.phase == "liquid" else N + p.stage)] = p.share
-        b[r] = rate
+        b[r] = row.value / system.flow_scale if guess is None else guess
+        return guess
     elif kind in ("reflux_ratio", "boilup_ratio"):
         g, share = row.stage, row.product.share
         own, other = (g, N + g) if kind == "reflux_ratio" else (N + g, g)
@@ -170,9 +195,21 @@ def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[st
                 b[r] += row.value * system.transfer_fixed[m]
         b[r] += row.value * (system.side_liquid_draws[g] if liquid else system.side_vapor_draws[g])
     elif kind == "return_temperature":
-        A[r, 2 * N + system.extra_index(row.extra)] = 1.0  # no duty to start with
+        # duty = flow of the stream x its enthalpy change (none known yet: no duty)
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        difference = differences.get(row.extra, 0.0)
+        stream = system.connections[row.extra.rsplit(".", 1)[0]]
+        if stream.transfer is not None:
+            k = system.transfer_extra[stream.transfer]
+            if k >= 0:
+                A[r, 2 * N + k] = -difference
+            else:
+                b[r] = difference * system.transfer_fixed[stream.transfer]
+        else:
+            A[r, stream.source if stream.phase == "liquid" else N + stream.source] = -difference * stream.weight
     else:
         raise ValueError(f"no start relation for spec kind {kind!r}")
+    return None
 
 
 def _half_the_feed(system: NetworkSystem, A, b, r: int, column: str) -> None:
@@ -251,14 +288,76 @@ def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = 
     return T, x, y
 
 
-def network_initial_estimate(system: NetworkSystem) -> np.ndarray:
+def _stage_enthalpies(system: NetworkSystem, T: np.ndarray, x: np.ndarray, y: np.ndarray):
+    """(h_L, h_V, return differences) over the energy scale at a sweep's profile, for
+    :func:`cmo_network_flows`."""
+    thermo, P, scale = system.thermo, system.pressures, system.energy_scale
+    h_L = thermo.liquid_enthalpy(T, x, pressure=P).molar
+    h_V = thermo.vapor_enthalpy(T, y, pressure=P).molar.copy()
+    tops = system.total_condensers
+    if len(tops):
+        h_V[tops] = thermo.liquid_enthalpy(T[tops], x[tops], pressure=P[tops]).molar
+    differences = {}
+    for row in system.specs + system.internal_rows:
+        if row.kind == "return_temperature":
+            stream = system.connections[row.extra.rsplit(".", 1)[0]]
+            g, liquid = stream.source, stream.phase == "liquid"
+            enthalpy = thermo.liquid_enthalpy if liquid else thermo.vapor_enthalpy
+            at_return = enthalpy(np.array([row.value]), (x if liquid else y)[g][None, :], pressure=P[g : g + 1]).molar[0]
+            differences[row.extra] = (at_return - (h_L if liquid else h_V)[g]) / scale
+    return h_L / scale, h_V / scale, differences
+
+
+def _profile_spec_error(system: NetworkSystem, row, L, V, x, y) -> float:
+    """How far a composition spec is from being met by a sweep's profile."""
+    p, i = row.product, row.component
+    liquid = p.phase == "liquid" or p.stage in system.total_condensers
+    composition = (x if liquid else y)[p.stage]
+    if row.kind == "mole_fraction":
+        return float(composition[i] - row.value)
+    flow = p.share * (L if p.phase == "liquid" else V)[p.stage]
+    return float(flow * composition[i] / system.total_feed_by_component[i] - row.value)
+
+
+def _meet_composition_specs(system: NetworkSystem, ln_K, guessed: dict[int, float], state, rounds: int = _SPEC_ROUNDS):
+    """Move each product rate guessed for a composition spec by the secant method (each on its
+    own spec) until the sweeps' profile meets the specs to 1e-4, or ``rounds`` are spent."""
+    L, V, extras, T, x, y = state
+    rows = {r: (system.specs + system.internal_rows)[r] for r in guessed}
+    errors = {r: _profile_spec_error(system, rows[r], L, V, x, y) for r in guessed}
+    previous: dict[int, tuple[float, float]] = {}
+    rates = dict(guessed)
+    for _ in range(rounds):
+        if max(abs(e) for e in errors.values()) < 1e-4:
+            break
+        for r, error in errors.items():
+            rate = rates[r]
+            if r in previous and previous[r][1] != error:
+                old_rate, old_error = previous[r]
+                new = rate - error * (rate - old_rate) / (error - old_error)
+            else:
+                new = rate * (0.98 if (error < 0) == (rows[r].product.phase == "vapor") else 1.02)
+            previous[r] = (rate, error)
+            rates[r] = float(np.clip(new, 0.5 * rate, 1.5 * rate))
+        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, T, x, y), rates)
+        T, x, y = network_sweeps(system, L, V, extras, T, x)
+        errors = {r: _profile_spec_error(system, rows[r], L, V, x, y) for r in guessed}
+    return L, V, extras, T, x, y
+
+
+def network_initial_estimate(system: NetworkSystem, energy_passes: int = _ENERGY_PASSES) -> np.ndarray:
     """The default start of the network (the module docstring's steps) as scaled unknowns."""
     ln_K = _volatility_order(system)
-    L, V, extras = cmo_network_flows(system, ln_K)
+    L, V, extras, guessed = cmo_network_flows(system, ln_K)
     z = system.total_feed_by_component / system.total_feed_by_component.sum()
     x = np.tile(z, (system.N, 1))
     T, _ = bubble_temperature(system.thermo, system.pressures, x)
     T, x, y = network_sweeps(system, L, V, extras, T, x)
+    for _ in range(energy_passes):
+        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, T, x, y), guessed)
+        T, x, y = network_sweeps(system, L, V, extras, T, x)
+    if guessed:
+        L, V, extras, T, x, y = _meet_composition_specs(system, ln_K, guessed, (L, V, extras, T, x, y))
     y = y.copy()
     tops = system.total_condensers
     y[tops] = x[tops]

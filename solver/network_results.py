@@ -67,6 +67,7 @@ class NetworkResult:
     enthalpy_model: str = "rigorous"
     post_check: Mapping[str, float] = field(default_factory=dict)
     strategy: Mapping[str, Any] = field(default_factory=dict)
+    extra: Mapping[str, Any] = field(default_factory=dict)  # "audit": findings attached downstream (each with as_json)
 
     @property
     def stage_count(self) -> int:
@@ -142,6 +143,7 @@ class NetworkResult:
             "post_check": dict(self.post_check),
             "thermo": self.thermo,
             "iteration_log": list(self.iteration_log),
+            **{key: value.as_json() for key, value in self.extra.items()},
         })
 
     def to_json(self) -> str:

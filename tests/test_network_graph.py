@@ -142,6 +142,7 @@ def test_run_solves_a_network_and_writes_schema_2(capsys, tmp_path):
     assert abs(data["products"]["stripper.bottoms"]["flow"] - 30 / 3.6) < 1e-9  # the spec "30 kmol/h"
     assert set(data["connections"]) == {"to-stripper", "stripper-vapor", "pumparound"}
     assert data["duties"]["pumparound"] == -0.5e6
+    assert (tmp_path / "out" / "network.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # the picture of the network
 
 
 def test_run_reports_a_network_spec_mismatch_with_exit_2(capsys, tmp_path):
@@ -171,7 +172,7 @@ def test_a_spec_on_a_fixed_connection_is_two_specs(spec, parts):
         assert part in str(caught.value)
 
 
-@pytest.mark.parametrize("command", ["shortcut", "audit", "sweep"])
+@pytest.mark.parametrize("command", ["shortcut", "sweep", "size"])
 def test_every_solving_command_refuses_a_network(command, capsys, tmp_path):
     extra = ["--vary", "feeds.0.flow=90:110:2"] if command == "sweep" else []
     assert main([command, str(EXAMPLE), *extra]) == 2

@@ -109,7 +109,11 @@ def command_run(args: argparse.Namespace) -> int:
     case = load_case(case_path)
     _known_components(case, "run")  # a bad case is refused before the engine is imported
     if case.network is not None:
-        return _run_network(args, case, case_path)
+        from .network_commands import run_network
+
+        console = _console(args.quiet or args.json)
+        out = Path(args.out) if args.out else _default_out(case_path, "_out")
+        return _finish_run(console, out, *run_network(args, case, out, console))
     from .newton import NewtonOptions
     from .plots import write_all
     from .reports import cautions, display_units, summary_tables, write_summary
@@ -149,40 +153,12 @@ def command_run(args: argparse.Namespace) -> int:
     _print_sizing(result, console)
     for text in cautions(result)[:-1]:
         console.print(f"[yellow]caution:[/] {escape(text)}")
-    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
-    if not result.converged:
-        print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
-              "marked converged: false", file=sys.stderr)
-        return 3
-    return 0
+    return _finish_run(console, out, written, result)
 
 
-def _run_network(args: argparse.Namespace, case, case_path: Path) -> int:
-    """``run`` on a network case: result.json (schema traystack-result/2), the picture of the
-    network (network.png, when converged) and the tables per column on screen."""
-    from .network_engine import simulate_network
-    from .network_results import write_network_result_json
-    from .newton import NewtonOptions
-    from .reports import display_units
-    from .reports.network_tables import network_tables
-
-    console = _console(args.quiet or args.json)
-    units = display_units(case.display, args.units)
-    options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
-    result = simulate_network(case, options=options)
-    out = Path(args.out) if args.out else _default_out(case_path, "_out")
-    written = [write_network_result_json(result, out / "result.json")]
-    if result.converged:
-        from .network_plot import network_figure
-
-        written.append(network_figure(result, out / "network.png"))
-    else:
-        (out / "network.png").unlink(missing_ok=True)
-    if args.json:
-        print(result.to_json())
-    for table in network_tables(result, units):
-        console.print(table)
+def _finish_run(console: Console, out: Path, written: list[Path], result) -> int:
+    """The last lines of a run: the files written, the caution, and exit 3 (with the message on
+    stderr) when the result did not converge."""
     console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
     console.print(f"[dim]Caution: {CAUTION}[/]")
     if not result.converged:
@@ -277,7 +253,11 @@ def command_audit(args: argparse.Namespace) -> int:
     case = load_case(case_path)
     _known_components(case, "audit")  # a bad case is refused before the engine is imported
     if case.network is not None:
-        return _audit_network(args, case, case_path)
+        from .network_commands import audit_network
+
+        console = _console(args.quiet)
+        out = Path(args.out) if args.out else _default_out(case_path, "_audit")
+        return _finish_run(console, out, *audit_network(args, case, out, console))
     from .audit import MAX_SOLVES, audit_case
     from .plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from .reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary
@@ -328,46 +308,6 @@ def command_audit(args: argparse.Namespace) -> int:
               f"to {out / 'result.json'} marked converged: false", file=sys.stderr)
         return 3
     return _fail_on(args.fail_on, report.flags + _sizing_flags(result), "audit")
-
-
-def _audit_network(args: argparse.Namespace, case, case_path: Path) -> int:
-    """``audit`` on a network case: the rigorous solution's vapor beside Underwood's minimum
-    vapor of the Petlyuk arrangement and of the direct and indirect sequences (one feed, three
-    or more components); result.json (schema traystack-result/2) with its ``audit`` section."""
-    import dataclasses
-
-    from .audit.network_vmin import network_vmin_audit
-    from .network_engine import simulate_network
-    from .network_results import write_network_result_json
-    from .reports import display_units
-    from .reports.display import screen_table
-    from .thermo.package import ThermoPackage
-
-    console = _console(args.quiet)
-    units = display_units(case.display, args.units)
-    thermo = ThermoPackage.from_case(case)
-    result = simulate_network(case, thermo=thermo)
-    out = Path(args.out) if args.out else _default_out(case_path, "_audit")
-    if result.converged:
-        audit = network_vmin_audit(case, result, thermo)
-        result = dataclasses.replace(result, extra={"audit": audit})
-        rows = [
-            ("Petlyuk minimum vapor (Underwood)", f"{units.F(audit.petlyuk_minimum_vapor):.5g} {units.flow}"),
-            ("Petlyuk minimum boilup (Underwood)", f"{units.F(audit.petlyuk_minimum_boilup):.5g} {units.flow}"),
-            ("direct sequence minimum vapor", f"{units.F(audit.direct_sequence_minimum_vapor):.5g} {units.flow}"),
-            ("indirect sequence minimum vapor", f"{units.F(audit.indirect_sequence_minimum_vapor):.5g} {units.flow}"),
-            ("saving claimed by the short method", f"{100 * audit.claimed_saving:.1f} %"),
-            ("rigorous boilup (all reboilers)", f"{units.F(audit.rigorous_boilup):.5g} {units.flow}"),
-            ("rigorous boilup / Petlyuk minimum", f"{audit.boilup_over_minimum:.3f}"),
-        ]
-        console.print(screen_table(f"{result.title}: rigorous vapor beside the minimum vapor", ("quantity", "value"), rows))
-    written = write_network_result_json(result, out / "result.json")
-    console.print(f"files written to {out}{os.sep}: {written.name}")
-    console.print(f"[dim]Caution: {CAUTION}[/]")
-    if not result.converged:
-        print(f"traystack: not converged: {result.message}", file=sys.stderr)
-        return 3
-    return 0
 
 
 def add_audit_command(sub) -> None:

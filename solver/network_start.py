@@ -28,7 +28,7 @@ import numpy as np
 import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 
-from .errors import ThermoError
+from .initial import bubble_point_step
 from .network_mesh import NetworkSystem
 from .thermo.flash import bubble_temperature
 
@@ -274,12 +274,10 @@ def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = 
         solution = spla.spsolve(_balance_matrix(system, L, V, U, W, rates, S), rhs)
         l = np.maximum(solution.reshape(c, N).T, 1e-30)
         x = l / l.sum(axis=1, keepdims=True)
-        try:
-            T_new, y_new = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60, vapor_guess=y)
-        except ThermoError:
+        step = bubble_point_step(thermo, system.pressures, x, T, y)
+        if step is None:
             break
-        moved = float(np.max(np.abs(T_new - T)))
-        T, y = T_new, y_new
+        T, y, moved = step
         if moved < 1e-3:
             break
     if y is None:

@@ -211,9 +211,9 @@ def audit_flags(result: Result) -> list[str]:
     return sorted({flag.code for flag in audit.flags}) if isinstance(audit, (AuditReport, SolutionAudit)) else []
 
 
-def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
-    """What a baseline records of a result (SI units)."""
-    names = list(result.components)
+def _baseline_header(result: Result | NetworkResult, case_file: str) -> dict[str, Any]:
+    """The fields every baseline begins with: schema, case, title, version, units, whether and
+    how it converged, components."""
     return {
         "schema": BASELINE_SCHEMA,
         "case": Path(case_file).name if case_file else "",
@@ -222,7 +222,15 @@ def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
         "units": {"temperature": "K", "flow": "mol/s", "duty": "W", "composition": "mole fraction"},
         "converged": bool(result.converged),
         "iterations": int(result.iterations),
-        "components": names,
+        "components": list(result.components),
+    }
+
+
+def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
+    """What a baseline records of a result (SI units)."""
+    names = list(result.components)
+    return {
+        **_baseline_header(result, case_file),
         "duties": {"condenser": result.condenser_duty, "reboiler": result.reboiler_duty},
         "reflux_ratio": result.reflux_ratio,
         "boilup_ratio": result.boilup_ratio,
@@ -240,14 +248,7 @@ def baseline_from_network_result(result: NetworkResult, case_file: str = "") -> 
     every duty and product by name and the stage temperatures of all columns in order."""
     names = list(result.components)
     return {
-        "schema": BASELINE_SCHEMA,
-        "case": Path(case_file).name if case_file else "",
-        "title": result.title,
-        "traystack_version": __version__,
-        "units": {"temperature": "K", "flow": "mol/s", "duty": "W", "composition": "mole fraction"},
-        "converged": bool(result.converged),
-        "iterations": int(result.iterations),
-        "components": names,
+        **_baseline_header(result, case_file),
         "columns": [column["name"] for column in result.columns],
         "duties": dict(result.duties),
         "reflux_ratio": None,

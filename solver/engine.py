@@ -21,11 +21,13 @@ from .feasibility import check_binary_limits, check_specifications
 from .initial import initial_estimate, theta_correction_applies
 from .mesh import CondenserSetting, MeshSystem, feed_sums_by_stage
 from .network import StageGraph, build_stage_graph
+from .network_engine import simulate_network
+from .network_results import NetworkResult
 from .newton import NewtonOptions, NewtonResult, solve_system
-from .results import Result
+from .feed_flash import flash_feed_list
+from .results import Result, case_summary
 from .shortening import MIN_STAGES, shortened_case, stretched_start
 from .streams import FlashedFeed, StageProfile
-from .thermo.flash import feed_state, feed_state_by_phase
 from .thermo.liquid_split import check_liquids
 from .thermo.package import ThermoPackage
 
@@ -45,65 +47,11 @@ __all__ = [
 POST_CHECK_TOLERANCE = 1e-7
 
 
-def case_summary(case: Case) -> dict[str, Any]:
-    """The normalized case (SI) as plain data, for the result file."""
-
-    def plain(value: Any) -> Any:
-        if dataclasses.is_dataclass(value):
-            return {f.name: plain(getattr(value, f.name)) for f in dataclasses.fields(value) if f.name != "raw"}
-        if isinstance(value, dict) or hasattr(value, "items"):
-            return {str(k): plain(v) for k, v in value.items()}
-        if isinstance(value, (list, tuple)):
-            return [plain(v) for v in value]
-        return value
-
-    return plain(case)
-
-
-def _at_feed(case: Case, feed, error: ThermoError) -> ThermoError:
-    """``error`` with the file and the feed it concerns named in front."""
-    index = case.feeds.index(feed)
-    where = f"{case.source_file}: " if case.source_file else ""
-    name = f" ({feed.name})" if feed.name else ""
-    return ThermoError(f"{where}feeds[{index}]{name}, stage {feed.stage}: {error}")
-
-
 def flash_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph) -> tuple[FlashedFeed, ...]:
-    """Flash each feed at its own temperature (or vapor fraction) and pressure, q judged at its
-    stage's pressure; the energy balance takes its rigorous enthalpy, or ``(1 - q) lambda``
-    under the ``cmo`` model. In the case's order."""
-    flashed = []
-    for feed in case.feeds:
-        stage_pressure = float(graph.pressures[feed.stage - 1])
-        pressure = feed.pressure if feed.pressure is not None else stage_pressure
-        try:
-            state = feed_state(
-                thermo,
-                np.asarray(feed.composition),
-                pressure,
-                temperature=feed.temperature,
-                vapor_fraction=feed.vapor_fraction,
-                reference_pressure=stage_pressure,
-            )
-        except ThermoError as exc:
-            if thermo.enthalpy_model != "cmo":
-                raise _at_feed(case, feed, exc) from exc
-            state = feed_state_by_phase(
-                thermo, np.asarray(feed.composition), pressure,
-                temperature=feed.temperature, vapor_fraction=feed.vapor_fraction,
-            )
-        if thermo.enthalpy_model == "cmo":
-            enthalpy = (1.0 - state.q) * thermo.cmo_latent_heat
-        else:
-            enthalpy = state.enthalpy
-        flashed.append(
-            FlashedFeed(
-                stage=feed.stage, flow=feed.flow, z=tuple(np.asarray(feed.composition, dtype=float).tolist()), h=enthalpy,
-                q=state.q, name=feed.name, temperature=state.temperature, pressure=pressure,
-                vapor_fraction=state.vapor_fraction,
-            )
-        )
-    return tuple(flashed)
+    """Each feed of ``case`` flashed (:func:`solver.feed_flash.flash_feed_list`) at the
+    pressure of its stage of ``graph``."""
+    return flash_feed_list(case.feeds, thermo, [float(graph.pressures[feed.stage - 1]) for feed in case.feeds],
+                           source_file=case.source_file)
 
 
 def stage_profile(result: Result) -> StageProfile:
@@ -272,9 +220,10 @@ def simulate(
     start: StageProfile | None = None,
     continuation: bool = True,
     shortening: int = 2,
-) -> Result:
+) -> Result | NetworkResult:
     """Solve the column of ``case`` rigorously. Always returns a Result; ``converged`` tells
-    whether it may be used.
+    whether it may be used. A network case ([[columns]]) is solved by
+    :func:`solver.network_engine.simulate_network` and gives a NetworkResult.
 
     With ``start`` (a profile of this column's stages, e.g. :func:`stage_profile` of a
     result) Newton starts from it, and nothing else is tried. Without it, the fallback chain:
@@ -288,6 +237,8 @@ def simulate(
     stages (:mod:`solver.shortening`). ``Result.strategy`` records the rung that solved it.
     Raises :class:`ConvergenceError` only for NaN/inf (naming the stage and variable), and
     :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for bad input."""
+    if case.network is not None:
+        return simulate_network(case, options=options, thermo=thermo)
     system = build_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:

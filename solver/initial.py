@@ -36,6 +36,7 @@ from .mesh import TEMPERATURE_SCALE, MeshSystem
 from .thermo.flash import bubble_temperature
 
 __all__ = [
+    "bubble_point_step",
     "cmo_flows",
     "component_balance_matrix",
     "estimate_split",
@@ -376,15 +377,24 @@ def wang_henke_sweeps(
         if two_products:
             l = theta_correction(raw, stripping[t] * raw[t], raw[system.bottom], system.total_feed_by_component, V[t])
         x = l / l.sum(axis=1, keepdims=True)
-        try:
-            T_new, y_new = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60, vapor_guess=y)
-        except ThermoError:
+        step = bubble_point_step(thermo, system.pressures, x, T, y)
+        if step is None:
             break
-        moved = float(np.max(np.abs(T_new - T)))
-        T, y = T_new, y_new
+        T, y, moved = step
         if moved < tolerance:
             break
     return T, x, raw, stripping_factors(T, x, y)
+
+
+def bubble_point_step(thermo, pressures: np.ndarray, x: np.ndarray, T: np.ndarray, y: np.ndarray | None):
+    """One sweep's temperature step: (bubble temperatures of the liquids ``x``, their incipient
+    vapors, the largest temperature move in K) from the last temperatures ``T`` and vapors
+    ``y``, or None when a bubble point cannot be found."""
+    try:
+        T_new, y_new = bubble_temperature(thermo, pressures, x, guess=T, max_iterations=60, vapor_guess=y)
+    except ThermoError:
+        return None
+    return T_new, y_new, float(np.max(np.abs(T_new - T)))
 
 
 def theta_correction_applies(system: MeshSystem) -> bool:

@@ -39,6 +39,7 @@ import scipy.sparse as sp
 
 from .case import Spec
 from .errors import SpecError
+from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network import StageGraph
 from .streams import FlashedFeed, StageProfile
 
@@ -54,7 +55,7 @@ __all__ = [
 
 TEMPERATURE_SCALE = 10.0  # K, divides temperature specification residuals
 
-_TINY = 1e-300  # floor of a total flow that divides component flows
+_TINY = TINY  # floor of a total flow that divides component flows
 
 
 @dataclass(frozen=True)
@@ -76,37 +77,6 @@ class SpecRow:
 class Evaluation:
     residuals: np.ndarray
     jacobian: sp.csc_matrix | None
-
-
-@dataclass(frozen=True)
-class _StageState:
-    """Flows, compositions and properties of every stage at one point, shared by the residuals
-    and the Jacobian (flows scaled by ``flow_scale``)."""
-
-    T: np.ndarray
-    l: np.ndarray
-    v: np.ndarray
-    L: np.ndarray
-    V: np.ndarray
-    L_safe: np.ndarray
-    V_safe: np.ndarray
-    x: np.ndarray
-    y: np.ndarray
-    K: np.ndarray
-    dlnK_dT: np.ndarray
-    dlnK_dx: np.ndarray
-    dlnK_dy: np.ndarray | None  # only where K depends on the vapor (an equation of state)
-    h_L: np.ndarray
-    dh_L_dT: np.ndarray
-    dh_L_dx: np.ndarray
-    h_V: np.ndarray
-    dh_V_dT: np.ndarray
-    dh_V_dx: np.ndarray
-    liquid_draw_ratio: np.ndarray  # U / L
-    vapor_draw_ratio: np.ndarray  # W / V
-    vapor_in: np.ndarray  # (N, c) component flows of the vapor entering each stage
-    V_in_safe: np.ndarray  # total vapor entering each stage
-    y_in: np.ndarray  # composition of the mixed vapor entering each stage
 
 
 @dataclass(frozen=True)
@@ -320,45 +290,17 @@ class MeshSystem:
             return Evaluation(residuals, None)
         return Evaluation(residuals, self._jacobian(state, reflux_bubble_point, spec_entries))
 
-    def _stage_state(self, X: np.ndarray) -> _StageState:
+    def _stage_state(self, X: np.ndarray) -> StageState:
         T, l, v = self.unpack(X)
-        L = l.sum(axis=1)
-        V = v.sum(axis=1)
-        L_safe = np.maximum(L, _TINY)
-        V_safe = np.maximum(V, _TINY)
-        x = l / L_safe[:, None]
-        y = v / V_safe[:, None]
-        props = self.thermo.stage_properties(T, self.pressures, x, y)
-        h_V, dh_V_dT, dh_V_dx = self._vapor_slot(T, y, props.vapor)
-        vapor_in = self.graph.vapor_inflow @ v
-        V_in_safe = np.maximum(vapor_in.sum(axis=1), _TINY)
-        return _StageState(
-            T=T, l=l, v=v, L=L, V=V, L_safe=L_safe, V_safe=V_safe, x=x, y=y,
-            K=props.k_values.K, dlnK_dT=props.k_values.d_ln_K_dT, dlnK_dx=props.k_values.d_ln_K_dx,
-            dlnK_dy=props.k_values.d_ln_K_dy,
-            h_L=props.liquid.molar, dh_L_dT=props.liquid.d_dT, dh_L_dx=props.liquid.d_dx,
-            h_V=h_V, dh_V_dT=dh_V_dT, dh_V_dx=dh_V_dx,
-            liquid_draw_ratio=self.liquid_draws / L_safe, vapor_draw_ratio=self.vapor_draws / V_safe,
-            vapor_in=vapor_in, V_in_safe=V_in_safe, y_in=vapor_in / V_in_safe[:, None],
-        )
+        return stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow,
+                           self.liquid_draws, self.vapor_draws, self._vapor_slot)
 
-    def _mesh_residuals(self, s: _StageState) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    def _mesh_residuals(self, s: StageState) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         """Component balances (N, c), Murphree relations (N, c), enthalpy balances (N,)."""
-        U, W, E = self.liquid_draws, self.vapor_draws, self.efficiencies
-        A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
-        balance = (
-            s.l * (1 + s.liquid_draw_ratio)[:, None] + s.v * (1 + s.vapor_draw_ratio)[:, None]
-            - A_L @ s.l - s.vapor_in - self.feed_flows
-        )
-        equilibrium = s.y - E[:, None] * s.K * s.x - (1 - E)[:, None] * s.y_in
-        enthalpy_out = (s.L + U) * s.h_L + (s.V + W) * s.h_V
-        energy = (
-            (enthalpy_out - A_L @ (s.L * s.h_L) - A_V @ (s.V * s.h_V)) * (1.0 / self.energy_scale)
-            - self.feed_enthalpy - self.fixed_duties
-        )
-        return balance, equilibrium, energy
+        return mesh_residuals(s, self.graph.liquid_inflow, self.graph.vapor_inflow, self.liquid_draws, self.vapor_draws,
+                              self.efficiencies, self.feed_flows, self.feed_enthalpy, self.fixed_duties, self.energy_scale)
 
-    def _total_condenser_rows(self, s: _StageState, equilibrium: np.ndarray) -> _RefluxBubblePoint | None:
+    def _total_condenser_rows(self, s: StageState, equilibrium: np.ndarray) -> _RefluxBubblePoint | None:
         """Overwrite the total condenser's equilibrium rows in place: ``y_i = x_i`` (i < c) and
         the reflux temperature, or the reflux's bubble point (whose K-values it returns)."""
         c, t = self.c, self.top
@@ -380,7 +322,7 @@ class MeshSystem:
         equilibrium[t, c - 1] = np.log(sum_Kx)
         return _RefluxBubblePoint(K, dlnK_dT, dlnK_dx, sum_Kx)
 
-    def _jacobian(self, s: _StageState, reflux_bubble_point: _RefluxBubblePoint | None, spec_entries) -> sp.csc_matrix:
+    def _jacobian(self, s: StageState, reflux_bubble_point: _RefluxBubblePoint | None, spec_entries) -> sp.csc_matrix:
         """Scatter the stage blocks, the edge blocks and the spec entries into one CSC matrix;
         the rows a spec replaces keep only the spec's entries."""
         # x . dh_L/dx and y . dh_V/dx of every stage, shared by its own block and its edges'
@@ -403,35 +345,11 @@ class MeshSystem:
         keep = vals != 0.0
         return sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
 
-    def _stage_blocks(self, s: _StageState, gLx: np.ndarray, gVy: np.ndarray) -> np.ndarray:
+    def _stage_blocks(self, s: StageState, gLx: np.ndarray, gVy: np.ndarray) -> np.ndarray:
         """(N, w, w): derivatives of each stage's rows with respect to its own unknowns."""
-        c, N, w = self.c, self.N, self.width
-        x, y, K, L_safe, V_safe = s.x, s.y, s.K, s.L_safe, s.V_safe
-        r_L, r_W = s.liquid_draw_ratio, s.vapor_draw_ratio
-        U, W, E = self.liquid_draws, self.vapor_draws, self.efficiencies
-        inv_es = 1.0 / self.energy_scale
-        eye = np.eye(c)
-        blocks = np.zeros((N, w, w))
-        blocks[:, :c, 1 : 1 + c] = (1 + r_L)[:, None, None] * eye - (r_L[:, None] * x)[:, :, None]
-        blocks[:, :c, 1 + c :] = (1 + r_W)[:, None, None] * eye - (r_W[:, None] * y)[:, :, None]
-        EK = E[:, None] * K
-        blocks[:, c : 2 * c, 0] = -EK * x * s.dlnK_dT
-        G_x = np.einsum("nim,nm->ni", s.dlnK_dx, x)
-        blocks[:, c : 2 * c, 1 : 1 + c] = -(EK / L_safe[:, None])[:, :, None] * (
-            eye[None] - x[:, :, None] + x[:, :, None] * (s.dlnK_dx - G_x[:, :, None])
-        )
-        blocks[:, c : 2 * c, 1 + c :] = (eye[None] - y[:, :, None]) / V_safe[:, None, None]
-        if s.dlnK_dy is not None:
-            # K depends on the stage's own vapor: d y_m / d v_k = (delta_mk - y_m) / V
-            G_y = np.einsum("nim,nm->ni", s.dlnK_dy, y)
-            with np.errstate(over="ignore", invalid="ignore"):  # a wild trial point; Newton rejects it
-                blocks[:, c : 2 * c, 1 + c :] -= (EK * x / V_safe[:, None])[:, :, None] * (s.dlnK_dy - G_y[:, :, None])
-        blocks[:, 2 * c, 0] = ((s.L + U) * s.dh_L_dT + (s.V + W) * s.dh_V_dT) * inv_es
-        blocks[:, 2 * c, 1 : 1 + c] = (s.h_L[:, None] + (1 + r_L)[:, None] * (s.dh_L_dx - gLx[:, None])) * inv_es
-        blocks[:, 2 * c, 1 + c :] = (s.h_V[:, None] + (1 + r_W)[:, None] * (s.dh_V_dx - gVy[:, None])) * inv_es
-        return blocks
+        return stage_blocks(s, gLx, gVy, self.liquid_draws, self.vapor_draws, self.efficiencies, self.energy_scale)
 
-    def _total_condenser_blocks(self, s: _StageState, bubble: _RefluxBubblePoint | None, blocks: np.ndarray) -> None:
+    def _total_condenser_blocks(self, s: StageState, bubble: _RefluxBubblePoint | None, blocks: np.ndarray) -> None:
         """The derivatives of the total condenser's equilibrium rows, in place."""
         c, t = self.c, self.top
         x, y = s.x, s.y
@@ -447,34 +365,13 @@ class MeshSystem:
         G = bubble.dlnK_dx @ x[t]
         blocks[t, 2 * c - 1, 1 : 1 + c] = (K - S + (x[t] * K) @ (bubble.dlnK_dx - G[:, None])) / (S * s.L_safe[t])
 
-    def _edge_blocks(self, s: _StageState, gLx: np.ndarray, gVy: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    def _edge_blocks(self, s: StageState, gLx: np.ndarray, gVy: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """(E_L, w, w) and (E_V, w, w): derivatives of the receiving stage's rows with respect
         to the unknowns of the stage whose liquid (vapor) enters it, one block per edge."""
-        c, w = self.c, self.width
-        E = self.efficiencies
-        inv_es = 1.0 / self.energy_scale
-        eye = np.eye(c)
-        le = self.graph.liquid_edges
-        liquid_blocks = np.zeros((len(le), w, w))
-        if len(le):
-            src = le[:, 0]
-            liquid_blocks[:, :c, 1 : 1 + c] = -eye
-            liquid_blocks[:, 2 * c, 0] = -(s.L[src] * s.dh_L_dT[src]) * inv_es
-            liquid_blocks[:, 2 * c, 1 : 1 + c] = -(s.h_L[src, None] + s.dh_L_dx[src] - gLx[src, None]) * inv_es
-        ve = self.graph.vapor_edges
-        vapor_blocks = np.zeros((len(ve), w, w))
-        if len(ve):
-            src, dst = ve[:, 0], ve[:, 1]
-            vapor_blocks[:, :c, 1 + c :] = -eye
-            vapor_blocks[:, c : 2 * c, 1 + c :] = -((1 - E[dst]) / s.V_in_safe[dst])[:, None, None] * (
-                eye[None] - s.y_in[dst][:, :, None]
-            )
-            vapor_blocks[:, 2 * c, 0] = -(s.V[src] * s.dh_V_dT[src]) * inv_es
-            vapor_blocks[:, 2 * c, 1 + c :] = -(s.h_V[src, None] + s.dh_V_dx[src] - gVy[src, None]) * inv_es
-        return liquid_blocks, vapor_blocks
+        return edge_blocks(s, gLx, gVy, self.graph.liquid_edges, self.graph.vapor_edges, self.efficiencies, self.energy_scale)
 
     # ------------------------------------------------------------------ specifications
-    def _spec_residuals(self, s: _StageState, energy: np.ndarray, jacobian: bool):
+    def _spec_residuals(self, s: StageState, energy: np.ndarray, jacobian: bool):
         """Residual of each spec row and its Jacobian entries (row, col, value arrays)."""
         T, l, v, L, V, x, y = s.T, s.l, s.v, s.L_safe, s.V_safe, s.x, s.y
         c, w = self.c, self.width

@@ -319,7 +319,8 @@ def check_network(case: Case) -> NetworkGraph:
 
 def refuse_network(case: Case, command: str) -> None:
     """Nothing for a single-column case. A network case is read and checked (its degrees of
-    freedom against its specs), then refused with exit 2: this release does not solve it."""
+    freedom against its specs), then refused with exit 2: ``command`` does not solve networks
+    (``run`` and ``check`` do, through :mod:`solver.network_engine`)."""
     if case.network is None:
         return
     check_network(case)

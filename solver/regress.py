@@ -8,7 +8,9 @@ quantity               compared as                                     tolerance
 =====================  ==============================================  =================
 converged              must be true                                    --
 condenser, reboiler    relative difference                             ``duty_rel``
-duty
+duty (a network: every
+duty by name)
+connection rates       relative difference (networks)                  ``flow_rel``
 product flows          relative difference                             ``flow_rel``
 reflux, boilup ratio   relative difference (ratios of flows)           ``flow_rel``
 product compositions   absolute difference of mole fractions           ``composition_abs``
@@ -51,7 +53,8 @@ from typing import Any, Callable, Iterable, Mapping, Sequence
 
 from . import __version__
 from .case import TOLERANCE_KEYS, Case, load_case
-from .network_graph import refuse_network
+from .network_engine import simulate_network
+from .network_results import NetworkResult
 from .errors import CaseError, TraystackError
 from .audit import AuditReport, SolutionAudit, audit_solution
 from .results import Result, write_atomic
@@ -69,6 +72,7 @@ __all__ = [
     "solve_case",
     "audit_flags",
     "baseline_from_result",
+    "baseline_from_network_result",
     "compare_baselines",
     "check_case",
     "check_cases",
@@ -224,9 +228,9 @@ def audit_flags(result: Result) -> list[str]:
     return sorted({flag.code for flag in audit.flags}) if isinstance(audit, (AuditReport, SolutionAudit)) else []
 
 
-def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
-    """What a baseline records of a result (SI units)."""
-    names = list(result.components)
+def _baseline_header(result: Result | NetworkResult, case_file: str) -> dict[str, Any]:
+    """The fields every baseline begins with: schema, case, title, version, units, whether and
+    how it converged, components."""
     return {
         "schema": BASELINE_SCHEMA,
         "case": Path(case_file).name if case_file else "",
@@ -235,7 +239,15 @@ def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
         "units": {"temperature": "K", "flow": "mol/s", "duty": "W", "composition": "mole fraction"},
         "converged": bool(result.converged),
         "iterations": int(result.iterations),
-        "components": names,
+        "components": list(result.components),
+    }
+
+
+def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
+    """What a baseline records of a result (SI units)."""
+    names = list(result.components)
+    return {
+        **_baseline_header(result, case_file),
         "duties": {"condenser": result.condenser_duty, "reboiler": result.reboiler_duty},
         "reflux_ratio": result.reflux_ratio,
         "boilup_ratio": result.boilup_ratio,
@@ -245,6 +257,26 @@ def baseline_from_result(result: Result, case_file: str = "") -> dict[str, Any]:
         },
         "stage_temperatures": [float(T) for T in result.temperature],
         "audit_flags": audit_flags(result),
+    }
+
+
+def baseline_from_network_result(result: NetworkResult, case_file: str = "") -> dict[str, Any]:
+    """What a baseline records of a network's result: the same fields as for one column, with
+    every duty and product by name and the stage temperatures of all columns in order."""
+    names = list(result.components)
+    return {
+        **_baseline_header(result, case_file),
+        "columns": [column["name"] for column in result.columns],
+        "duties": dict(result.duties),
+        "reflux_ratio": None,
+        "boilup_ratio": None,
+        "products": {
+            name: {"flow": product["flow"], "composition": dict(zip(names, product["composition"]))}
+            for name, product in result.products.items()
+        },
+        "connections": {name: connection["flow"] for name, connection in result.connections.items()},
+        "stage_temperatures": [float(T) for T in result.temperature],
+        "audit_flags": [],
     }
 
 
@@ -282,8 +314,12 @@ def compare_baselines(baseline: Mapping[str, Any], current: Mapping[str, Any], t
     found: list[Deviation | None] = []
     if list(baseline.get("components", [])) != list(current.get("components", [])):
         return [Deviation("components", baseline.get("components"), current.get("components"))]
-    for key in ("condenser", "reboiler"):
+    duty_names = ("condenser", "reboiler") + tuple(sorted((set(baseline["duties"]) | set(current["duties"])) - {"condenser", "reboiler"}))
+    for key in duty_names:  # a column's two duties, or every duty of a network by name
         found.append(_relative(f"duties.{key}", baseline["duties"].get(key), current["duties"].get(key), tolerances["duty_rel"]))
+    old_connections, new_connections = baseline.get("connections", {}), current.get("connections", {})
+    for key in sorted(set(old_connections) | set(new_connections)):
+        found.append(_relative(f"connections.{key}.flow", old_connections.get(key), new_connections.get(key), tolerances["flow_rel"]))
     for key in ("reflux_ratio", "boilup_ratio"):
         found.append(_relative(key, baseline.get(key), current.get(key), tolerances["flow_rel"]))
     old_products, new_products = baseline.get("products", {}), current.get("products", {})
@@ -323,11 +359,14 @@ def check_case(case_file: str, without_baseline: bool = True) -> CaseCheck:
         return CaseCheck(name, str(case_file), NO_BASELINE, f"no baseline {expected_file.name}: not run")
     try:
         case = load_case(case_file)
-        refuse_network(case, "check")
-        result = solve_case(case)
+        if case.network is not None:
+            result = simulate_network(case)
+            current = baseline_from_network_result(result, case_file)
+        else:
+            result = solve_case(case)
+            current = baseline_from_result(result, case_file)
     except TraystackError as exc:
         return CaseCheck(name, str(case_file), FAILED, str(exc), seconds=time.perf_counter() - started)
-    current = baseline_from_result(result, case_file)
     seconds = time.perf_counter() - started
     if not result.converged:
         return CaseCheck(name, str(case_file), FAILED, f"did not converge: {result.message}",

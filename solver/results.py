@@ -42,6 +42,7 @@ __all__ = [
     "write_atomic",
     "write_result_json",
     "write_stages_csv",
+    "case_summary",
 ]
 
 SCHEMA = "traystack-result/1"
@@ -53,6 +54,21 @@ UNITS = {
     "enthalpy": "J/mol",
     "composition": "mole fraction",
 }
+
+
+def case_summary(case) -> dict[str, Any]:
+    """The normalized case (SI) as plain data, for the result file."""
+
+    def plain(value: Any) -> Any:
+        if dataclasses.is_dataclass(value):
+            return {f.name: plain(getattr(value, f.name)) for f in dataclasses.fields(value) if f.name != "raw"}
+        if isinstance(value, dict) or hasattr(value, "items"):
+            return {str(k): plain(v) for k, v in value.items()}
+        if isinstance(value, (list, tuple)):
+            return [plain(v) for v in value]
+        return value
+
+    return plain(case)
 
 
 @dataclass(frozen=True)

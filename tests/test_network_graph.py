@@ -15,7 +15,8 @@ from solver.errors import SpecError
 from solver.network import build_stage_graph
 from solver.network_graph import build_network_graph, check_network, count_degrees_of_freedom, network_of_case
 
-CASES = sorted((Path(__file__).parent.parent / "cases").glob("*.toml"))
+# the shipped single-column cases (the network cases are [[columns]] files)
+CASES = sorted(p for p in (Path(__file__).parent.parent / "cases").glob("*.toml") if "[[columns]]" not in p.read_text())
 EXAMPLE = NETWORK_EXAMPLE
 network_case = network_example_case
 
@@ -128,11 +129,20 @@ def test_a_free_cooler_needs_a_spec():
     assert ("pumparound", "cooling duty") in [(f.equipment, f.what) for f in graph.degrees_of_freedom]
 
 
-def test_run_refuses_a_network_with_exit_2(capsys, tmp_path):
-    assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "out")]) == 2
-    error = capsys.readouterr().err
-    assert "read and checked" in error and "does not solve column networks yet" in error
-    assert "Traceback" not in error and not (tmp_path / "out").exists()
+def test_run_solves_a_network_and_writes_schema_2(capsys, tmp_path):
+    import json
+
+    assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "out")]) == 0
+    screen = capsys.readouterr().out
+    assert "stages of main" in screen and "stages of stripper" in screen
+    data = json.loads((tmp_path / "out" / "result.json").read_text())
+    assert data["schema"] == "traystack-result/2" and data["converged"] is True
+    assert {s["column"] for s in data["stages"]} == {"main", "stripper"}
+    assert set(data["products"]) == {"main.distillate", "main.bottoms", "stripper.bottoms"}
+    assert abs(data["products"]["stripper.bottoms"]["flow"] - 30 / 3.6) < 1e-9  # the spec "30 kmol/h"
+    assert set(data["connections"]) == {"to-stripper", "stripper-vapor", "pumparound"}
+    assert data["duties"]["pumparound"] == -0.5e6
+    assert (tmp_path / "out" / "network.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # the picture of the network
 
 
 def test_run_reports_a_network_spec_mismatch_with_exit_2(capsys, tmp_path):
@@ -162,7 +172,7 @@ def test_a_spec_on_a_fixed_connection_is_two_specs(spec, parts):
         assert part in str(caught.value)
 
 
-@pytest.mark.parametrize("command", ["shortcut", "audit", "sweep"])
+@pytest.mark.parametrize("command", ["shortcut", "sweep", "size"])
 def test_every_solving_command_refuses_a_network(command, capsys, tmp_path):
     extra = ["--vary", "feeds.0.flow=90:110:2"] if command == "sweep" else []
     assert main([command, str(EXAMPLE), *extra]) == 2
@@ -170,10 +180,21 @@ def test_every_solving_command_refuses_a_network(command, capsys, tmp_path):
     assert f"`traystack {command}` does not solve column networks yet" in error and "Traceback" not in error
 
 
-def test_check_reports_a_network_case_as_failed_not_a_crash(tmp_path):
-    from solver.regress import check_case
+def test_check_solves_a_network_case_and_compares_its_baseline(tmp_path):
+    import json
+
+    from solver.regress import baseline_path, check_case, write_baseline
 
     path = tmp_path / "network.toml"
     path.write_text(EXAMPLE.read_text())
     outcome = check_case(path)
-    assert outcome.status == "failed" and "does not solve column networks yet" in outcome.message
+    assert outcome.status == "no baseline", outcome.message
+    assert set(outcome.current["duties"]) == {"main.condenser", "main.reboiler", "stripper.reboiler", "pumparound"}
+    assert len(outcome.current["stage_temperatures"]) == 25
+    write_baseline(baseline_path(path), outcome.current)
+    assert check_case(path).status == "pass"
+    moved = json.loads(baseline_path(path).read_text())
+    moved["connections"]["to-stripper"] *= 1.001
+    write_baseline(baseline_path(path), moved)
+    drift = check_case(path)
+    assert drift.status == "drift" and "connections.to-stripper.flow" in [d.quantity for d in drift.deviations]

@@ -325,3 +325,16 @@ class Case:
     @property
     def component_count(self) -> int:
         return len(self.component_names)
+
+    def feed_stage_pressure(self, index: int = 0) -> float:
+        """The pressure (Pa) of the stage feed ``index`` enters (in its own column)."""
+        feed = self.feeds[index]
+        column = self.column if self.network is None else self.network.section(self.network.feed_columns[index]).column
+        return float(column.pressures[feed.stage - 1])
+
+    @property
+    def stage_pressures(self) -> tuple[float, ...]:
+        """Every stage's pressure (Pa): the column's, or every column's of a network in order."""
+        if self.network is None:
+            return self.column.pressures
+        return tuple(p for section in self.network.columns for p in section.column.pressures)

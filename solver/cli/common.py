@@ -4,6 +4,7 @@ before the engine is imported, argument types and the sizing steps of ``run``, `
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 
@@ -13,12 +14,14 @@ from rich.text import Text
 
 from ..errors import CaseError
 
-__all__ = ["PLOT_FILES", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
+__all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "finish_run", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
 
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
 #: run does not converge, so that an old figure is never read as the new result.
 PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
+#: The commands that solve a network case (the others refuse one with exit 2).
+NETWORK_COMMANDS = ("run", "audit")
 
 
 class _Screen(Console):
@@ -62,17 +65,20 @@ def progress_bar(console: Console) -> Progress:
 
 
 def refuse_before_engine(case, command: str) -> None:
-    """Refuse an unknown component, and a network of columns (read and checked, not yet
-    solved by ``command``), before the engine's modules are imported (they take seconds); the
+    """Refuse an unknown component, and a network of columns where ``command`` does not solve
+    one (a network is checked for its degrees of freedom either way), before the engine's modules are imported (they take seconds); the
     lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
     from ..components import component_info
 
     for name in case.component_names:
         component_info(name, case.component_data)
     if case.network is not None:
-        from ..network_graph import refuse_network
+        from ..network_graph import check_network, refuse_network
 
-        refuse_network(case, command)
+        if command in NETWORK_COMMANDS:
+            check_network(case)
+        else:
+            refuse_network(case, command)
 
 
 def at_least_three(text: str) -> int:
@@ -133,3 +139,17 @@ def print_sizing(result, console: Console) -> None:
 
     print_tables(result, console)
 
+
+
+def finish_run(console: Console, out: Path, written: list[Path], result) -> int:
+    """The last lines of a run: the files written, the caution, and exit 3 (with the message on
+    stderr) when the result did not converge."""
+    from ..caution import CAUTION
+
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"Caution: {CAUTION}", style="dim")
+    if not result.converged:
+        print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
+              "marked converged: false", file=sys.stderr)
+        return 3
+    return 0

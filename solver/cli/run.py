@@ -3,14 +3,11 @@
 from __future__ import annotations
 
 import argparse
-import os
-import sys
 from pathlib import Path
 
-from ..caution import CAUTION
 from ..errors import ConvergenceError
 from .common import (
-    PLOT_FILES, console_for, output_folder, positive_int, print_sizing, refuse_before_engine, sizing_figure, styled,
+    PLOT_FILES, console_for, finish_run, output_folder, positive_int, print_sizing, refuse_before_engine, sizing_figure, styled,
     with_sizing,
 )
 
@@ -23,6 +20,12 @@ def command_run(args: argparse.Namespace) -> int:
     case_path = Path(args.case)
     case = load_case(case_path)
     refuse_before_engine(case, "run")  # a bad case is refused before the engine is imported
+    if case.network is not None:
+        from .network import run_network
+
+        console = console_for(args.quiet or args.json)
+        out = output_folder(args.out, case_path, "_out")
+        return finish_run(console, out, *run_network(args, case, out, console))
     from ..newton import NewtonOptions
     from ..plots import write_all
     from ..reports import cautions, display_units, summary_tables, write_summary
@@ -66,13 +69,7 @@ def command_run(args: argparse.Namespace) -> int:
     print_sizing(result, console)
     for text in cautions(result)[:-1]:
         console.print(styled(("caution:", "yellow"), f" {text}"))
-    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
-    console.print(f"Caution: {CAUTION}", style="dim")
-    if not result.converged:
-        print(f"traystack: not converged: {result.message}; the result is written to {out / 'result.json'} "
-              "marked converged: false", file=sys.stderr)
-        return 3
-    return 0
+    return finish_run(console, out, written, result)
 
 
 def add_run_command(sub) -> None:

@@ -11,7 +11,7 @@ from pathlib import Path
 from ..caution import CAUTION
 from ..errors import CaseError
 from .common import (
-    PLOT_FILES, at_least_three, console_for, fail_on, output_folder, print_sizing, refuse_before_engine, sizing_figure,
+    PLOT_FILES, at_least_three, console_for, fail_on, finish_run, output_folder, print_sizing, refuse_before_engine, sizing_figure,
     sizing_flags, styled, with_sizing,
 )
 
@@ -85,6 +85,12 @@ def command_audit(args: argparse.Namespace) -> int:
     case_path = Path(args.case)
     case = load_case(case_path)
     refuse_before_engine(case, "audit")  # a bad case is refused before the engine is imported
+    if case.network is not None:
+        from .network import audit_network
+
+        console = console_for(args.quiet)
+        out = output_folder(args.out, case_path, "_audit")
+        return finish_run(console, out, *audit_network(args, case, out, console))
     from ..audit import MAX_SOLVES, audit_case
     from ..plots import cmo_flow_profiles, composition_profiles, shortcut_layer, temperature_profile, yx_diagram
     from ..reports import SIDE_BY_SIDE_NOTE, audit_tables, cautions, display_units, write_summary

@@ -55,7 +55,7 @@ def feed_condition(case: Case, thermo: ThermoPackage) -> FeedState:
     """The case's single feed flashed at its own pressure, q judged at its stage's pressure (as
     :func:`solver.engine.flash_feeds` does)."""
     feed = case.feeds[0]
-    stage_pressure = float(case.column.pressures[feed.stage - 1])
+    stage_pressure = case.feed_stage_pressure(0)
     pressure = feed.pressure if feed.pressure is not None else stage_pressure
     return feed_state(
         thermo, np.asarray(feed.composition, dtype=float), pressure,

@@ -201,7 +201,7 @@ def case_minimum_vapor_diagram(case: Case, thermo: ThermoPackage | None = None) 
     thermo = thermo or ThermoPackage.from_case(case)
     feed = case.feeds[0]
     z = np.asarray(feed.composition, dtype=float)
-    pressure = np.array([float(case.column.pressures[feed.stage - 1])])
+    pressure = np.array([case.feed_stage_pressure(0)])
     bubble, _ = bubble_temperature(thermo, pressure, z[None, :])
     K = thermo.k_values(np.atleast_1d(bubble), pressure, z[None, :], derivatives=False).K[0]
     order = np.argsort(-K)

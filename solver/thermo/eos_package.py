@@ -264,5 +264,6 @@ def _as_phase_enthalpy(h) -> PhaseEnthalpy:
 
 
 def _column_pressure(case: Case) -> float:
-    """The top pressure (Pa): the pressure of an enthalpy asked for without one."""
-    return float(case.column.pressures[0])
+    """The top pressure (Pa; of the first column of a network): the pressure of an enthalpy
+    asked for without one."""
+    return float(case.stage_pressures[0])

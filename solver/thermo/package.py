@@ -120,7 +120,7 @@ def _predicted_pairs(case: Case, pure: PureComponents) -> list[PredictedPair]:
     wanted = missing_pairs(case.component_names, options.pairs)
     if not wanted:
         return []
-    pressures = np.array([min(case.column.pressures), max(case.column.pressures)])
+    pressures = np.array([min(case.stage_pressures), max(case.stage_pressures)])
     boiling = ThermoPackage(pure, activity_models.IdealSolution(len(case.component_names))).saturation_temperatures(pressures)
     index = {name: k for k, name in enumerate(case.component_names)}
     predicted = []

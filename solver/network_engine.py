@@ -1,0 +1,218 @@
+"""The engine of a column network: ``simulate_network(case) -> NetworkResult``.
+
+case -> thermo package -> network graph (degrees of freedom checked) -> feeds flashed -> specs
+resolved -> one Newton system over every stage of every column (:mod:`solver.network_mesh`)
+-> the network's default start (:mod:`solver.network_start`) -> damped Newton -> independent
+post-check -> NetworkResult. As for one column, a result is converged only when Newton met its
+tolerance, the post-check (every stage's balances and equilibrium relations recomputed from the
+reported streams with freshly evaluated properties) passed, no product or internal flow
+vanished and every temperature lies within the property models' range.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from typing import Any
+
+import numpy as np
+
+from .case import Case
+from .feed_flash import flash_feed_list
+from .network_graph import check_network
+from .network_mesh import NetworkSystem
+from .network_results import NetworkResult
+from .network_specs import network_products, resolve_specs
+from .network_start import network_initial_estimate
+from .newton import NewtonOptions, NewtonResult, solve_system
+from .results import case_summary
+from .thermo.package import ThermoPackage
+
+__all__ = ["FIRST_START_ITERATIONS", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
+
+NETWORK_POST_CHECK_TOLERANCE = 1e-7
+_VANISHING_FLOW = 1e-6  # of the total feed
+
+
+def build_network_system(case: Case, thermo: ThermoPackage | None = None) -> NetworkSystem:
+    """The thermo package, the network graph (its degrees of freedom checked against the
+    specs), the flashed feeds and the resolved specs, as one :class:`NetworkSystem`."""
+    thermo = thermo or ThermoPackage.from_case(case)
+    graph = check_network(case)
+    feeds = flash_feed_list(case.feeds, thermo, [float(p) for p in graph.pressures[graph.feed_stages]],
+                            source_file=case.source_file)
+    return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names)
+
+
+#: Newton iterations the first start gets before the second is tried (the first is continued
+#: afterwards with the full budget if the second fails too).
+FIRST_START_ITERATIONS = 20
+
+
+def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None,
+                     start: np.ndarray | None = None) -> NetworkResult:
+    """Solve the network of ``case`` (or a single-column case as a network of one) from the
+    default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
+    ``converged`` says whether it may be used.
+
+    The chain without ``start``: Newton from the network start with its energy passes
+    (:func:`solver.network_start.network_initial_estimate`) for at most
+    :data:`FIRST_START_ITERATIONS`; then from the start of CMO flows alone ("second start");
+    then the first again, continued with the full budget."""
+    system = build_network_system(case, thermo)
+    options = options or NewtonOptions()
+    if start is not None:
+        newton = solve_system(system, start, options)
+        return _judged(network_result(case, system, newton, _record(newton, "newton")), system)
+    first_budget = dataclasses.replace(options, max_iterations=min(options.max_iterations, FIRST_START_ITERATIONS))
+    newton = solve_system(system, network_initial_estimate(system), first_budget)
+    strategy = _record(newton, "newton")
+    if not newton.converged:
+        second = solve_system(system, network_initial_estimate(system, energy_passes=0), options)
+        strategy["second_start"] = {"converged": bool(second.converged), "newton_iterations": second.iterations}
+        if second.converged:
+            newton, strategy["rung"] = second, "second start"
+        elif options.max_iterations > first_budget.max_iterations:
+            continued = solve_system(system, newton.X, dataclasses.replace(options, max_iterations=options.max_iterations - newton.iterations))
+            strategy["continued"] = {"converged": bool(continued.converged), "newton_iterations": continued.iterations}
+            newton = continued
+            if continued.converged:
+                strategy["rung"] = "continued"
+    strategy["chain"] = ("damped Newton (line search, dogleg) from the network start with energy passes for "
+                         f"{FIRST_START_ITERATIONS} iterations; then from the CMO start; then the first continued")
+    return _judged(network_result(case, system, newton, strategy), system)
+
+
+def _record(newton: NewtonResult, name: str) -> dict[str, Any]:
+    full_steps = all(entry.damping == 1.0 for entry in newton.log[1:])
+    return {"rung": ((name if full_steps else f"damped {name}") if newton.converged else None), "newton_iterations": newton.iterations}
+
+
+def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, strategy: dict[str, Any]) -> NetworkResult:
+    """The NetworkResult of Newton's last point (not yet judged by the post-check)."""
+    graph, thermo = system.graph, system.thermo
+    fs, fe = system.flow_scale, system.flow_scale * system.energy_scale
+    profile = system.profile(newton.X)
+    s, extras, rates, _, _ = system.state(newton.X)
+    K = thermo.k_values(profile.temperature, system.pressures, profile.x, derivatives=False, y=profile.y).K
+    products = {}
+    for p in network_products(graph):
+        liquid = p.phase == "liquid"
+        flow = p.rate if p.rate is not None else p.share * (profile.liquid_flow if liquid else profile.vapor_flow)[p.stage]
+        column, number = graph.stage_nodes[p.stage]
+        products[p.name] = {"column": column, "stage": number, "phase": p.phase, "flow": float(flow),
+                            "composition": (profile.x if liquid else profile.y)[p.stage].tolist(),
+                            "T": float(profile.temperature[p.stage]), "h": float((s.h_L if liquid else s.h_V)[p.stage])}
+    duties = {name: float(extras[k] * fe) for k, name in enumerate(system.extra_names) if name.endswith((".condenser", ".reboiler"))}
+    connections = {}
+    for c in graph.network.connections:
+        stream = system.connections[c.name]
+        flow, _, _ = system.connection_flow(s, extras, c.name)
+        duty = None
+        if c.exchanger is not None:
+            duty = c.exchanger.duty if c.exchanger.duty is not None else float(extras[system.extra_index(f"{c.name}.duty")] * fe)
+            duties[c.name] = duty
+        connections[c.name] = {"from": {"column": c.from_column, "stage": c.from_stage, "phase": c.phase},
+                               "to": {"column": c.to_column, "stage": c.to_stage},
+                               "flow": float(flow * fs), "fraction": stream.weight, "duty": duty}
+    liquid = system.transfer_liquid
+    transfer_liquid = np.bincount(system.transfer_source[liquid], rates[liquid], minlength=system.N) * fs
+    transfer_vapor = np.bincount(system.transfer_source[~liquid], rates[~liquid], minlength=system.N) * fs
+    columns, first = [], 0
+    for section in graph.network.columns:
+        col = section.column
+        columns.append({"name": section.name, "stages": col.stages, "condenser": col.condenser, "reboiler": col.reboiler, "first": first})
+        first += col.stages
+    feeds_at = [tuple(f for f, g in zip(system.feeds, system.feed_stage_index) if g == j) for j in range(system.N)]
+    return NetworkResult(
+        title=case.title, case=case_summary(case), converged=bool(newton.converged), iterations=newton.iterations,
+        residual_norm=newton.residual_norm, message=newton.message, components=tuple(case.component_names),
+        columns=tuple(columns), stage_column=tuple(n[0] for n in graph.stage_nodes), stage_number=tuple(n[1] for n in graph.stage_nodes),
+        roles=graph.roles, temperature=profile.temperature, pressure=profile.pressure, liquid_flow=profile.liquid_flow,
+        vapor_flow=profile.vapor_flow, x=profile.x, y=profile.y, K=K, h_liquid=s.h_L.copy(), h_vapor=s.h_V.copy(),
+        efficiency=system.efficiencies.copy(), liquid_draw=graph.liquid_draws.copy(), vapor_draw=graph.vapor_draws.copy(),
+        transfer_liquid=transfer_liquid, transfer_vapor=transfer_vapor, duty=system.stage_duties(newton.X),
+        stage_feeds=tuple(feeds_at), products=products, duties=duties, connections=connections, thermo=thermo.describe(),
+        iteration_log=tuple(r.as_dict() for r in newton.log), enthalpy_model=thermo.enthalpy_model, strategy=strategy,
+    )
+
+
+def network_post_check(result: NetworkResult, system: NetworkSystem) -> dict[str, float]:
+    """Largest violation of each MESH equation group over the network, recomputed from the
+    reported streams (flows, compositions, connections' rates, duties) with fresh properties."""
+    thermo, graph = system.thermo, system.graph
+    T, P, x, y = result.temperature, result.pressure, result.x, result.y
+    L, V = result.liquid_flow, result.vapor_flow
+    U = result.liquid_draw + result.transfer_liquid
+    W = result.vapor_draw + result.transfer_vapor
+    feeds, feed_h = np.zeros_like(x), np.zeros(len(T))
+    for j, stage_feeds in enumerate(result.stage_feeds):
+        for feed in stage_feeds:
+            feeds[j] += feed.flow * np.asarray(feed.z)
+            feed_h[j] += feed.flow * feed.h
+    h_L = thermo.liquid_enthalpy(T, x, pressure=P).molar
+    h_V = thermo.vapor_enthalpy(T, y, pressure=P).molar.copy()
+    tops = system.total_condensers
+    if len(tops):
+        h_V[tops] = thermo.liquid_enthalpy(T[tops], y[tops], pressure=P[tops]).molar
+    in_comp, in_h = np.zeros_like(x), np.zeros(len(T))
+    for record in result.connections.values():
+        if record["fraction"] is not None:
+            continue
+        src = graph.index[(record["from"]["column"], record["from"]["stage"])]
+        dst = graph.index[(record["to"]["column"], record["to"]["stage"])]
+        liquid = record["from"]["phase"] == "liquid"
+        in_comp[dst] += record["flow"] * (x if liquid else y)[src]
+        in_h[dst] += record["flow"] * (h_L if liquid else h_V)[src]
+    l, v = L[:, None] * x, V[:, None] * y
+    A_L, A_V = graph.liquid_inflow, graph.vapor_inflow
+    balance = l + U[:, None] * x + v + W[:, None] * y - A_L @ l - A_V @ v - feeds - in_comp
+    K = thermo.k_values(T, P, x, derivatives=False, y=y).K
+    vapor_in = A_V @ v
+    y_in = vapor_in / np.maximum(vapor_in.sum(axis=1), 1e-300)[:, None]
+    E = result.efficiency[:, None]
+    equilibrium = y - E * K * x - (1 - E) * y_in
+    keep = np.ones(len(T), dtype=bool)
+    keep[tops] = False
+    energy = (L + U) * h_L + (V + W) * h_V - A_L @ (L * h_L) - A_V @ (V * h_V) - feed_h - in_h - result.duty
+    scale = max(float(feeds.sum()), 1e-300)
+    return {
+        "component_balance_max": float(np.max(np.abs(balance)) / scale),
+        "equilibrium_max": float(np.max(np.abs(equilibrium[keep]))) if keep.any() else 0.0,
+        "reflux_max": float(np.max(np.abs(y[tops] - x[tops]))) if len(tops) else 0.0,
+        "summation_max": float(max(np.max(np.abs(x.sum(axis=1) - 1)), np.max(np.abs(y.sum(axis=1) - 1)))),
+        "enthalpy_balance_max": float(np.max(np.abs(energy)) / (scale * thermo.cmo_latent_heat)),
+        **result.balances(),
+    }
+
+
+def _vanishing(result: NetworkResult) -> list[str]:
+    total = sum(feed.flow for feeds in result.stage_feeds for feed in feeds)
+    limit = _VANISHING_FLOW * max(total, 1e-300)
+    found = [name for name, p in result.products.items() if p["flow"] < limit]
+    for column in result.columns:
+        stages = result.column_stages(column["name"])
+        if np.any(result.liquid_flow[stages[:-1]] < limit) or np.any(result.vapor_flow[stages[1:]] < limit):
+            found.append(f"internal flows of {column['name']!r}")
+    return found
+
+
+def _judged(result: NetworkResult, system: NetworkSystem) -> NetworkResult:
+    check = network_post_check(result, system)
+    converged, message = result.converged, result.message
+    if converged:
+        failed = {k: v for k, v in check.items() if not (v <= NETWORK_POST_CHECK_TOLERANCE)}
+        if failed:
+            converged = False
+            message = "Newton met its tolerance but the independent post-check failed: " + ", ".join(f"{k} = {v:.3g}" for k, v in failed.items())
+    if converged:
+        vanished = _vanishing(result)
+        if vanished:
+            converged = False
+            message = ("the equations are met only by a network that carries (almost) no " + " and no ".join(vanished)
+                       + "; the specifications cannot be met by these columns")
+    if converged:
+        problem = system.thermo.range_problem(result.temperature, result.pressure, result.x, result.y)
+        if problem is not None:
+            converged = False
+            message = f"solution outside the property models' range: {problem}"
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check)

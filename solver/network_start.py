@@ -1,0 +1,373 @@
+"""The default start of a column network, from its feeds and specs alone.
+
+1. Flows by constant molar overflow over the whole network at once: the total material balance
+   and the CMO enthalpy balance of every stage (liquid enthalpy 0, vapor enthalpy one mean
+   latent heat, feeds entering with their vapor fraction ``1 - q``) together with the specs as
+   linear relations among the totals, the condenser and reboiler duties and the connections'
+   free rates form one sparse linear system. A composition or temperature spec, which says
+   nothing linear about the flows, is replaced there by a product rate guessed from the
+   components' volatility order (the product takes the components on its side of the spec's
+   component, and the share of that component the spec implies).
+2. Compositions and temperatures by bubble-point sweeps (Wang & Henke 1966, Hydrocarbon
+   Processing 45(8):155) at those flows over the whole graph: the component balances of all
+   stages of all columns at ``v = S l`` are one sparse linear system per component; the
+   temperatures move to the bubble points of the new liquids.
+3. Twice more: the flows from the same balances with the stages' own enthalpies at the sweeps'
+   profile (the energy-balance step of the bubble-point method; a return temperature's duty
+   from its stream's enthalpy change), then the sweeps again.
+4. Each product rate guessed for a composition spec is moved (secant method, each on its own
+   spec) until the sweeps' profile meets the spec, as the single-column start moves its
+   overhead rate.
+5. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
+   balances hold at the start.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
+
+from .initial import bubble_point_step
+from .network_mesh import NetworkSystem
+from .thermo.flash import bubble_temperature
+
+__all__ = ["cmo_network_flows", "network_initial_estimate", "network_sweeps"]
+
+_SWEEPS = 40  # at most; the sweeps stop when no temperature moves by 1e-3 K
+_ENERGY_PASSES = 2  # flows from the stages' own enthalpies, then the sweeps again
+_SPEC_ROUNDS = 8  # at most, of moving guessed product rates to meet composition specs
+
+
+def _volatility_order(system: NetworkSystem) -> np.ndarray:
+    """ln K of each component at the bubble point of all feeds together (mean pressure)."""
+    z = system.total_feed_by_component / system.total_feed_by_component.sum()
+    P = np.array([float(np.mean(system.pressures))])
+    T, _ = bubble_temperature(system.thermo, P, z[None, :])
+    return np.log(system.thermo.k_values(T, P, z[None, :], derivatives=False).K[0])
+
+
+def _guessed_product_rate(system: NetworkSystem, row, ln_K: np.ndarray) -> float:
+    """A product's rate (scaled) from a composition spec: the components on its side of the
+    spec's component (lighter for a vapor slot, heavier for a liquid one) plus the share of the
+    component itself the spec implies."""
+    feed = system.total_feed_by_component
+    i = row.component
+    lighter_side = row.product.phase == "vapor"
+    side = feed[(ln_K > ln_K[i]) if lighter_side else (ln_K < ln_K[i])].sum()
+    if row.kind == "recovery":
+        return float(side + row.value * feed[i])
+    if row.value >= 0.5:
+        return float(side + 0.97 * feed[i])
+    return float(side / (1.0 - row.value))
+
+
+def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, rates: dict | None = None):
+    """(L, V, extras, guessed): total flows leaving every stage (scaled), the extra unknowns
+    (duties scaled like the system's, rates scaled) and the product rates guessed for
+    composition specs (spec index -> scaled rate; ``rates`` gives them instead) from the
+    material and enthalpy balances of every stage with the specs. Without ``enthalpies`` by CMO (liquid 0, vapor one mean latent heat);
+    with ``(h_L, h_V, return_differences)`` (stage enthalpies over the energy scale, and for each
+    return-temperature row the enthalpy change of its stream, by the duty's name) by those
+    enthalpies, a step of the bubble-point method (Wang & Henke 1966)."""
+    N, n = system.N, len(system.extra_names)
+    size = 2 * N + n
+    A = sp.lil_matrix((size, size))
+    b = np.zeros(size)
+    stages = np.arange(N)
+    if enthalpies is None:
+        h_L, h_V = np.zeros(N), np.ones(N)
+        h_V[system.total_condensers] = 0.0  # the total condenser's vapor slot holds liquid
+        q = np.array([feed.q for feed in system.feeds])
+        flows = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
+        feed_h = np.bincount(system.feed_stage_index, (1.0 - np.clip(q, -1.0, 2.0)) * flows, minlength=N)
+        differences = {}
+    else:
+        h_L, h_V, differences = enthalpies
+        feed_h = system.feed_enthalpy
+    A[stages, stages] = 1.0
+    A[stages, N + stages] = 1.0
+    A[N + stages, stages] = h_L
+    A[N + stages, N + stages] = h_V
+    for (src, dst), weight in zip(system.liquid_edges, system.liquid_weights):
+        A[dst, src] -= weight
+        A[N + dst, src] -= weight * h_L[src]
+    for (src, dst), weight in zip(system.vapor_edges, system.vapor_weights):
+        A[dst, N + src] -= weight
+        A[N + dst, N + src] -= weight * h_V[src]
+    b[:N] = system.feed_flows.sum(axis=1) - system.side_liquid_draws - system.side_vapor_draws
+    b[N : 2 * N] = feed_h + system.fixed_duties - system.side_liquid_draws * h_L - system.side_vapor_draws * h_V
+    for k, stage in enumerate(system.extra_duty_stage):
+        if stage >= 0:
+            A[N + stage, 2 * N + k] = -1.0
+    for m, (src, dst) in enumerate(zip(system.transfer_source, system.transfer_destination)):
+        k = system.transfer_extra[m]
+        h = h_L[src] if system.transfer_liquid[m] else h_V[src]
+        for row, factor in ((src, 1.0), (dst, -1.0), (N + src, h), (N + dst, -h)):
+            if k >= 0:
+                A[row, 2 * N + k] += factor
+            else:
+                b[row] -= factor * system.transfer_fixed[m]
+    fixed = _fixed_by_specs(system)
+    guessed: dict[int, float] = {}
+    for r, row in enumerate(system.specs + system.internal_rows):
+        rate = _cmo_spec_row(system, A, b, 2 * N + r, row, ln_K, fixed, differences, (rates or {}).get(r))
+        if rate is not None:
+            guessed[r] = rate
+    for r, (condenser, reboiler, _) in enumerate(system.heat_links, start=2 * N + len(system.specs) + len(system.internal_rows)):
+        A[r, 2 * N + system.extra_index(condenser)] = 1.0
+        A[r, 2 * N + system.extra_index(reboiler)] = 1.0
+    solution = spla.spsolve(A.tocsc(), b)
+    if not np.all(np.isfinite(solution)):
+        solution = np.linalg.lstsq(A.toarray(), b, rcond=None)[0]
+    floor = 1e-3
+    L = np.maximum(solution[:N], floor)
+    V = np.maximum(solution[N : 2 * N], floor)
+    extras = solution[2 * N :].copy()
+    free_rates = system.extra_duty_stage < 0
+    extras[free_rates] = np.maximum(extras[free_rates], floor)
+    return L, V, extras, guessed
+
+
+def _column_of(system: NetworkSystem, stage: int) -> str:
+    return system.graph.stage_nodes[stage][0]
+
+
+def _fixed_by_specs(system: NetworkSystem) -> dict[str, set[str]]:
+    """Column -> what its linear specs fix: "rate" (a product rate of a distillate or bottoms),
+    "ratio" (a reflux or boilup ratio, a condenser or reboiler duty)."""
+    fixed: dict[str, set[str]] = {section.name: set() for section in system.graph.network.columns}
+    for row in system.specs:
+        if row.kind == "product_flow" and row.product.rate is None:
+            fixed[_column_of(system, row.product.stage)].add("rate")
+        elif row.kind in ("reflux_ratio", "boilup_ratio"):
+            fixed[_column_of(system, row.stage)].add("ratio")
+        elif row.kind == "duty" and row.extra.endswith((".condenser", ".reboiler")):
+            fixed[row.extra.rsplit(".", 1)[0]].add("ratio")
+    return fixed
+
+
+def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[str, set[str]], differences,
+                  rate: float | None) -> float | None:
+    """A spec as a linear relation among the CMO unknowns (L: 0.., V: N.., extras: 2N..). A
+    composition or temperature spec becomes, on its column, a guessed product rate if no spec
+    fixes one (``rate``, or one from the volatility order; returned), else a reflux ratio of 2
+    (a boilup ratio of 2 without a condenser)."""
+    N = system.N
+    kind = row.kind
+    if kind in ("mole_fraction", "recovery", "stage_temperature"):
+        stage = row.stage if kind == "stage_temperature" else row.product.stage
+        column = _column_of(system, stage)
+        if "rate" in fixed[column]:
+            fixed[column].add("ratio")
+            _ratio_of_two(system, A, r, column)
+            return
+        fixed[column].add("rate")
+        if kind == "stage_temperature" or row.product.rate is not None:
+            _half_the_feed(system, A, b, r, column)
+            return
+    if kind in ("mole_fraction", "recovery", "product_flow"):
+        p = row.product
+        guess = None if kind == "product_flow" else (rate if rate is not None else _guessed_product_rate(system, row, ln_K))
+        A[r, (p.stage if p.phase == "liquid" else N + p.stage)] = p.share
+        b[r] = row.value / system.flow_scale if guess is None else guess
+        return guess
+    elif kind in ("reflux_ratio", "boilup_ratio"):
+        g, share = row.stage, row.product.share
+        own, other = (g, N + g) if kind == "reflux_ratio" else (N + g, g)
+        A[r, own] = 1.0
+        A[r, other] = -row.value * share
+    elif kind == "duty":
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        b[r] = row.value / (system.flow_scale * system.energy_scale)
+    elif kind == "connection_flow":
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        b[r] = row.value / system.flow_scale
+    elif kind == "connection_fraction":
+        g, liquid = row.source_stage, row.phase == "liquid"
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        A[r, g if liquid else N + g] -= row.value
+        for m in np.flatnonzero((system.transfer_source == g) & (system.transfer_liquid == liquid)):
+            k = system.transfer_extra[m]
+            if k >= 0:
+                A[r, 2 * N + k] -= row.value
+            else:
+                b[r] += row.value * system.transfer_fixed[m]
+        b[r] += row.value * (system.side_liquid_draws[g] if liquid else system.side_vapor_draws[g])
+    elif kind == "return_temperature":
+        # duty = flow of the stream x its enthalpy change (none known yet: no duty)
+        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+        difference = differences.get(row.extra, 0.0)
+        stream = system.connections[row.extra.rsplit(".", 1)[0]]
+        if stream.transfer is not None:
+            k = system.transfer_extra[stream.transfer]
+            if k >= 0:
+                A[r, 2 * N + k] = -difference
+            else:
+                b[r] = difference * system.transfer_fixed[stream.transfer]
+        else:
+            A[r, stream.source if stream.phase == "liquid" else N + stream.source] = -difference * stream.weight
+    else:
+        raise ValueError(f"no start relation for spec kind {kind!r}")
+    return None
+
+
+def _half_the_feed(system: NetworkSystem, A, b, r: int, column: str) -> None:
+    """Row ``r``: the column's overhead product (else its bottoms) takes half the network's feed."""
+    N, graph = system.N, system.graph
+    top = graph.index[(column, 1)]
+    bottom = top + graph.network.section(column).column.stages - 1
+    if graph.vapor_product_share[top] > 0:
+        A[r, N + top] = graph.vapor_product_share[top]
+    else:
+        A[r, bottom] = graph.liquid_product_share[bottom]
+    b[r] = 0.5
+
+
+def _ratio_of_two(system: NetworkSystem, A, r: int, column: str) -> None:
+    """Row ``r``: a reflux ratio of 2 on ``column`` (a boilup ratio of 2 without a condenser)."""
+    N, graph = system.N, system.graph
+    top = graph.index[(column, 1)]
+    bottom = top + graph.network.section(column).column.stages - 1
+    if graph.roles[top] != "tray":
+        A[r, top], A[r, N + top] = 1.0, -2.0 * graph.vapor_product_share[top]
+    else:
+        A[r, N + bottom], A[r, bottom] = 1.0, -2.0 * graph.liquid_product_share[bottom]
+
+
+def _balance_matrix(system: NetworkSystem, L, V, U, W, rates, S) -> sp.csc_matrix:
+    """The component balances of every component at fixed totals with ``v = S l``, one
+    block-diagonal sparse matrix in the liquid component flows (component-major)."""
+    N, c = system.N, system.c
+    offsets = (np.arange(c) * N)[:, None]
+    diagonal = (1.0 + U / L)[:, None] + S * (1.0 + W / V)[:, None]
+    rows = [np.broadcast_to(offsets + np.arange(N)[None, :], (c, N)).ravel()]
+    cols = [rows[0]]
+    vals = [diagonal.T.ravel()]
+    le, lw = system.liquid_edges, system.liquid_weights
+    ve, vw = system.vapor_edges, system.vapor_weights
+    src, dst, liquid = system.transfer_source, system.transfer_destination, system.transfer_liquid
+    transfer_factor = np.where(liquid[:, None], (rates / L[src])[:, None], (rates / V[src])[:, None] * S[src])
+    for sources, destinations, factor in (
+        (le[:, 0], le[:, 1], np.broadcast_to(lw[:, None], (len(le), c))),
+        (ve[:, 0], ve[:, 1], vw[:, None] * S[ve[:, 0]]),
+        (src, dst, transfer_factor),
+    ):
+        rows.append((offsets + destinations[None, :]).ravel())
+        cols.append((offsets + sources[None, :]).ravel())
+        vals.append(-np.asarray(factor).T.ravel())
+    return sp.csc_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))), shape=(N * c, N * c))
+
+
+def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = _SWEEPS):
+    """Bubble-point sweeps at fixed flows: (T, x, y)."""
+    thermo, N, c = system.thermo, system.N, system.c
+    rates = system.transfer_rates(extras)
+    U, W = system.draws(rates)
+    rhs = system.feed_flows.T.ravel()
+    y = None
+    tops = system.total_condensers
+    for _ in range(max_sweeps):
+        K = thermo.k_values(T, system.pressures, x, derivatives=False, y=y).K
+        S = K * (V / L)[:, None]
+        S[tops] = (V[tops] / L[tops])[:, None]
+        solution = spla.spsolve(_balance_matrix(system, L, V, U, W, rates, S), rhs)
+        l = np.maximum(solution.reshape(c, N).T, 1e-30)
+        x = l / l.sum(axis=1, keepdims=True)
+        step = bubble_point_step(thermo, system.pressures, x, T, y)
+        if step is None:
+            break
+        T, y, moved = step
+        if moved < 1e-3:
+            break
+    if y is None:
+        y = thermo.k_values(T, system.pressures, x, derivatives=False).K * x
+        y = y / y.sum(axis=1, keepdims=True)
+    return T, x, y
+
+
+def _stage_enthalpies(system: NetworkSystem, T: np.ndarray, x: np.ndarray, y: np.ndarray):
+    """(h_L, h_V, return differences) over the energy scale at a sweep's profile, for
+    :func:`cmo_network_flows`."""
+    thermo, P, scale = system.thermo, system.pressures, system.energy_scale
+    h_L = thermo.liquid_enthalpy(T, x, pressure=P).molar
+    h_V = thermo.vapor_enthalpy(T, y, pressure=P).molar.copy()
+    tops = system.total_condensers
+    if len(tops):
+        h_V[tops] = thermo.liquid_enthalpy(T[tops], x[tops], pressure=P[tops]).molar
+    differences = {}
+    for row in system.specs + system.internal_rows:
+        if row.kind == "return_temperature":
+            stream = system.connections[row.extra.rsplit(".", 1)[0]]
+            g, liquid = stream.source, stream.phase == "liquid"
+            enthalpy = thermo.liquid_enthalpy if liquid else thermo.vapor_enthalpy
+            at_return = enthalpy(np.array([row.value]), (x if liquid else y)[g][None, :], pressure=P[g : g + 1]).molar[0]
+            differences[row.extra] = (at_return - (h_L if liquid else h_V)[g]) / scale
+    return h_L / scale, h_V / scale, differences
+
+
+def _profile_spec_error(system: NetworkSystem, row, L, V, x, y) -> float:
+    """How far a composition spec is from being met by a sweep's profile."""
+    p, i = row.product, row.component
+    liquid = p.phase == "liquid" or p.stage in system.total_condensers
+    composition = (x if liquid else y)[p.stage]
+    if row.kind == "mole_fraction":
+        return float(composition[i] - row.value)
+    flow = p.share * (L if p.phase == "liquid" else V)[p.stage]
+    return float(flow * composition[i] / system.total_feed_by_component[i] - row.value)
+
+
+def _meet_composition_specs(system: NetworkSystem, ln_K, guessed: dict[int, float], state, rounds: int = _SPEC_ROUNDS):
+    """Move each product rate guessed for a composition spec by the secant method (each on its
+    own spec) until the sweeps' profile meets the specs to 1e-4, or ``rounds`` are spent."""
+    L, V, extras, T, x, y = state
+    rows = {r: (system.specs + system.internal_rows)[r] for r in guessed}
+    errors = {r: _profile_spec_error(system, rows[r], L, V, x, y) for r in guessed}
+    previous: dict[int, tuple[float, float]] = {}
+    rates = dict(guessed)
+    for _ in range(rounds):
+        if max(abs(e) for e in errors.values()) < 1e-4:
+            break
+        for r, error in errors.items():
+            rate = rates[r]
+            if r in previous and previous[r][1] != error:
+                old_rate, old_error = previous[r]
+                new = rate - error * (rate - old_rate) / (error - old_error)
+            else:
+                new = rate * (0.98 if (error < 0) == (rows[r].product.phase == "vapor") else 1.02)
+            previous[r] = (rate, error)
+            rates[r] = float(np.clip(new, 0.5 * rate, 1.5 * rate))
+        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, T, x, y), rates)
+        T, x, y = network_sweeps(system, L, V, extras, T, x)
+        errors = {r: _profile_spec_error(system, rows[r], L, V, x, y) for r in guessed}
+    return L, V, extras, T, x, y
+
+
+def network_initial_estimate(system: NetworkSystem, energy_passes: int = _ENERGY_PASSES) -> np.ndarray:
+    """The default start of the network (the module docstring's steps) as scaled unknowns."""
+    ln_K = _volatility_order(system)
+    L, V, extras, guessed = cmo_network_flows(system, ln_K)
+    z = system.total_feed_by_component / system.total_feed_by_component.sum()
+    x = np.tile(z, (system.N, 1))
+    T, _ = bubble_temperature(system.thermo, system.pressures, x)
+    T, x, y = network_sweeps(system, L, V, extras, T, x)
+    for _ in range(energy_passes):
+        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, T, x, y), guessed)
+        T, x, y = network_sweeps(system, L, V, extras, T, x)
+    if guessed:
+        L, V, extras, T, x, y = _meet_composition_specs(system, ln_K, guessed, (L, V, extras, T, x, y))
+    y = y.copy()
+    tops = system.total_condensers
+    y[tops] = x[tops]
+    T = T.copy()
+    fixed = ~np.isnan(system.reflux_temperature)
+    T[tops] = np.where(fixed, system.reflux_temperature, T[tops] - system.reflux_shift)
+    X = system.pack(T, L[:, None] * x, V[:, None] * y, extras)
+    # condenser and reboiler duties that no spec fixes: their enthalpy balances met at the start
+    set_by_spec = {row.extra for row in system.specs if row.kind == "duty"}
+    energy_rows = np.arange(system.N) * system.width + 2 * system.c
+    residuals = system.evaluate(X, jacobian=False).residuals[energy_rows]
+    for k, name in enumerate(system.extra_names):
+        if name.endswith((".condenser", ".reboiler")) and name not in set_by_spec:
+            X[system.stage_size + k] += residuals[system.extra_duty_stage[k]]
+    return X

@@ -1,0 +1,139 @@
+"""The network's Newton system (solver/network_mesh.py, network_specs.py, network_start.py):
+every Jacobian entry against central differences for every kind of connection, exchanger and
+spec, and Newton from the network's default start converging on each variant."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from conftest import network_example_case
+from solver.network_engine import build_network_system, network_post_check, network_result, simulate_network
+from solver.network_start import network_initial_estimate
+from solver.newton import solve_system
+
+
+def _pumparound(**entries):
+    def change(data):
+        connection = data["connections"][2]
+        connection.pop("fraction", None)
+        connection.pop("cooling", None)
+        connection.update(entries)
+    return change
+
+
+def _add_specs(*specs):
+    def change(data):
+        data["specs"].extend(specs)
+    return change
+
+
+def _column_specs(index, **specs):
+    def change(data):
+        data["columns"][index]["specs"] = specs
+    return change
+
+
+def _heat_link(data):
+    data["heat_links"] = [{"name": "integration", "from": "main.condenser", "to": "stripper.reboiler"}]
+    data["columns"][1].pop("specs")
+    data["columns"][0]["specs"] = {"reflux_ratio": 1.2, "distillate_rate": "39 kmol/h"}
+
+
+def _vapor_rate(data):
+    data["connections"][1]["flow"] = "5 kmol/h"  # a fixed vapor rate; the rest leaves as stripper.distillate
+
+
+def _side_draw(data):
+    data["columns"][0]["side_draws"] = [{"name": "toluene cut", "stage": 15, "phase": "liquid", "flow": "10 kmol/h"}]
+    data["specs"].append({"on": "toluene cut", "recovery": {"toluene": 0.2}})
+    data["columns"][0]["specs"] = {"reflux_ratio": 2.5}
+
+
+def _partial_condenser(data):
+    data["columns"][0]["condenser"] = "partial"
+
+
+def _compose(*changes):
+    def change(data):
+        for one in changes:
+            one(data)
+    return change
+
+
+#: Each connection kind, exchanger and spec kind at least once (name: change of the example).
+VARIANTS = {
+    "example (free rate, fraction with fixed cooling duty, all of a vapor)": None,
+    "fixed-rate pumparound with a return temperature": _pumparound(flow="40 kmol/h", cooling={"return_temperature": "60 degC"}),
+    "free pumparound rate by connection_flow": _compose(_pumparound(flow="free", cooling={"duty": "-0.3 MW"}),
+                                                        _add_specs({"on": "pumparound", "flow": "35 kmol/h"})),
+    "free pumparound rate by connection_fraction": _compose(_pumparound(flow="free"), _add_specs({"on": "pumparound", "fraction": 0.25})),
+    "free cooler by exchanger_duty": _compose(_pumparound(fraction=0.3, cooling={"duty": "free"}),
+                                              _add_specs({"on": "pumparound", "duty": "-0.2 MW"})),
+    "free cooler by return_temperature": _compose(_pumparound(flow="30 kmol/h", cooling={"duty": "free"}),
+                                                  _add_specs({"on": "pumparound", "return_temperature": "70 degC"})),
+    "recovery, bottoms purity": _column_specs(0, recovery={"benzene": {"distillate": 0.93}}, bottoms={"benzene": 0.002}),
+    "stage temperature and condenser duty": _column_specs(0, condenser_duty="-1.2 MW", stage_temperature={"stage": 15, "value": "119 degC"}),
+    "reboiler duty of the stripper": _column_specs(1, reboiler_duty="0.2 MW"),
+    "reboiler duty and distillate rate": _column_specs(0, reboiler_duty="1.5 MW", distillate_rate="39 kmol/h"),
+    "heat link": _heat_link,
+    "vapor rate connection": _vapor_rate,
+    "side draw recovery": _side_draw,
+    "partial condenser": _partial_condenser,
+    "subcooled reflux": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_subcooling="5 K"),
+    "reflux temperature": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_temperature="70 degC"),
+}
+
+
+def _numerical_jacobian(system, X, step=1e-7):
+    J = np.zeros((system.size, system.size))
+    for k in range(system.size):
+        h = step * max(1.0, abs(X[k]))
+        up, down = X.copy(), X.copy()
+        up[k] += h
+        down[k] -= h
+        J[:, k] = (system.evaluate(up, False).residuals - system.evaluate(down, False).residuals) / (2 * h)
+    return J
+
+
+@pytest.mark.parametrize("name", list(VARIANTS))
+def test_jacobian_matches_central_differences(name):
+    system = build_network_system(network_example_case(VARIANTS[name]))
+    X = network_initial_estimate(system)
+    analytic = system.evaluate(X).jacobian.toarray()
+    numeric = _numerical_jacobian(system, X)
+    error = np.abs(analytic - numeric)
+    worst = np.unravel_index(np.argmax(error - 1e-6 * np.abs(numeric)), error.shape)
+    assert np.all(error <= 1e-6 + 1e-6 * np.abs(numeric)), (
+        f"{system.equation_name(worst[0])} by {system.variable_name(worst[1])}: "
+        f"{analytic[worst]} analytic, {numeric[worst]} numeric")
+
+
+@pytest.mark.parametrize("name", list(VARIANTS))
+def test_newton_converges_from_the_network_start(name):
+    case = network_example_case(VARIANTS[name])
+    result = simulate_network(case)
+    assert result.converged, result.message
+    assert result.iterations <= 15
+    assert result.post_check["component_closure_max"] < 1e-10
+    assert result.post_check["energy_closure_rel"] < 1e-10
+
+
+def test_specs_hold_at_the_solution():
+    change = _compose(_pumparound(flow="free", cooling={"duty": "free"}),
+                      _add_specs({"on": "pumparound", "fraction": 0.25}, {"on": "pumparound", "return_temperature": "70 degC"}))
+    case = network_example_case(change)
+    system = build_network_system(case)
+    newton = solve_system(system, network_initial_estimate(system))
+    result = network_result(case, system, newton, {})
+    pumparound = result.connections["pumparound"]
+    main8 = result.stage_column.index("main") + 7
+    leaving = result.liquid_flow[main8] + result.transfer_liquid[main8]
+    assert pumparound["flow"] == pytest.approx(0.25 * leaving, rel=1e-9)
+    # the cooler brings the drawn liquid from stage 8's temperature to 70 degC: its duty is the enthalpy change
+    thermo = system.thermo
+    h = thermo.liquid_enthalpy(np.array([result.temperature[main8], 343.15]), np.tile(result.x[main8], (2, 1)),
+                               pressure=np.full(2, result.pressure[main8])).molar
+    assert pumparound["duty"] == pytest.approx(pumparound["flow"] * (h[1] - h[0]), rel=1e-8)
+    assert result.products["stripper.bottoms"]["flow"] == pytest.approx(30 / 3.6, rel=1e-9)
+    assert max(network_post_check(result, system).values()) < 1e-8

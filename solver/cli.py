@@ -680,12 +680,14 @@ def add_components_command(sub) -> None:
 
 
 #: The commands that fit property curves, and so take ``--no-cache``.
-CACHED_COMMANDS = ("run", "shortcut", "audit", "size", "check", "sweep")
+CACHED_COMMANDS = ("run", "shortcut", "audit", "size", "check", "sweep", "uncertainty")
+
+from .cli_uncertainty import add_uncertainty_command  # noqa: E402 (the command's code is in its own module)
 
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
     add_run_command, add_shortcut_command, add_audit_command, add_size_command, add_check_command, add_sweep_command,
-    add_components_command,
+    add_components_command, add_uncertainty_command,
 )
 
 

@@ -404,6 +404,11 @@ def add_size_command(sub) -> None:
 # =======================================================================================
 
 
+def _add_scheduler_option(command) -> None:
+    command.add_argument("--scheduler", metavar="ADDRESS", help="run on the Dask cluster whose scheduler is at ADDRESS "
+                         "(tcp://HOST:PORT) in place of local worker processes; needs traystack[distributed]")
+
+
 def _moved(check) -> str:
     from .regress import FAILED, headlines
 
@@ -418,13 +423,13 @@ def _moved(check) -> str:
 def command_check(args: argparse.Namespace) -> int:
     from .regress import DRIFT, FAILED, NO_BASELINE, PASS, check_cases, find_cases, junit_xml
     from .results import write_atomic
-    from .workers import local_executor, stop_workers
+    from .workers import stop_workers, study_executor
 
     console = _console()
     cases = find_cases(args.cases)
     started = time.perf_counter()
     styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
-    executor = local_executor(args.jobs)
+    executor = study_executor(args.jobs, args.scheduler)
     done: list = []
     try:
         with _progress(console) as progress:
@@ -480,6 +485,7 @@ def add_check_command(sub) -> None:
                        "are left untouched, a case that fails gets none")
     check.add_argument("--junit", metavar="FILE", help="also write a JUnit XML report to FILE")
     check.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="run N cases at a time in worker processes (default 1)")
+    _add_scheduler_option(check)
     check.set_defaults(handler=command_check)
 
 
@@ -491,7 +497,7 @@ def add_check_command(sub) -> None:
 def command_sweep(args: argparse.Namespace) -> int:
     from .case import load_case
     from .sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
-    from .workers import local_executor, stop_workers
+    from .workers import stop_workers, study_executor
 
     console = _console()
     case_path = Path(args.case)
@@ -505,7 +511,8 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
-    executor = local_executor(args.jobs)
+    executor = study_executor(args.jobs or 1, args.scheduler)
+    chains = args.jobs or getattr(executor, "worker_threads", 1)  # warm-started runs in flight
     try:
         with _progress(console) as progress:
             task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
@@ -523,7 +530,7 @@ def command_sweep(args: argparse.Namespace) -> int:
                     last_write[0] = time.monotonic()
 
             result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance,
-                               warm=not args.cold, chains=args.jobs)
+                               warm=not args.cold, chains=chains)
     except SweepInterrupted as stop:
         stop_workers(executor)
         written = write_sweep_csv(stop.result, out / "sweep.csv")
@@ -576,7 +583,9 @@ def add_sweep_command(sub) -> None:
                        help="a key of the case file (dotted path, e.g. specs.reflux_ratio, feeds[0].stage, column.pressure.top) "
                        "and COUNT evenly spaced values; START and STOP may carry a unit ('feeds[0].temperature=40 degC:70 degC:4'); "
                        "give it twice for a grid")
-    sweep.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="solve N points at a time in worker processes (default 1)")
+    sweep.add_argument("--jobs", type=_positive_int, metavar="N", help="solve N points at a time in worker processes "
+                       "(default 1); with --scheduler, N runs of warm-started points at a time (default: the cluster's threads)")
+    _add_scheduler_option(sweep)
     sweep.add_argument("--cold", action="store_true",
                        help="solve every point from the default start (by default each starts from its nearest solved neighbour)")
     sweep.add_argument("--out", metavar="DIR", help="output folder (default: CASE_sweep in the current folder)")

@@ -159,7 +159,7 @@ def command_uncertainty(args: argparse.Namespace) -> int:
 
 
 def add_uncertainty_command(sub) -> None:
-    from .cli import _positive_int
+    from .cli import _add_scheduler_option, _positive_int
 
     command = sub.add_parser("uncertainty", help="Monte Carlo over the uncertainties the case states: percentiles, "
                              "histograms, the chance of meeting each product spec")
@@ -168,7 +168,6 @@ def add_uncertainty_command(sub) -> None:
     command.add_argument("--seed", type=int, default=1, metavar="S",
                          help="seed of the random draws (default 1); the same seed gives the same study")
     command.add_argument("--jobs", type=_positive_int, default=1, metavar="N", help="solve N samples at a time in worker processes (default 1)")
-    command.add_argument("--scheduler", metavar="ADDRESS", help="run the samples on the Dask cluster whose scheduler is at "
-                         "ADDRESS (tcp://HOST:PORT); needs traystack[distributed]")
+    _add_scheduler_option(command)
     command.add_argument("--out", metavar="DIR", help="output folder (default: CASE_uncertainty in the current folder)")
     command.set_defaults(handler=command_uncertainty)

@@ -28,6 +28,11 @@ class ClusterExecutor(Executor):
         self.client = client
         self._executor = client.get_executor(pure=False)
 
+    @property
+    def worker_threads(self) -> int:
+        """The number of threads of all the cluster's workers (at least 1)."""
+        return max(1, sum(self.client.nthreads().values()))
+
     def submit(self, fn: Callable, /, *args: Any, **kwargs: Any) -> Future:
         return self._executor.submit(fn, *args, **kwargs)
 

@@ -2,7 +2,8 @@
 the case states (:mod:`solver.monte_carlo`) beside their linear propagation
 (:mod:`solver.uncertainty`); on screen the headline outputs' spread and the chance of meeting
 each product spec; ``uncertainty.json``, ``uncertainty.csv`` and ``uncertainty.png`` in the
-output folder (each written atomically). Also the uncertainty lines of ``run --sensitivity``.
+output folder (each written atomically), and ``samples.jsonl``, the samples as they finish
+(:class:`~solver.monte_carlo.SampleLog`: a rerun into the same folder solves only what is missing). Also the uncertainty lines of ``run --sensitivity``.
 """
 
 from __future__ import annotations
@@ -94,7 +95,7 @@ def command_uncertainty(args: argparse.Namespace) -> int:
         raise CaseError("the case states no uncertainties", file=str(case_path), key="uncertainty",
                         expected="an [uncertainty] table (README.md, \"Case files\")")
     from .engine import simulate, stage_profile
-    from .monte_carlo import MonteCarloStudy, run_samples, spec_chances
+    from .monte_carlo import MonteCarloStudy, SampleLog, run_samples, spec_chances, study_fingerprint
     from .results import write_atomic
     from .sensitivity import sensitivity_study
     from .sweep import load_document
@@ -109,33 +110,43 @@ def command_uncertainty(args: argparse.Namespace) -> int:
         return 3
     linear = linear_uncertainty(case, sensitivity_study(case, nominal))
     samples, clipped = draw_samples(linear.inputs, args.samples, args.seed)
+    document = load_document(case_path)
+    log = SampleLog(out / "samples.jsonl", study_fingerprint(document, linear.inputs, args.seed), samples)
+    if log.done:
+        console.print(f"resuming: {len(log.done)} of {args.samples} samples already solved in {log.path}")
     started = time.perf_counter()
     executor = study_executor(args.jobs, args.scheduler)
     try:
         with _progress(console) as progress:
-            task = progress.add_task(f"{args.samples} samples of {case.title or case_path.name}", total=args.samples)
+            task = progress.add_task(f"{args.samples} samples of {case.title or case_path.name}", total=args.samples,
+                                     completed=len(log.done))
 
             def advance(outcome) -> None:
+                log.append(outcome)
                 progress.advance(task)
                 progress.refresh()
 
-            outcomes = run_samples(load_document(case_path), str(case_path), linear.inputs, samples,
-                                   stage_profile(nominal), (nominal.reflux_ratio, nominal.boilup_ratio), executor,
-                                   progress=advance)
+            outcomes = run_samples(document, str(case_path), linear.inputs, samples, stage_profile(nominal),
+                                   (nominal.reflux_ratio, nominal.boilup_ratio), executor, progress=advance,
+                                   done=log.done)
     except KeyboardInterrupt:
         stop_workers(executor)
-        print("traystack: interrupted; nothing was written", file=sys.stderr)
+        log.close()
+        print(f"traystack: interrupted; the samples solved so far are kept in {log.path}: run the same command "
+              "again to solve only the rest", file=sys.stderr)
         return 130
     except BaseException:
         executor.shutdown(wait=False, cancel_futures=True)
+        log.close()
         raise
     executor.shutdown()
+    log.close()
     outputs = linear.views[0][1].outputs
     study = MonteCarloStudy(case.title, args.seed, linear.inputs, samples, clipped, outputs, tuple(outcomes), (),
                             time.perf_counter() - started)
     study = dataclasses.replace(study, chances=spec_chances(case, outputs, study.matrix("as_operated")))
-    document = {**study.as_json(), "linear": linear.as_json()}
-    written = [write_atomic(out / "uncertainty.json", json.dumps(document, indent=1) + "\n"),
+    record = {**study.as_json(), "linear": linear.as_json()}
+    written = [write_atomic(out / "uncertainty.json", json.dumps(record, indent=1) + "\n"),
                write_atomic(out / "uncertainty.csv", study.csv())]
     if any(o.statuses[1] == "converged" for o in study.outcomes):
         written.append(write_histograms(study, out / "uncertainty.png"))

@@ -11,7 +11,8 @@ the sample's values, the nominal profile), and each sample starts from the nomin
 never from another sample, so the study is the same in any order and on any number of workers.
 A sample that does not converge from the nominal profile gets the whole fallback chain
 (:func:`solver.warm_starts.solve_warm`); one that still does not converge is counted and
-listed, and left out of the percentiles (never dropped silently).
+listed, and left out of the percentiles (never dropped silently). :class:`SampleLog` writes the
+samples as they finish, so that an interrupted study resumes where it stopped.
 """
 
 from __future__ import annotations
@@ -36,8 +37,8 @@ from .thermo.package import ThermoPackage
 from .uncertainty import UncertainInput
 from .warm_starts import solve_warm
 
-__all__ = ["PERCENTILES", "VIEWS", "MonteCarloStudy", "SampleOutcome", "SpecChance", "run_samples", "solve_sample",
-           "spec_chances"]
+__all__ = ["PERCENTILES", "VIEWS", "MonteCarloStudy", "SampleLog", "SampleOutcome", "SpecChance", "run_samples",
+           "solve_sample", "spec_chances", "study_fingerprint"]
 
 #: The percentiles reported of every output.
 PERCENTILES = (2.5, 5.0, 25.0, 50.0, 75.0, 95.0, 97.5)
@@ -260,3 +261,67 @@ class MonteCarloStudy:
                 cells += [f"{x:.10g}" for x in outcome.outputs[v]] or [""] * len(self.outputs)
             writer.writerow(cells)
         return buffer.getvalue()
+
+
+def study_fingerprint(document: Mapping, inputs: Sequence[UncertainInput], seed: int) -> str:
+    """What a sample's outcome depends on besides its index: the case as read, the stated
+    inputs and the seed (a SHA-256 of them)."""
+    import hashlib
+    import json
+
+    text = json.dumps({"case": json_safe(document), "seed": seed,
+                       "inputs": [[i.parameter.key, i.deviation] for i in inputs]}, sort_keys=True)
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+class SampleLog:
+    """The samples of a study written as they finish, one JSON line each after a line with the
+    study's fingerprint, so that a study run again into the same folder solves only the samples
+    the log lacks (:func:`run_samples` ``done``). A log of another study is started afresh; a
+    line cut short by an interrupt, or whose values differ from the sample drawn, is ignored."""
+
+    def __init__(self, path, fingerprint: str, samples: np.ndarray) -> None:
+        import json
+        from pathlib import Path
+
+        self.path = Path(path)
+        self.done: dict[int, SampleOutcome] = {}
+        lines = self.path.read_text().splitlines() if self.path.exists() else []
+        if lines and lines[0] == json.dumps({"fingerprint": fingerprint}):
+            for line in lines[1:]:
+                try:
+                    record = json.loads(line)
+                    index = int(record["sample"])
+                    if index < len(samples) and np.array_equal(np.array(record["values"]), samples[index]):
+                        self.done[index] = SampleOutcome(
+                            index, tuple(record["statuses"]), tuple(record["messages"]),
+                            tuple(tuple(float(x) for x in view) for view in record["outputs"]),
+                            tuple(record["ratios"]), float(record["seconds"]))
+                except (ValueError, KeyError, TypeError, IndexError):
+                    continue
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        kept = [json.dumps({"fingerprint": fingerprint})] + [
+            self._line(o, samples[i]) for i, o in sorted(self.done.items())]
+        from .results import write_atomic
+
+        write_atomic(self.path, "\n".join(kept) + "\n")
+        self._samples = samples
+        self._handle = open(self.path, "a", encoding="utf-8")
+
+    @staticmethod
+    def _line(outcome: SampleOutcome, values: np.ndarray) -> str:
+        import json
+
+        return json.dumps({"sample": outcome.index, "values": [float(v) for v in values],
+                           "statuses": list(outcome.statuses), "messages": list(outcome.messages),
+                           "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
+                           "seconds": outcome.seconds})
+
+    def append(self, outcome: SampleOutcome) -> None:
+        if outcome.index in self.done:
+            return
+        self._handle.write(self._line(outcome, self._samples[outcome.index]) + "\n")
+        self._handle.flush()
+
+    def close(self) -> None:
+        self._handle.close()

@@ -62,3 +62,23 @@ def test_bad_uncertainty_value_exits_2(capsys, tmp_path):
     code, _, err = run(capsys, "uncertainty", case, "--samples", "3", "--out", tmp_path)
     assert code == 2
     assert "bad.toml" in err and "uncertainty.efficiency" in err and "lots" in err
+
+
+def test_interrupted_study_resumes_with_only_the_missing_samples(capsys, tmp_path):
+    common = ("uncertainty", UNCERTAIN, "--samples", "5", "--seed", "9", "--out", tmp_path)
+    assert run(capsys, *common)[0] == 0
+    full = json.loads((tmp_path / "uncertainty.json").read_text())
+    log = tmp_path / "samples.jsonl"
+    lines = log.read_text().splitlines()
+    assert len(lines) == 6  # the study's fingerprint and one line per sample
+    log.write_text("\n".join(lines[:3]) + "\n" + lines[3][:40])  # two samples kept, one cut short by an interrupt
+    code, out, err = run(capsys, *common)
+    assert code == 0, err
+    assert "resuming: 2 of 5 samples already solved" in out
+    again = json.loads((tmp_path / "uncertainty.json").read_text())
+    for data in (full, again):
+        data.pop("seconds")
+    assert again == full
+    assert len(log.read_text().splitlines()) == 6
+    code, out, _ = run(capsys, "uncertainty", UNCERTAIN, "--samples", "5", "--seed", "10", "--out", tmp_path)
+    assert code == 0 and "resuming" not in out  # another seed is another study: started afresh

@@ -42,6 +42,7 @@ def measure(executor, arguments, samples) -> tuple[float, MonteCarloStudy]:
 
 def main() -> None:
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 120
+    load = os.getloadavg()[0]  # other work on the machine: efficiencies below 1 may be its share
     case = load_case(CASE)
     nominal = simulate(case)
     linear = linear_uncertainty(case, sensitivity_study(case, nominal))
@@ -59,6 +60,7 @@ def main() -> None:
         runs["local_cluster_2"] = measure(client.get_executor(pure=False), arguments, samples)
     base = runs["local_1"][0]
     figures = {"samples": count, "seed": SEED, "case": CASE.name, "cpu_count": os.cpu_count(),
+               "load_average_1min_at_start": load, "load_average_1min_at_end": os.getloadavg()[0],
                "note": "the machine's 2 cores are shared with other work; efficiencies are indicative"}
     reference = runs["local_1"][1].as_json()
     for name, (seconds, study) in runs.items():

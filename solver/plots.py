@@ -36,6 +36,7 @@ __all__ = [
     "sweep_figure",
     "temperature_figure",
     "light_component",
+    "sample_histograms",
     "shortcut_layer",
     "shortcut_yx_diagram",
     "sweep_plot",
@@ -405,3 +406,29 @@ def sweep_plot(
 ) -> Path:
     """:func:`sweep_figure` saved as PNG in ``path``."""
     return _save(sweep_figure(x, x_label, groups, panels, title, failed_x), path)
+
+
+def sample_histograms(panels: Sequence[tuple[str, str, np.ndarray, float, float | None]], path: Path,
+                      title: str = "") -> Path:
+    """Histograms of the samples of a Monte Carlo study, one per ``(title, axis label, values,
+    nominal, target or None)``; the nominal value a black line, a spec target a red dashed one."""
+    columns = 3
+    rows = -(-len(panels) // columns)
+    figure, axes = plt.subplots(rows, columns, figsize=(4.2 * columns, 3.2 * rows), squeeze=False)
+    for ax, (panel_title, axis_label, values, nominal, target) in zip(axes.flat, panels):
+        values = np.asarray(values, dtype=float)
+        values = values[np.isfinite(values)]
+        if len(values):
+            ax.hist(values, bins=max(10, min(50, len(values) // 10)), color="tab:blue", alpha=0.8)
+        ax.axvline(nominal, color="black", linewidth=1, label="nominal")
+        if target is not None:
+            ax.axvline(target, color="tab:red", linestyle="--", label="spec")
+        ax.set_title(panel_title, fontsize=9)
+        ax.set_xlabel(axis_label)
+        ax.legend(fontsize=7)
+    for ax in list(axes.flat)[len(panels):]:
+        ax.set_visible(False)
+    if title:
+        figure.suptitle(title, fontsize=10)
+    figure.tight_layout()
+    return _save(figure, path)

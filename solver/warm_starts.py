@@ -25,6 +25,7 @@ from .newton import NewtonOptions
 from .results import Result
 from .shortening import stretch_profile
 from .streams import StageProfile
+from .thermo.package import ThermoPackage
 
 __all__ = ["SolvedPoint", "WarmSolve", "fitted_start", "nearest_profile", "solve_warm", "solved_point"]
 
@@ -61,17 +62,19 @@ def fitted_start(profile: StageProfile, stages: int) -> StageProfile:
     return stretch_profile(profile, np.linspace(1.0, float(profile.stage_count), stages))
 
 
-def solve_warm(case: Case, start: StageProfile | None, options: NewtonOptions | None = None) -> WarmSolve:
-    """Solve ``case`` from ``start`` (a neighbour's profile), and if Newton does not converge
-    from it (or there is none), by :func:`~solver.engine.simulate`'s whole fallback chain."""
+def solve_warm(case: Case, start: StageProfile | None, options: NewtonOptions | None = None, *,
+               thermo: ThermoPackage | None = None) -> WarmSolve:
+    """Solve ``case`` (with ``thermo`` if given, else the case's own) from ``start`` (a
+    neighbour's profile), and if Newton does not converge from it (or there is none), by
+    :func:`~solver.engine.simulate`'s whole fallback chain."""
     if start is not None and case.column is not None:
         try:
-            result = simulate(case, options=options, start=fitted_start(start, case.column.stages))
+            result = simulate(case, options=options, thermo=thermo, start=fitted_start(start, case.column.stages))
         except (ConvergenceError, ThermoError):
             result = None
         if result is not None and result.converged:
             return WarmSolve(result, True)
-    return WarmSolve(simulate(case, options=options), False)
+    return WarmSolve(simulate(case, options=options, thermo=thermo), False)
 
 
 def solved_point(coordinates: Sequence[float], result: Result) -> SolvedPoint:

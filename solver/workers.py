@@ -1,4 +1,5 @@
-"""Local workers for ``--jobs N``: a pool of processes (N > 1) or one worker thread, and how to
+"""Where a study runs: on a Dask cluster for ``--scheduler ADDRESS`` (:mod:`solver.distributed`),
+else local workers for ``--jobs N``: a pool of processes (N > 1) or one worker thread, and how to
 stop them at once on Ctrl-C (pending work cancelled, processes terminated, a busy thread
 interrupted), so that ``sweep`` and ``check`` can write what is done and exit within about a
 second."""
@@ -10,7 +11,7 @@ import signal
 import threading
 from concurrent.futures import Executor, ProcessPoolExecutor, ThreadPoolExecutor
 
-__all__ = ["local_executor", "stop_workers"]
+__all__ = ["local_executor", "stop_workers", "study_executor"]
 
 
 def local_executor(jobs: int) -> Executor:
@@ -18,6 +19,16 @@ def local_executor(jobs: int) -> Executor:
     if jobs > 1:
         return ProcessPoolExecutor(max_workers=jobs, initializer=_ignore_interrupts)
     return ThreadPoolExecutor(max_workers=1)
+
+
+def study_executor(jobs: int, scheduler: str | None = None) -> Executor:
+    """The executor of a study: a Dask cluster's when ``scheduler`` (its address) is given
+    (:mod:`solver.distributed`), local workers otherwise."""
+    if scheduler:
+        from .distributed import cluster_executor
+
+        return cluster_executor(scheduler)
+    return local_executor(jobs)
 
 
 def _ignore_interrupts() -> None:

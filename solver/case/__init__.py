@@ -37,6 +37,10 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   ``condenser_duty`` (< 0), ``reboiler_duty``, ``distillate``/``bottoms`` = {NAME = x},
   ``recovery`` = {NAME = {distillate|bottoms = r}}, ``stage_temperature`` = {stage, value} (or a
   list of them), ``reflux_temperature`` / ``reflux_subcooling`` (column settings, not specs).
+- ``[uncertainty]`` (optional, single column): standard uncertainties of inputs: ``efficiency``,
+  ``vapor_pressure`` = {NAME = relative}, ``[uncertainty.MODEL.I.J]`` with the pair's own term
+  keys or energy form and ``alpha``, ``[[uncertainty.feeds]]`` {``feed`` (number or name),
+  ``composition`` = {NAME = x}, ``temperature``} (``uncertainty_table.py``).
 - a network in place of ``[column]``: ``[[columns]]`` (``name`` and the [column] keys, with
   ``[columns.specs]`` in the [specs] vocabulary), ``[[connections]]`` {name, from = {column,
   stage, phase}, to = {column, stage}, flow (a rate or "free") or fraction, cooling or heating =
@@ -78,6 +82,7 @@ from solver.case.model import (
     SideDraw,
     Spec,
     StageDuty,
+    StandardUncertainty,
     ThermoOptions,
 )
 from solver.case.reader import MAX_FILE_BYTES, load_case, loads_case, parse_case
@@ -115,6 +120,7 @@ __all__ = [
     "SideDraw",
     "Spec",
     "StageDuty",
+    "StandardUncertainty",
     "ThermoOptions",
     "load_case",
     "loads_case",

@@ -30,6 +30,7 @@ __all__ = [
     "SideDraw",
     "Spec",
     "StageDuty",
+    "StandardUncertainty",
     "InteractionParameter",
     "ThermoOptions",
 ]
@@ -301,6 +302,19 @@ class Network:
 
 
 @dataclass(frozen=True)
+class StandardUncertainty:
+    """The standard uncertainty (one standard deviation, SI) of one input of the case, from the
+    optional ``[uncertainty]`` table. ``key`` names the input as the sensitivities do
+    (``column.efficiency``, ``thermo.nrtl.A.B.term_over_temperature.ij``,
+    ``feeds[1].temperature``, ``thermo.vapor_pressure_shift.A``); ``written`` is where the file
+    states it, for messages."""
+
+    key: str
+    value: float
+    written: str = ""
+
+
+@dataclass(frozen=True)
 class Case:
     title: str
     component_names: tuple[str, ...]
@@ -321,6 +335,8 @@ class Case:
     # A case of several columns ([[columns]], [[connections]], [[heat_links]]); None for the
     # single-column form, whose [column] is ``column``. Feed stages then count in their column.
     network: Network | None = None
+    # The optional [uncertainty] table: standard uncertainties of inputs (uncertainty_table.py).
+    uncertainties: tuple[StandardUncertainty, ...] = ()
 
     @property
     def component_count(self) -> int:

@@ -21,6 +21,7 @@ from solver.case.options_table import read_audit_table, read_check_table, read_d
 from solver.case.sizing_table import read_sizing_table
 from solver.case.specs_table import read_specs_table
 from solver.case.thermo_table import read_thermo_table
+from solver.case.uncertainty_table import read_uncertainty_table
 from solver.errors import CaseError
 
 __all__ = ["MAX_FILE_BYTES", "load_case", "loads_case", "parse_case"]
@@ -43,6 +44,7 @@ _TOP_FIELDS = {
     "display": Field(),
     "audit": Field(),
     "sizing": Field(),
+    "uncertainty": Field(),
 }
 
 
@@ -123,6 +125,8 @@ def _parse(data: Any, at: At) -> Case:
     display = read_display_table(data.get("display", {}), at.child("display"))
     audit = read_audit_table(data["audit"], names, at.child("audit")) if "audit" in data else None
     sizing = read_sizing_table(data["sizing"], names, at.child("sizing")) if "sizing" in data else None
+    uncertainties = (read_uncertainty_table(data["uncertainty"], names, thermo, column, feeds, at.child("uncertainty"))
+                     if "uncertainty" in data else ())
     return Case(
         title=title,
         component_names=names,
@@ -139,6 +143,7 @@ def _parse(data: Any, at: At) -> Case:
         raw=MappingProxyType(plain(data)),
         warnings=tuple(warnings),
         network=network,
+        uncertainties=uncertainties,
     )
 
 

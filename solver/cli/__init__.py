@@ -1,4 +1,5 @@
-"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``size``, ``check``, ``sweep``, ``components``.
+"""The ``traystack`` command: ``run``, ``shortcut``, ``audit``, ``size``, ``check``, ``sweep``, ``components``,
+``uncertainty``.
 
 Exit codes: 0 success; 1 ``check`` found drift or a case that failed, or ``audit`` or ``size``
 raised a flag at or above ``--fail-on``; 2 bad input or
@@ -31,6 +32,7 @@ try:
     from .run import add_run_command
     from .shortcut_audit import add_audit_command, add_shortcut_command
     from .size import add_size_command
+    from .uncertainty import add_uncertainty_command
 except KeyboardInterrupt:  # Ctrl-C while the command is still starting: nothing was written yet
     print("traystack: interrupted while starting; nothing was written", file=sys.stderr)
     raise SystemExit(130) from None
@@ -39,12 +41,12 @@ __all__ = ["CACHED_COMMANDS", "COMMANDS", "PLOT_FILES", "build_parser", "main"]
 
 
 #: The commands that fit property curves, and so take ``--no-cache``.
-CACHED_COMMANDS = ("run", "shortcut", "audit", "size", "check", "sweep")
+CACHED_COMMANDS = ("run", "shortcut", "audit", "size", "check", "sweep", "uncertainty")
 
 #: The commands in the order ``--help`` lists them.
 COMMANDS = (
     add_run_command, add_shortcut_command, add_audit_command, add_size_command, add_check_command, add_sweep_command,
-    add_components_command,
+    add_components_command, add_uncertainty_command,
 )
 
 

@@ -16,7 +16,7 @@ from rich.text import Text
 from .. import __version__
 from ..caution import CAUTION
 from ..errors import CaseError
-from .common import console_for, output_folder, positive_int, progress_bar, refuse_before_engine, styled
+from .common import add_scheduler_option, console_for, output_folder, positive_int, progress_bar, refuse_before_engine, styled
 
 __all__ = ["add_check_command", "add_sweep_command", "command_check", "command_sweep"]
 
@@ -36,13 +36,13 @@ def _moved(check) -> str:
 def command_check(args: argparse.Namespace) -> int:
     from ..regress import DRIFT, FAILED, NO_BASELINE, PASS, check_cases, find_cases, junit_xml
     from ..results import write_atomic
-    from ..workers import local_executor, stop_workers
+    from ..workers import stop_workers, study_executor
 
     console = console_for()
     cases = find_cases(args.cases)
     started = time.perf_counter()
     styles = {PASS: "green", DRIFT: "bold red", FAILED: "bold red", NO_BASELINE: "yellow"}
-    executor = local_executor(args.jobs)
+    executor = study_executor(args.jobs, args.scheduler)
     done: list = []
     try:
         with progress_bar(console) as progress:
@@ -98,6 +98,7 @@ def add_check_command(sub) -> None:
                        "are left untouched, a case that fails gets none")
     check.add_argument("--junit", metavar="FILE", help="also write a JUnit XML report to FILE")
     check.add_argument("--jobs", type=positive_int, default=1, metavar="N", help="run N cases at a time in worker processes (default 1)")
+    add_scheduler_option(check)
     check.set_defaults(handler=command_check)
 
 
@@ -109,7 +110,7 @@ def add_check_command(sub) -> None:
 def command_sweep(args: argparse.Namespace) -> int:
     from ..case import load_case
     from ..sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
-    from ..workers import local_executor, stop_workers
+    from ..workers import stop_workers, study_executor
 
     console = console_for()
     case_path = Path(args.case)
@@ -123,7 +124,8 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
-    executor = local_executor(args.jobs)
+    executor = study_executor(args.jobs or 1, args.scheduler)
+    chains = args.jobs or getattr(executor, "worker_threads", 1)  # warm-started runs in flight
     try:
         with progress_bar(console) as progress:
             task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
@@ -141,7 +143,7 @@ def command_sweep(args: argparse.Namespace) -> int:
                     last_write[0] = time.monotonic()
 
             result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance,
-                               warm=not args.cold, chains=args.jobs)
+                               warm=not args.cold, chains=chains)
     except SweepInterrupted as stop:
         stop_workers(executor)
         written = write_sweep_csv(stop.result, out / "sweep.csv")
@@ -194,7 +196,9 @@ def add_sweep_command(sub) -> None:
                        help="a key of the case file (dotted path, e.g. specs.reflux_ratio, feeds[0].stage, column.pressure.top) "
                        "and COUNT evenly spaced values; START and STOP may carry a unit ('feeds[0].temperature=40 degC:70 degC:4'); "
                        "give it twice for a grid")
-    sweep.add_argument("--jobs", type=positive_int, default=1, metavar="N", help="solve N points at a time in worker processes (default 1)")
+    sweep.add_argument("--jobs", type=positive_int, metavar="N", help="solve N points at a time in worker processes "
+                       "(default 1); with --scheduler, N runs of warm-started points at a time (default: the cluster's threads)")
+    add_scheduler_option(sweep)
     sweep.add_argument("--cold", action="store_true",
                        help="solve every point from the default start (by default each starts from its nearest solved neighbour)")
     sweep.add_argument("--out", metavar="DIR", help="output folder (default: CASE_sweep in the current folder)")

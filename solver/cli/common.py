@@ -14,7 +14,7 @@ from rich.text import Text
 
 from ..errors import CaseError
 
-__all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "finish_run", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
+__all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "add_scheduler_option", "finish_run", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
 
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
@@ -153,3 +153,8 @@ def finish_run(console: Console, out: Path, written: list[Path], result) -> int:
               "marked converged: false", file=sys.stderr)
         return 3
     return 0
+
+
+def add_scheduler_option(command) -> None:
+    command.add_argument("--scheduler", metavar="ADDRESS", help="run on the Dask cluster whose scheduler is at ADDRESS "
+                         "(tcp://HOST:PORT) in place of local worker processes; needs traystack[distributed]")

@@ -1,6 +1,8 @@
 """``traystack run CASE --sensitivity``: the sensitivities of the converged column on screen (the
 largest elasticities of the products and duties), all of them in result.json's ``sensitivity``
-section and in ``sensitivity.csv`` (:mod:`solver.sensitivity`)."""
+section and in ``sensitivity.csv`` (:mod:`solver.sensitivity`); when the case states
+uncertainties, their linear propagation (:mod:`solver.uncertainty`) in result.json's
+``uncertainty`` section."""
 
 from __future__ import annotations
 
@@ -63,4 +65,12 @@ def run_sensitivities(case, result, out: Path, console):
     seconds = study.as_specified.seconds + study.as_operated.seconds
     console.print(f"sensitivities of {len(study.as_specified.outputs)} outputs to {len(study.as_specified.inputs)} "
                   f"inputs in {seconds:.2f} s; all of them in result.json (sensitivity) and {path.name}")
-    return result.with_extra(sensitivity=study)
+    if not case.uncertainties:
+        return result.with_extra(sensitivity=study)
+    from ..uncertainty import linear_uncertainty
+    from .uncertainty import linear_table
+
+    linear = linear_uncertainty(case, study)
+    console.print(linear_table(linear))
+    console.print("the standard uncertainty of every output is in result.json (uncertainty)")
+    return result.with_extra(sensitivity=study, uncertainty=linear)

@@ -1,0 +1,327 @@
+"""The Monte Carlo study of ``traystack uncertainty``: every sample of the stated uncertainties
+(:func:`solver.uncertainty.draw_samples`) solved warm-started from the nominal solution, in two
+views (as :mod:`solver.sensitivity` has them): *as specified*, the case's own specs held (what
+the design needs: duties, flows, the reflux or boilup it takes), and *as operated*, the
+nominal solution's reflux ratio and boilup ratio held (what the products become in a column run
+as designed; the chance that each product spec is met).
+
+Samples go through any :class:`concurrent.futures.Executor` (local worker processes, or the
+executor of a Dask ``Client``); what goes to a worker is plain data (the case's TOML document,
+the sample's values, the nominal profile), and each sample starts from the nominal solution,
+never from another sample, so the study is the same in any order and on any number of workers.
+A sample that does not converge from the nominal profile gets the whole fallback chain
+(:func:`solver.warm_starts.solve_warm`); one that still does not converge is counted and
+listed, and left out of the percentiles (never dropped silently). :class:`SampleLog` writes the
+samples as they finish, so that an interrupted study resumes where it stopped.
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import io
+import time
+from concurrent.futures import FIRST_COMPLETED, Executor, wait
+from dataclasses import dataclass
+from typing import Any, Callable, Mapping, Sequence
+
+import numpy as np
+
+from .case import Case, Spec, parse_case
+from .engine import build_system, stage_profile
+from .results import json_safe
+from .sensitivity import OutputQuantity, output_values
+from .sensitivity_inputs import choose_inputs
+from .streams import StageProfile
+from .thermo.package import ThermoPackage
+from .uncertainty import UncertainInput
+from .warm_starts import solve_warm
+
+__all__ = ["PERCENTILES", "VIEWS", "MonteCarloStudy", "SampleLog", "SampleOutcome", "SpecChance", "run_samples",
+           "solve_sample", "spec_chances", "study_fingerprint"]
+
+#: The percentiles reported of every output.
+PERCENTILES = (2.5, 5.0, 25.0, 50.0, 75.0, 95.0, 97.5)
+VIEWS = ("as_specified", "as_operated")
+
+
+@dataclass(frozen=True)
+class SampleOutcome:
+    """One sample solved in both views: per view ``status`` ("converged", "not converged" or
+    "failed"), ``message`` and the outputs (SI, in the order of the nominal outputs; empty
+    unless converged), and the ratios the as-specified solution has."""
+
+    index: int
+    statuses: tuple[str, str]
+    messages: tuple[str, str]
+    outputs: tuple[tuple[float, ...], tuple[float, ...]]
+    ratios: tuple[float | None, float | None] = (None, None)
+    seconds: float = 0.0
+
+    @property
+    def converged(self) -> bool:
+        return all(status == "converged" for status in self.statuses)
+
+
+def _operated(case: Case, ratios: tuple[float | None, float | None]) -> Case:
+    specs = [Spec(kind, value, key=f"operation.{kind}") for kind, value in zip(("reflux_ratio", "boilup_ratio"), ratios)
+             if value is not None]
+    return dataclasses.replace(case, specs=tuple(specs))
+
+
+def _solve_view(case: Case, thermo: ThermoPackage, start: StageProfile):
+    try:
+        result = solve_warm(case, start, thermo=thermo).result
+    except Exception as exc:  # a sample that cannot be solved is one failed sample
+        return "failed", f"{type(exc).__name__}: {exc}", (), None
+    if not result.converged:
+        return "not converged", result.message, (), None
+    system = build_system(case, thermo)
+    values = output_values(system, system.unknowns(stage_profile(result)))
+    return "converged", "", tuple(float(v) for v in values), result
+
+
+def solve_sample(document: Mapping, source_file: str, index: int, keys: Sequence[str], values: Sequence[float],
+                 start: StageProfile, ratios: tuple[float | None, float | None]) -> SampleOutcome:
+    """Solve sample ``index``: the case of the TOML ``document`` with each input ``keys[m]`` set
+    to ``values[m]`` (applied in the order of :func:`~solver.sensitivity_inputs.choose_inputs`),
+    from the nominal ``start``, as specified and with the nominal ``ratios`` (reflux, boilup)
+    held. Runs in a worker; never raises."""
+    started = time.perf_counter()
+    try:
+        case = parse_case(document, source_file=source_file)
+        thermo = ThermoPackage.from_case(case)
+        moved = dict(zip(keys, values))
+        for parameter in choose_inputs(case):
+            if parameter.key in moved:
+                case, thermo = parameter.apply(case, thermo, float(moved[parameter.key]))
+    except Exception as exc:
+        message = f"{type(exc).__name__}: {exc}"
+        return SampleOutcome(index, ("failed", "failed"), (message, message), ((), ()), seconds=time.perf_counter() - started)
+    specified = _solve_view(case, thermo, start)
+    operated = _solve_view(_operated(case, ratios), thermo, start)
+    result = specified[3]
+    return SampleOutcome(
+        index, (specified[0], operated[0]), (specified[1], operated[1]), (specified[2], operated[2]),
+        (result.reflux_ratio, result.boilup_ratio) if result is not None else (None, None),
+        time.perf_counter() - started,
+    )
+
+
+def run_samples(document: Mapping, source_file: str, inputs: Sequence[UncertainInput], samples: np.ndarray,
+                start: StageProfile, ratios: tuple[float | None, float | None], executor: Executor, *,
+                progress: Callable[[SampleOutcome], None] | None = None,
+                done: Mapping[int, SampleOutcome] | None = None) -> list[SampleOutcome]:
+    """Every sample (a row of ``samples``) solved through ``executor``; the outcomes in sample
+    order. ``done`` holds samples already solved (a resumed study); they are not solved again."""
+    keys = [item.parameter.key for item in inputs]
+    outcomes: dict[int, SampleOutcome] = dict(done or {})
+    futures = {executor.submit(solve_sample, document, source_file, index, keys, tuple(float(v) for v in row), start,
+                               ratios): index
+               for index, row in enumerate(samples) if index not in outcomes}
+    try:
+        while futures:
+            finished, _ = wait(futures, return_when=FIRST_COMPLETED)
+            for future in finished:
+                index = futures.pop(future)
+                try:
+                    outcome = future.result()
+                except Exception as exc:  # a worker that died is one failed sample
+                    message = f"{type(exc).__name__}: {exc}"
+                    outcome = SampleOutcome(index, ("failed", "failed"), (message, message), ((), ()))
+                outcomes[index] = outcome
+                if progress is not None:
+                    progress(outcome)
+    except KeyboardInterrupt:
+        for future in futures:
+            future.cancel()
+        raise
+    return [outcomes[index] for index in sorted(outcomes)]
+
+
+@dataclass(frozen=True)
+class SpecChance:
+    """The chance that a product spec is met in the as-operated view: ``sense`` "at least" (a
+    purity or a recovery) or "at most" (an impurity); ``met`` of ``converged`` samples."""
+
+    key: str
+    output: str
+    target: float
+    sense: str
+    met: int
+    converged: int
+
+    @property
+    def probability(self) -> float:
+        return self.met / self.converged if self.converged else float("nan")
+
+
+def spec_chances(case: Case, outputs: Sequence[OutputQuantity], operated: np.ndarray) -> tuple[SpecChance, ...]:
+    """The chance of meeting every product-composition and recovery spec of ``case`` in the
+    converged as-operated samples (rows of ``operated``, NaN rows for unconverged ones)."""
+    keys = [o.key for o in outputs]
+    rows = operated[~np.isnan(operated).any(axis=1)] if operated.size else operated
+    chances = []
+    for spec in case.specs:
+        if spec.kind == "mole_fraction":
+            output = f"{spec.product}.mole_fraction.{spec.component}"
+            largest = max((o for o in outputs if o.key.startswith(f"{spec.product}.mole_fraction.")), key=lambda o: o.value)
+            sense = "at least" if largest.key == output else "at most"
+        elif spec.kind == "recovery":
+            output, sense = f"{spec.product}.recovery.{spec.component}", "at least"
+        else:
+            continue
+        column = rows[:, keys.index(output)] if len(rows) else np.array([])
+        met = column >= spec.value if sense == "at least" else column <= spec.value
+        chances.append(SpecChance(spec.key, output, spec.value, sense, int(np.sum(met)), len(column)))
+    return tuple(chances)
+
+
+@dataclass(frozen=True)
+class MonteCarloStudy:
+    """A Monte Carlo study: the stated inputs, the samples drawn (``seed``), the nominal
+    outputs, every sample's outcome, and the figures drawn from them."""
+
+    title: str
+    seed: int
+    inputs: tuple[UncertainInput, ...]
+    samples: np.ndarray
+    clipped: int
+    outputs: tuple[OutputQuantity, ...]
+    outcomes: tuple[SampleOutcome, ...]
+    chances: tuple[SpecChance, ...]
+    seconds: float = 0.0
+
+    def matrix(self, view: str) -> np.ndarray:
+        """Outputs of every sample in ``view`` (rows), NaN where it did not converge."""
+        v = VIEWS.index(view)
+        table = np.full((len(self.outcomes), len(self.outputs)), np.nan)
+        for row, outcome in enumerate(self.outcomes):
+            if outcome.statuses[v] == "converged":
+                table[row] = outcome.outputs[v]
+        return table
+
+    def unconverged(self, view: str) -> list[SampleOutcome]:
+        v = VIEWS.index(view)
+        return [o for o in self.outcomes if o.statuses[v] != "converged"]
+
+    def statistics(self, view: str) -> dict[str, np.ndarray]:
+        """Mean, standard deviation (n - 1) and :data:`PERCENTILES` of every output over the
+        converged samples of ``view``."""
+        table = self.matrix(view)
+        rows = table[~np.isnan(table).any(axis=1)]
+        if not len(rows):
+            empty = np.full(len(self.outputs), np.nan)
+            return {"mean": empty, "standard_deviation": empty, **{f"p{p:g}": empty for p in PERCENTILES}}
+        return {"mean": rows.mean(axis=0),
+                "standard_deviation": rows.std(axis=0, ddof=1) if len(rows) > 1 else np.zeros(len(self.outputs)),
+                **{f"p{p:g}": np.percentile(rows, p, axis=0) for p in PERCENTILES}}
+
+    def as_json(self) -> dict[str, Any]:
+        views = {}
+        for view in VIEWS:
+            stats = self.statistics(view)
+            views[view] = {
+                "converged": len(self.outcomes) - len(self.unconverged(view)),
+                "not_converged": [{"sample": o.index, "status": o.statuses[VIEWS.index(view)],
+                                   "message": o.messages[VIEWS.index(view)]} for o in self.unconverged(view)],
+                "outputs": [{"key": o.key, "label": o.label, "unit": o.unit, "nominal": o.value,
+                             **{name: values[k] for name, values in stats.items()}}
+                            for k, o in enumerate(self.outputs)],
+            }
+        return json_safe({
+            "schema": "traystack-monte-carlo/1",
+            "title": self.title,
+            "method": "Monte Carlo propagation (JCGM 101:2008): independent normal inputs, each sample solved from "
+                      "the nominal solution",
+            "seed": self.seed,
+            "samples": len(self.outcomes),
+            "clipped_draws": self.clipped,
+            "seconds": self.seconds,
+            "inputs": [{"key": i.parameter.key, "label": i.parameter.label, "value": i.parameter.value,
+                        "unit": i.parameter.unit, "standard_uncertainty": i.deviation} for i in self.inputs],
+            "views": {"as_specified": "the case's own specs held",
+                      "as_operated": "the nominal solution's reflux ratio and boilup ratio held"},
+            "spec_chances": [{"spec": c.key, "output": c.output, "target": c.target, "sense": c.sense, "met": c.met,
+                              "converged": c.converged, "probability": c.probability} for c in self.chances],
+            **views,
+        })
+
+    def csv(self) -> str:
+        """One row per sample: its input values, each view's status and outputs."""
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerow(["sample", *[i.parameter.key for i in self.inputs], "reflux_ratio", "boilup_ratio",
+                         *[f"{view}.status" for view in VIEWS],
+                         *[f"{view}.{o.key}" for view in VIEWS for o in self.outputs]])
+        for outcome, row in zip(self.outcomes, self.samples):
+            cells = [outcome.index, *[f"{v:.10g}" for v in row],
+                     *["" if r is None else f"{r:.10g}" for r in outcome.ratios], *outcome.statuses]
+            for v in range(len(VIEWS)):
+                cells += [f"{x:.10g}" for x in outcome.outputs[v]] or [""] * len(self.outputs)
+            writer.writerow(cells)
+        return buffer.getvalue()
+
+
+def study_fingerprint(document: Mapping, inputs: Sequence[UncertainInput], seed: int) -> str:
+    """What a sample's outcome depends on besides its index: the case as read, the stated
+    inputs and the seed (a SHA-256 of them)."""
+    import hashlib
+    import json
+
+    text = json.dumps({"case": json_safe(document), "seed": seed,
+                       "inputs": [[i.parameter.key, i.deviation] for i in inputs]}, sort_keys=True)
+    return hashlib.sha256(text.encode()).hexdigest()
+
+
+class SampleLog:
+    """The samples of a study written as they finish, one JSON line each after a line with the
+    study's fingerprint, so that a study run again into the same folder solves only the samples
+    the log lacks (:func:`run_samples` ``done``). A log of another study is started afresh; a
+    line cut short by an interrupt, or whose values differ from the sample drawn, is ignored."""
+
+    def __init__(self, path, fingerprint: str, samples: np.ndarray) -> None:
+        import json
+        from pathlib import Path
+
+        self.path = Path(path)
+        self.done: dict[int, SampleOutcome] = {}
+        lines = self.path.read_text().splitlines() if self.path.exists() else []
+        if lines and lines[0] == json.dumps({"fingerprint": fingerprint}):
+            for line in lines[1:]:
+                try:
+                    record = json.loads(line)
+                    index = int(record["sample"])
+                    if index < len(samples) and np.array_equal(np.array(record["values"]), samples[index]):
+                        self.done[index] = SampleOutcome(
+                            index, tuple(record["statuses"]), tuple(record["messages"]),
+                            tuple(tuple(float(x) for x in view) for view in record["outputs"]),
+                            tuple(record["ratios"]), float(record["seconds"]))
+                except (ValueError, KeyError, TypeError, IndexError):
+                    continue
+        self.path.parent.mkdir(parents=True, exist_ok=True)
+        kept = [json.dumps({"fingerprint": fingerprint})] + [
+            self._line(o, samples[i]) for i, o in sorted(self.done.items())]
+        from .results import write_atomic
+
+        write_atomic(self.path, "\n".join(kept) + "\n")
+        self._samples = samples
+        self._handle = open(self.path, "a", encoding="utf-8")
+
+    @staticmethod
+    def _line(outcome: SampleOutcome, values: np.ndarray) -> str:
+        import json
+
+        return json.dumps({"sample": outcome.index, "values": [float(v) for v in values],
+                           "statuses": list(outcome.statuses), "messages": list(outcome.messages),
+                           "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
+                           "seconds": outcome.seconds})
+
+    def append(self, outcome: SampleOutcome) -> None:
+        if outcome.index in self.done:
+            return
+        self._handle.write(self._line(outcome, self._samples[outcome.index]) + "\n")
+        self._handle.flush()
+
+    def close(self) -> None:
+        self._handle.close()

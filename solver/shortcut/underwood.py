@@ -53,13 +53,29 @@ def underwood_roots(
             continue
         if low is not None and upper <= low:
             continue
-        gap = _ROOT_GAP * (upper - lower)
 
         def residual(theta: float) -> float:
             return float(_feed_function(alpha[present], z[present], theta) - target)
 
-        roots.append(brentq(residual, lower + gap, upper - gap, xtol=1e-15 * max(1.0, upper), rtol=1e-15, maxiter=500))
+        below, above = _bracket(residual, lower, upper)
+        roots.append(brentq(residual, below, above, xtol=1e-15 * max(1.0, upper), rtol=1e-15, maxiter=500))
     return np.array(roots)
+
+
+def _bracket(residual, lower: float, upper: float) -> tuple[float, float]:
+    """Points strictly inside the poles ``lower`` < ``upper`` where the feed function minus its
+    target is negative and positive (it rises from -inf to +inf between them): first at a
+    fraction ``_ROOT_GAP`` of the interval from each pole, then closer, down to the next
+    floating-point number, for a root that lies nearer a pole than that."""
+    width = upper - lower
+    nearest_below, nearest_above = np.nextafter(lower, upper), np.nextafter(upper, lower)
+    below = max(lower + _ROOT_GAP * width, nearest_below)
+    above = min(upper - _ROOT_GAP * width, nearest_above)
+    while residual(below) > 0.0 and below > nearest_below:
+        below = max(lower + (below - lower) / 64.0, nearest_below)
+    while residual(above) < 0.0 and above < nearest_above:
+        above = min(upper - (upper - above) / 64.0, nearest_above)
+    return float(below), float(above)
 
 
 def shiras_recoveries(

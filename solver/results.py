@@ -29,7 +29,7 @@ from typing import Any, Mapping, Protocol
 
 import numpy as np
 
-from .case import Spec, StageDuty
+from .case import Spec, StageDuty, molar_mass_of
 from .streams import FlashedFeed
 from .thermo.liquid_split import LiquidSplitCheck
 
@@ -158,6 +158,12 @@ class Result:
         """The Murphree vapor efficiency of each stage as the case states it (the solved
         column's, ``efficiency``, when the case does not record them)."""
         return np.asarray(self.case.get("column", {}).get("efficiencies") or self.efficiency, dtype=float)
+
+    @property
+    def molar_masses(self) -> np.ndarray:
+        """Molar mass [kg/mol] of each component (the case's component data, else CoolProp's)."""
+        data = self.case.get("component_data", {})
+        return np.array([data[name]["molar_mass"] if name in data else molar_mass_of(name) for name in self.components])
 
     @property
     def case_warnings(self) -> tuple[str, ...]:

@@ -1,4 +1,6 @@
-"""Figures of a column solution (matplotlib, Agg backend, PNG files written atomically).
+"""Figures of a column solution: functions that return matplotlib :class:`Figure` objects
+(made without pyplot, so a notebook shows them and no window or backend is needed), and thin
+savers that write one as PNG, atomically (:func:`save_figure`).
 
 Profiles against stage number (temperature, internal liquid and vapor flows, liquid
 compositions), for a binary the y-x diagram, and the figure of a parameter sweep. The y-x
@@ -14,41 +16,55 @@ import io
 from pathlib import Path
 from typing import Callable, Mapping, Sequence
 
-import matplotlib
+import numpy as np
+from matplotlib.axes import Axes
+from matplotlib.figure import Figure
+from matplotlib.ticker import MaxNLocator
 
-matplotlib.use("Agg")
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-from matplotlib.ticker import MaxNLocator  # noqa: E402
-
-from .results import Result, write_atomic  # noqa: E402
-from .thermo.flash import bubble_temperature  # noqa: E402
+from .results import Result, write_atomic
+from .thermo.flash import bubble_temperature
 
 __all__ = [
     "YXLayer",
+    "cmo_flow_figure",
     "cmo_flow_profiles",
+    "composition_figure",
     "composition_profiles",
     "equilibrium_curve",
+    "flow_figure",
     "flow_profiles",
     "light_component",
+    "new_figure",
+    "run_figures",
+    "save_figure",
     "shortcut_layer",
     "shortcut_yx_diagram",
+    "shortcut_yx_figure",
+    "sweep_figure",
     "sweep_plot",
+    "temperature_figure",
     "temperature_profile",
     "write_all",
     "yx_diagram",
+    "yx_figure",
 ]
 
 #: Something that draws on the y-x diagram: called as ``layer(axes, light)``, ``light`` being the
 #: index of the component whose mole fractions are on the axes.
-YXLayer = Callable[[plt.Axes, int], None]
+YXLayer = Callable[[Axes, int], None]
 
 
-def _save(figure, path: Path) -> Path:
+def new_figure(figsize: tuple[float, float]) -> tuple[Figure, Axes]:
+    """A figure with one axes, outside pyplot's figure manager (nothing to close)."""
+    figure = Figure(figsize=figsize)
+    return figure, figure.subplots()
+
+
+def save_figure(figure: Figure, path: str | Path) -> Path:
+    """Write ``figure`` as a PNG file at ``path`` (atomically); returns the path."""
     buffer = io.BytesIO()
     figure.savefig(buffer, format="png", dpi=110, bbox_inches="tight")
-    plt.close(figure)
-    return write_atomic(path, buffer.getvalue())
+    return write_atomic(Path(path), buffer.getvalue())
 
 
 def _stage_axis(ax, count: int) -> None:
@@ -58,17 +74,18 @@ def _stage_axis(ax, count: int) -> None:
     ax.grid(True, alpha=0.3)
 
 
-def temperature_profile(result: Result, path: Path) -> Path:
+def temperature_figure(result: Result) -> Figure:
+    """Stage temperatures (°C) against stage number."""
     stages = np.arange(1, result.stage_count + 1)
-    figure, ax = plt.subplots(figsize=(5, 6))
+    figure, ax = new_figure((5, 6))
     ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3)
     ax.set_xlabel("temperature / °C")
     _stage_axis(ax, result.stage_count)
     ax.set_title(result.title, fontsize=9)
-    return _save(figure, path)
+    return figure
 
 
-def flow_profiles(result: Result, path: Path) -> Path:
+def flow_figure(result: Result) -> Figure:
     """Liquid and vapor flows leaving each tray (kmol/h); the condenser and reboiler slots
     hold products and are left out so the internal flows can be read."""
     stages = np.arange(1, result.stage_count + 1)
@@ -77,7 +94,7 @@ def flow_profiles(result: Result, path: Path) -> Path:
         inner[0] = False
     if result.reboiler != "none":
         inner[-1] = False
-    figure, ax = plt.subplots(figsize=(5, 6))
+    figure, ax = new_figure((5, 6))
     to_kmol_h = 3.6
     ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", markersize=3, label="liquid L")
     ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", markersize=3, label="vapor V")
@@ -85,19 +102,32 @@ def flow_profiles(result: Result, path: Path) -> Path:
     _stage_axis(ax, result.stage_count)
     ax.legend(loc="best", fontsize=8)
     ax.set_title("internal flows (rigorous)", fontsize=9)
-    return _save(figure, path)
+    return figure
 
 
-def composition_profiles(result: Result, path: Path) -> Path:
+def composition_figure(result: Result) -> Figure:
+    """Liquid mole fractions against stage number."""
     stages = np.arange(1, result.stage_count + 1)
-    figure, ax = plt.subplots(figsize=(5, 6))
+    figure, ax = new_figure((5, 6))
     for i, name in enumerate(result.components):
         ax.plot(result.x[:, i], stages, "-", label=f"x {name}")
     ax.set_xlabel("liquid mole fraction")
     ax.set_xlim(-0.02, 1.02)
     _stage_axis(ax, result.stage_count)
     ax.legend(loc="best", fontsize=8)
-    return _save(figure, path)
+    return figure
+
+
+def temperature_profile(result: Result, path: Path) -> Path:
+    return save_figure(temperature_figure(result), path)
+
+
+def flow_profiles(result: Result, path: Path) -> Path:
+    return save_figure(flow_figure(result), path)
+
+
+def composition_profiles(result: Result, path: Path) -> Path:
+    return save_figure(composition_figure(result), path)
 
 
 def light_component(result: Result) -> int:
@@ -144,6 +174,11 @@ def _yx_frame(ax, name: str) -> None:
 def yx_diagram(
     result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True
 ) -> Path:
+    """:func:`yx_figure` written to ``path``."""
+    return save_figure(yx_figure(result, thermo=thermo, layers=layers, rigorous_steps=rigorous_steps), path)
+
+
+def yx_figure(result: Result, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True) -> Figure:
     """The y-x diagram of a binary column: the equilibrium curve at the mean column pressure
     (when ``thermo`` is given), the rigorous stages (x_j, y_j), the rigorous operating curve
     (x_j, y_j+1) — straight only under constant molar overflow — and (``rigorous_steps``) the
@@ -152,7 +187,7 @@ def yx_diagram(
         raise ValueError(f"a y-x diagram needs a binary, not {len(result.components)} components")
     light = light_component(result)
     x, y = result.x[:, light], result.y[:, light]
-    figure, ax = plt.subplots(figsize=(6, 6))
+    figure, ax = new_figure((6, 6))
     ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
     if thermo is not None:
         pressure = float(np.mean(result.pressure))
@@ -178,7 +213,7 @@ def yx_diagram(
         layer(ax, light)
     _yx_frame(ax, result.components[light])
     ax.set_title(result.title, fontsize=9)
-    return _save(figure, path)
+    return figure
 
 
 def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bool = True, pinch: bool = True,
@@ -189,7 +224,7 @@ def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bo
     Ponchon-Savarit), the operating line at minimum reflux through its pinch (``pinch``) and
     (``steps``) its staircase. Drawn beneath the rigorous points."""
 
-    def draw(ax: plt.Axes, light: int) -> None:
+    def draw(ax: Axes, light: int) -> None:
         method = design.method
         if curve:
             ax.plot(design.curve.x, design.curve.y, color="tab:blue", linewidth=1.2, zorder=1.4,
@@ -226,9 +261,14 @@ def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bo
 
 
 def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence[YXLayer] = ()) -> Path:
+    """:func:`shortcut_yx_figure` written to ``path``."""
+    return save_figure(shortcut_yx_figure(design, title=title, layers=layers), path)
+
+
+def shortcut_yx_figure(design, *, title: str = "", layers: Sequence[YXLayer] = ()) -> Figure:
     """The McCabe-Thiele diagram of a binary shortcut design alone: equilibrium curve,
     diagonal, q-line, operating lines, steps; then each of ``layers``."""
-    figure, ax = plt.subplots(figsize=(6, 6))
+    figure, ax = new_figure((6, 6))
     ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
     shortcut_layer(design)(ax, 0)
     for layer in layers:
@@ -240,7 +280,7 @@ def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence
         + f"R = {design.reflux_ratio:.4g}, R_min = {pinch.ratio:.4g} ({pinch.pinch} pinch), N_min = {design.minimum_stages:.3g}",
         fontsize=9,
     )
-    return _save(figure, path)
+    return figure
 
 
 def _stage_steps(values: np.ndarray, stages: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -250,6 +290,11 @@ def _stage_steps(values: np.ndarray, stages: np.ndarray) -> tuple[np.ndarray, np
 
 
 def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarray, path: Path) -> Path:
+    """:func:`cmo_flow_figure` written to ``path``."""
+    return save_figure(cmo_flow_figure(result, liquid_cmo, vapor_cmo), path)
+
+
+def cmo_flow_figure(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarray) -> Figure:
     """Liquid and vapor flows leaving each tray (kmol/h), rigorous (markers) against their
     constant-molar-overflow values (dashed steps); the condenser's and reboiler's slots hold
     products and are left out."""
@@ -258,7 +303,7 @@ def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndar
     inner[0] = result.condenser == "none"
     inner[-1] = result.reboiler == "none"
     to_kmol_h = 3.6
-    figure, ax = plt.subplots(figsize=(5.5, 6))
+    figure, ax = new_figure((5.5, 6))
     ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", color="tab:blue", markersize=3,
             label="liquid L, rigorous")
     ax.plot(*_stage_steps(np.asarray(liquid_cmo)[inner] * to_kmol_h, stages[inner]), "--", color="tab:blue",
@@ -271,21 +316,27 @@ def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndar
     _stage_axis(ax, result.stage_count)
     ax.legend(loc="best", fontsize=8)
     ax.set_title("internal flows: rigorous against constant molar overflow", fontsize=9)
-    return _save(figure, path)
+    return figure
+
+
+def run_figures(result: Result, *, thermo=None, yx_layers: Sequence[YXLayer] = ()) -> dict[str, Figure]:
+    """Every figure of a run by name: temperature, flows, compositions and, for a binary, yx
+    (with the equilibrium curve when ``thermo`` is given)."""
+    figures = {
+        "temperature": temperature_figure(result),
+        "flows": flow_figure(result),
+        "compositions": composition_figure(result),
+    }
+    if len(result.components) == 2:
+        figures["yx"] = yx_figure(result, thermo=thermo, layers=yx_layers)
+    return figures
 
 
 def write_all(result: Result, folder: Path, *, thermo=None, yx_layers: Sequence[YXLayer] = ()) -> list[Path]:
-    """Every figure of a run into ``folder``: temperature.png, flows.png, compositions.png and,
-    for a binary, yx.png (with the equilibrium curve when ``thermo`` is given)."""
+    """Every figure of a run (:func:`run_figures`) into ``folder`` as NAME.png."""
     folder = Path(folder)
-    written = [
-        temperature_profile(result, folder / "temperature.png"),
-        flow_profiles(result, folder / "flows.png"),
-        composition_profiles(result, folder / "compositions.png"),
-    ]
-    if len(result.components) == 2:
-        written.append(yx_diagram(result, folder / "yx.png", thermo=thermo, layers=yx_layers))
-    return written
+    return [save_figure(figure, folder / f"{name}.png")
+            for name, figure in run_figures(result, thermo=thermo, yx_layers=yx_layers).items()]
 
 
 def sweep_plot(
@@ -297,6 +348,18 @@ def sweep_plot(
     title: str = "",
     failed_x: Sequence[float] = (),
 ) -> Path:
+    """:func:`sweep_figure` written to ``path``."""
+    return save_figure(sweep_figure(x, x_label, groups, panels, title, failed_x), path)
+
+
+def sweep_figure(
+    x: np.ndarray,
+    x_label: str,
+    groups: Mapping[str, Mapping[str, np.ndarray]],
+    panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
+    title: str = "",
+    failed_x: Sequence[float] = (),
+) -> Figure:
     """Results of a parameter sweep against the first varied key.
 
     ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
@@ -304,7 +367,8 @@ def sweep_plot(
     is one ``(axis label, [(column, line label), ...])`` per subplot; ``failed_x`` are marked
     with dotted vertical lines."""
     x = np.asarray(x, dtype=float)
-    figure, axes = plt.subplots(len(panels), 1, figsize=(6.5, 2.8 * len(panels)), sharex=True, squeeze=False)
+    figure = Figure(figsize=(6.5, 2.8 * len(panels)))
+    axes = figure.subplots(len(panels), 1, sharex=True, squeeze=False)
     for ax, (axis_label, columns) in zip(axes[:, 0], panels):
         for group, values in groups.items():
             for column, line_label in columns:
@@ -320,4 +384,4 @@ def sweep_plot(
         axes[-1, 0].xaxis.set_major_locator(MaxNLocator(integer=True))
     if title:
         axes[0, 0].set_title(title, fontsize=9)
-    return _save(figure, path)
+    return figure

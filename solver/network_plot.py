@@ -1,4 +1,5 @@
-"""A picture of a column network's solution (matplotlib, Agg backend, PNG written atomically):
+"""A picture of a column network's solution (a matplotlib Figure made without pyplot, saved as
+PNG atomically by :func:`solver.plots.save_figure`):
 each column a box spanning its stages (stage 1 at the top, condenser and reboiler marked), each
 connection an arrow from its stage to its destination labelled with its name and rate, feeds
 and products as arrows in and out with their rates; the temperature profile of every column
@@ -7,18 +8,14 @@ join; the columns stand side by side in file order."""
 
 from __future__ import annotations
 
-import io
 from pathlib import Path
 
-import matplotlib
+import numpy as np
+from matplotlib.figure import Figure
+from matplotlib.patches import FancyArrowPatch, Rectangle
 
-matplotlib.use("Agg")
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-from matplotlib.patches import FancyArrowPatch, Rectangle  # noqa: E402
-
-from .network_results import NetworkResult  # noqa: E402
-from .results import write_atomic  # noqa: E402
+from .network_results import NetworkResult
+from .plots import save_figure
 
 __all__ = ["network_figure"]
 
@@ -34,8 +31,8 @@ def network_figure(result: NetworkResult, path: Path) -> Path:
     """Draw the network of ``result`` (see the module docstring) into ``path`` (PNG)."""
     count = len(result.columns)
     tallest = max(c["stages"] for c in result.columns)
-    figure, (ax, ax_T) = plt.subplots(1, 2, figsize=(4.0 + 3.0 * count, 0.18 * tallest + 3.0),
-                                      gridspec_kw={"width_ratios": [2.0 + count, 2.0]})
+    figure = Figure(figsize=(4.0 + 3.0 * count, 0.18 * tallest + 3.0))
+    ax, ax_T = figure.subplots(1, 2, gridspec_kw={"width_ratios": [2.0 + count, 2.0]})
     for column in result.columns:
         x, _ = _position(result, column["name"], 1)
         ax.add_patch(Rectangle((x - 0.4, -column["stages"] - 0.5), 0.8, column["stages"], fill=False, linewidth=1.5))
@@ -75,7 +72,4 @@ def network_figure(result: NetworkResult, path: Path) -> Path:
     ax_T.set_ylabel("stage of its column (1 = top)")
     ax_T.grid(True, alpha=0.3)
     ax_T.legend(fontsize=7)
-    buffer = io.BytesIO()
-    figure.savefig(buffer, format="png", dpi=110, bbox_inches="tight")
-    plt.close(figure)
-    return write_atomic(path, buffer.getvalue())
+    return save_figure(figure, path)

@@ -1,4 +1,6 @@
-"""Figures of a column solution (matplotlib, Agg backend, PNG files written atomically).
+"""Figures of a column solution: functions that return matplotlib :class:`Figure` objects
+(made without pyplot, so a notebook shows them and no window or backend is needed), and thin
+savers that write one as PNG, atomically (:func:`save_figure`).
 
 Profiles against stage number (temperature, internal liquid and vapor flows, liquid
 compositions), for a binary the y-x diagram, and the figure of a parameter sweep. The y-x
@@ -14,47 +16,59 @@ import io
 from pathlib import Path
 from typing import Callable, Mapping, Sequence
 
-import matplotlib
+import numpy as np
+from matplotlib import colormaps
+from matplotlib.axes import Axes
+from matplotlib.figure import Figure
+from matplotlib.lines import Line2D
+from matplotlib.ticker import MaxNLocator
 
-matplotlib.use("Agg")
-import matplotlib.pyplot as plt  # noqa: E402
-import numpy as np  # noqa: E402
-from matplotlib.ticker import MaxNLocator  # noqa: E402
-
-from .results import Result, write_atomic  # noqa: E402
-from .thermo.flash import bubble_temperature  # noqa: E402
+from .results import Result, write_atomic
+from .thermo.flash import bubble_temperature
 
 __all__ = [
     "YXLayer",
+    "cmo_flow_figure",
     "cmo_flow_profiles",
+    "composition_figure",
     "composition_profiles",
     "equilibrium_curve",
-    "composition_figure",
     "flow_figure",
     "flow_profiles",
-    "stage_marks",
-    "sweep_figure",
-    "temperature_figure",
     "light_component",
+    "new_figure",
+    "run_figures",
     "sample_histograms",
+    "save_figure",
     "shortcut_layer",
     "shortcut_yx_diagram",
+    "shortcut_yx_figure",
+    "stage_marks",
+    "sweep_figure",
     "sweep_plot",
+    "temperature_figure",
     "temperature_profile",
     "write_all",
     "yx_diagram",
+    "yx_figure",
 ]
 
 #: Something that draws on the y-x diagram: called as ``layer(axes, light)``, ``light`` being the
 #: index of the component whose mole fractions are on the axes.
-YXLayer = Callable[[plt.Axes, int], None]
+YXLayer = Callable[[Axes, int], None]
 
 
-def _save(figure, path: Path) -> Path:
+def new_figure(figsize: tuple[float, float]) -> tuple[Figure, Axes]:
+    """A figure with one axes, outside pyplot's figure manager (nothing to close)."""
+    figure = Figure(figsize=figsize)
+    return figure, figure.subplots()
+
+
+def save_figure(figure: Figure, path: str | Path) -> Path:
+    """Write ``figure`` as a PNG file at ``path`` (atomically); returns the path."""
     buffer = io.BytesIO()
     figure.savefig(buffer, format="png", dpi=110, bbox_inches="tight")
-    plt.close(figure)
-    return write_atomic(path, buffer.getvalue())
+    return write_atomic(Path(path), buffer.getvalue())
 
 
 def _stage_axis(ax, count: int) -> None:
@@ -92,10 +106,10 @@ def _mark_stages(ax, result: Result) -> None:
         shown.add(kind)
 
 
-def temperature_figure(result: Result):
+def temperature_figure(result: Result) -> Figure:
     """Temperature against stage number, feeds and side streams marked."""
     stages = np.arange(1, result.stage_count + 1)
-    figure, ax = plt.subplots(figsize=(5, 6))
+    figure, ax = new_figure((5, 6))
     ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3, label="temperature")
     ax.set_xlabel("temperature / °C")
     _stage_axis(ax, result.stage_count)
@@ -105,15 +119,7 @@ def temperature_figure(result: Result):
     return figure
 
 
-def temperature_profile(result: Result, path: Path) -> Path:
-    return _save(temperature_figure(result), path)
-
-
-def flow_profiles(result: Result, path: Path) -> Path:
-    return _save(flow_figure(result), path)
-
-
-def flow_figure(result: Result):
+def flow_figure(result: Result) -> Figure:
     """Liquid and vapor flows leaving each tray (kmol/h); the condenser and reboiler slots
     hold products and are left out so the internal flows can be read. Feed, side-draw and
     side-duty stages are marked, where the flows jump."""
@@ -123,7 +129,7 @@ def flow_figure(result: Result):
         inner[0] = False
     if result.reboiler != "none":
         inner[-1] = False
-    figure, ax = plt.subplots(figsize=(5, 6))
+    figure, ax = new_figure((5, 6))
     to_kmol_h = 3.6
     ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", markersize=3, label="liquid L")
     ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", markersize=3, label="vapor V")
@@ -135,11 +141,12 @@ def flow_figure(result: Result):
     return figure
 
 
-def composition_figure(result: Result):
+def composition_figure(result: Result) -> Figure:
     """Liquid mole fractions against stage number, on a linear scale and on a log scale (where
     key impurities of 1e-4 and below can be read); feeds and side streams marked."""
     stages = np.arange(1, result.stage_count + 1)
-    figure, (linear, logarithmic) = plt.subplots(1, 2, figsize=(9, 6), sharey=True)
+    figure = Figure(figsize=(9, 6))
+    linear, logarithmic = figure.subplots(1, 2, sharey=True)
     for i, name in enumerate(result.components):
         line, = linear.plot(result.x[:, i], stages, "-", label=f"x {name}")
         logarithmic.plot(np.clip(result.x[:, i], 1e-300, None), stages, "-", color=line.get_color())
@@ -158,8 +165,16 @@ def composition_figure(result: Result):
     return figure
 
 
+def temperature_profile(result: Result, path: Path) -> Path:
+    return save_figure(temperature_figure(result), path)
+
+
+def flow_profiles(result: Result, path: Path) -> Path:
+    return save_figure(flow_figure(result), path)
+
+
 def composition_profiles(result: Result, path: Path) -> Path:
-    return _save(composition_figure(result), path)
+    return save_figure(composition_figure(result), path)
 
 
 def light_component(result: Result) -> int:
@@ -206,6 +221,11 @@ def _yx_frame(ax, name: str) -> None:
 def yx_diagram(
     result: Result, path: Path, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True
 ) -> Path:
+    """:func:`yx_figure` written to ``path``."""
+    return save_figure(yx_figure(result, thermo=thermo, layers=layers, rigorous_steps=rigorous_steps), path)
+
+
+def yx_figure(result: Result, *, thermo=None, layers: Sequence[YXLayer] = (), rigorous_steps: bool = True) -> Figure:
     """The y-x diagram of a binary column: the equilibrium curve at the mean column pressure
     (when ``thermo`` is given), the rigorous stages (x_j, y_j), the rigorous operating curve
     (x_j, y_j+1) — straight only under constant molar overflow — and (``rigorous_steps``) the
@@ -214,7 +234,7 @@ def yx_diagram(
         raise ValueError(f"a y-x diagram needs a binary, not {len(result.components)} components")
     light = light_component(result)
     x, y = result.x[:, light], result.y[:, light]
-    figure, ax = plt.subplots(figsize=(6, 6))
+    figure, ax = new_figure((6, 6))
     ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
     if thermo is not None:
         pressure = float(np.mean(result.pressure))
@@ -240,7 +260,7 @@ def yx_diagram(
         layer(ax, light)
     _yx_frame(ax, result.components[light])
     _title(figure, result.title, "y-x diagram")
-    return _save(figure, path)
+    return figure
 
 
 def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bool = True, pinch: bool = True,
@@ -251,7 +271,7 @@ def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bo
     Ponchon-Savarit), the operating line at minimum reflux through its pinch (``pinch``) and
     (``steps``) its staircase. Drawn beneath the rigorous points."""
 
-    def draw(ax: plt.Axes, light: int) -> None:
+    def draw(ax: Axes, light: int) -> None:
         method = design.method
         if curve:
             ax.plot(design.curve.x, design.curve.y, color="tab:blue", linewidth=1.2, zorder=1.4,
@@ -288,9 +308,14 @@ def shortcut_layer(design, *, curve: bool = True, steps: bool = True, q_line: bo
 
 
 def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence[YXLayer] = ()) -> Path:
+    """:func:`shortcut_yx_figure` written to ``path``."""
+    return save_figure(shortcut_yx_figure(design, title=title, layers=layers), path)
+
+
+def shortcut_yx_figure(design, *, title: str = "", layers: Sequence[YXLayer] = ()) -> Figure:
     """The McCabe-Thiele diagram of a binary shortcut design alone: equilibrium curve,
     diagonal, q-line, operating lines, steps; then each of ``layers``."""
-    figure, ax = plt.subplots(figsize=(6, 6))
+    figure, ax = new_figure((6, 6))
     ax.plot([0, 1], [0, 1], color="0.6", linewidth=0.8)
     shortcut_layer(design)(ax, 0)
     for layer in layers:
@@ -299,7 +324,7 @@ def shortcut_yx_diagram(design, path: Path, *, title: str = "", layers: Sequence
     pinch = design.minimum_reflux
     _title(figure, title, f"shortcut design: R = {design.reflux_ratio:.4g}, R_min = {pinch.ratio:.4g} ({pinch.pinch} pinch), "
            f"N_min = {design.minimum_stages:.3g}")
-    return _save(figure, path)
+    return figure
 
 
 def _stage_steps(values: np.ndarray, stages: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -309,6 +334,11 @@ def _stage_steps(values: np.ndarray, stages: np.ndarray) -> tuple[np.ndarray, np
 
 
 def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarray, path: Path) -> Path:
+    """:func:`cmo_flow_figure` written to ``path``."""
+    return save_figure(cmo_flow_figure(result, liquid_cmo, vapor_cmo), path)
+
+
+def cmo_flow_figure(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarray) -> Figure:
     """Liquid and vapor flows leaving each tray (kmol/h), rigorous (markers) against their
     constant-molar-overflow values (dashed steps); the condenser's and reboiler's slots hold
     products and are left out."""
@@ -317,7 +347,7 @@ def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndar
     inner[0] = result.condenser == "none"
     inner[-1] = result.reboiler == "none"
     to_kmol_h = 3.6
-    figure, ax = plt.subplots(figsize=(5.5, 6))
+    figure, ax = new_figure((5.5, 6))
     ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", color="tab:blue", markersize=3,
             label="liquid L, rigorous")
     ax.plot(*_stage_steps(np.asarray(liquid_cmo)[inner] * to_kmol_h, stages[inner]), "--", color="tab:blue",
@@ -331,21 +361,40 @@ def cmo_flow_profiles(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndar
     _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "internal flows: rigorous against constant molar overflow")
-    return _save(figure, path)
+    return figure
+
+
+def run_figures(result: Result, *, thermo=None, yx_layers: Sequence[YXLayer] = ()) -> dict[str, Figure]:
+    """Every figure of a run by name: temperature, flows, compositions and, for a binary, yx
+    (with the equilibrium curve when ``thermo`` is given)."""
+    figures = {
+        "temperature": temperature_figure(result),
+        "flows": flow_figure(result),
+        "compositions": composition_figure(result),
+    }
+    if len(result.components) == 2:
+        figures["yx"] = yx_figure(result, thermo=thermo, layers=yx_layers)
+    return figures
 
 
 def write_all(result: Result, folder: Path, *, thermo=None, yx_layers: Sequence[YXLayer] = ()) -> list[Path]:
-    """Every figure of a run into ``folder``: temperature.png, flows.png, compositions.png and,
-    for a binary, yx.png (with the equilibrium curve when ``thermo`` is given)."""
+    """Every figure of a run (:func:`run_figures`) into ``folder`` as NAME.png."""
     folder = Path(folder)
-    written = [
-        temperature_profile(result, folder / "temperature.png"),
-        flow_profiles(result, folder / "flows.png"),
-        composition_profiles(result, folder / "compositions.png"),
-    ]
-    if len(result.components) == 2:
-        written.append(yx_diagram(result, folder / "yx.png", thermo=thermo, layers=yx_layers))
-    return written
+    return [save_figure(figure, folder / f"{name}.png")
+            for name, figure in run_figures(result, thermo=thermo, yx_layers=yx_layers).items()]
+
+
+def sweep_plot(
+    x: np.ndarray,
+    x_label: str,
+    groups: Mapping[str, Mapping[str, np.ndarray]],
+    panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
+    path: Path,
+    title: str = "",
+    failed_x: Sequence[float] | Mapping[str, Sequence[float]] = (),
+) -> Path:
+    """:func:`sweep_figure` saved as PNG in ``path``."""
+    return save_figure(sweep_figure(x, x_label, groups, panels, title, failed_x), path)
 
 
 def sweep_figure(
@@ -355,7 +404,7 @@ def sweep_figure(
     panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
     title: str = "",
     failed_x: Sequence[float] | Mapping[str, Sequence[float]] = (),
-):
+) -> Figure:
     """Results of a parameter sweep against the first varied key.
 
     ``groups`` maps a label (a value of the second varied key, or "" for a one-key sweep) to
@@ -364,9 +413,10 @@ def sweep_figure(
     (the columns of a panel differ by line style), named in one short legend outside the axes.
     ``failed_x`` (per group, or for all) are marked by crosses on the x axis, not by lines."""
     x = np.asarray(x, dtype=float)
-    figure, axes = plt.subplots(len(panels), 1, figsize=(7.5, 2.8 * len(panels)), sharex=True, squeeze=False)
+    figure = Figure(figsize=(7.5, 2.8 * len(panels)))
+    axes = figure.subplots(len(panels), 1, sharex=True, squeeze=False)
     labels = list(groups)
-    colours = plt.get_cmap("viridis")(np.linspace(0.0, 0.85, max(len(labels), 1))) if len(labels) > 1 else ["tab:blue"]
+    colours = colormaps["viridis"](np.linspace(0.0, 0.85, max(len(labels), 1))) if len(labels) > 1 else ["tab:blue"]
     styles = ["-", "--", ":", "-."]
     failed = failed_x if isinstance(failed_x, Mapping) else {label: failed_x for label in labels}
     for ax, (axis_label, columns) in zip(axes[:, 0], panels):
@@ -385,7 +435,7 @@ def sweep_figure(
         ax.grid(True, alpha=0.3)
         ax.legend(loc="upper left", bbox_to_anchor=(1.01, 1.0), fontsize=7, borderaxespad=0.0)
     if len(labels) > 1:
-        handles = [plt.Line2D([], [], color=colour, marker="o", linestyle="-") for colour in colours]
+        handles = [Line2D([], [], color=colour, marker="o", linestyle="-") for colour in colours]
         figure.legend(handles, labels, loc="lower left", bbox_to_anchor=(0.91, 0.02), fontsize=7,
                       title="second key", title_fontsize=7)
     axes[-1, 0].set_xlabel(x_label)
@@ -395,26 +445,14 @@ def sweep_figure(
     return figure
 
 
-def sweep_plot(
-    x: np.ndarray,
-    x_label: str,
-    groups: Mapping[str, Mapping[str, np.ndarray]],
-    panels: Sequence[tuple[str, Sequence[tuple[str, str]]]],
-    path: Path,
-    title: str = "",
-    failed_x: Sequence[float] | Mapping[str, Sequence[float]] = (),
-) -> Path:
-    """:func:`sweep_figure` saved as PNG in ``path``."""
-    return _save(sweep_figure(x, x_label, groups, panels, title, failed_x), path)
-
-
 def sample_histograms(panels: Sequence[tuple[str, str, np.ndarray, float, float | None]], path: Path,
                       title: str = "") -> Path:
     """Histograms of the samples of a Monte Carlo study, one per ``(title, axis label, values,
     nominal, target or None)``; the nominal value a black line, a spec target a red dashed one."""
     columns = 3
     rows = -(-len(panels) // columns)
-    figure, axes = plt.subplots(rows, columns, figsize=(4.2 * columns, 3.2 * rows), squeeze=False)
+    figure = Figure(figsize=(4.2 * columns, 3.2 * rows))
+    axes = figure.subplots(rows, columns, squeeze=False)
     for ax, (panel_title, axis_label, values, nominal, target) in zip(axes.flat, panels):
         values = np.asarray(values, dtype=float)
         values = values[np.isfinite(values)]
@@ -431,4 +469,4 @@ def sample_histograms(panels: Sequence[tuple[str, str, np.ndarray, float, float 
     if title:
         figure.suptitle(title, fontsize=10)
     figure.tight_layout()
-    return _save(figure, path)
+    return save_figure(figure, path)

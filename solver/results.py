@@ -29,7 +29,7 @@ from typing import Any, Mapping, Protocol
 
 import numpy as np
 
-from .case import Spec, StageDuty
+from .case import Spec, StageDuty, molar_mass_of
 from .streams import FlashedFeed
 from .thermo.liquid_split import LiquidSplitCheck
 
@@ -111,6 +111,44 @@ class Result:
     def stage_count(self) -> int:
         return len(self.temperature)
 
+    # ------------------------------------------------------------------ in a notebook
+    def summary_lines(self) -> list[str]:
+        """A few lines: how the solve ended, the duties and ratios, each product (°C, kmol/h,
+        kW). The repr of a Result, and the HTML repr's content."""
+        if self.converged:
+            how = self.strategy.get("rung") if isinstance(self.strategy, Mapping) else None
+            status = f"converged in {self.iterations} Newton iterations" + (f" ({how})" if how else "")
+        else:
+            status = f"NOT converged after {self.iterations} iterations: {self.message}"
+        lines = [f"{self.title or 'column'}: {status}"]
+        numbers = []
+        if self.condenser_duty is not None:
+            numbers.append(f"condenser {self.condenser_duty / 1e3:.5g} kW")
+        if self.reboiler_duty is not None:
+            numbers.append(f"reboiler {self.reboiler_duty / 1e3:.5g} kW")
+        if self.reflux_ratio is not None:
+            numbers.append(f"reflux ratio {self.reflux_ratio:.4g}")
+        if self.boilup_ratio is not None:
+            numbers.append(f"boilup ratio {self.boilup_ratio:.4g}")
+        lines.append(f"{self.stage_count} stages; " + ", ".join(numbers))
+        for name, product in self.products().items():
+            parts = ", ".join(f"{c} {x:.4g}" for c, x in zip(self.components, product["composition"]))
+            lines.append(f"{name.replace('_', ' ')}: {product['flow'] * 3.6:.5g} kmol/h at "
+                         f"{product['T'] - 273.15:.2f} °C; {parts}")
+        return lines
+
+    def __repr__(self) -> str:
+        return "<Result " + "\n  ".join(self.summary_lines()) + ">"
+
+    def _repr_html_(self) -> str:
+        """Jupyter's view: the summary lines as a small table."""
+        import html
+
+        head, *rest = self.summary_lines()
+        colour = "" if self.converged else ' style="color:#b00"'
+        rows = "".join(f"<tr><td style='text-align:left'>{html.escape(line)}</td></tr>" for line in rest)
+        return f"<div><b{colour}>{html.escape(head)}</b><table>{rows}</table></div>"
+
     # ------------------------------------------------------------------ products
     @property
     def distillate_flow(self) -> float:
@@ -174,6 +212,12 @@ class Result:
         """The Murphree vapor efficiency of each stage as the case states it (the solved
         column's, ``efficiency``, when the case does not record them)."""
         return np.asarray(self.case.get("column", {}).get("efficiencies") or self.efficiency, dtype=float)
+
+    @property
+    def molar_masses(self) -> np.ndarray:
+        """Molar mass [kg/mol] of each component (the case's component data, else CoolProp's)."""
+        data = self.case.get("component_data", {})
+        return np.array([data[name]["molar_mass"] if name in data else molar_mass_of(name) for name in self.components])
 
     @property
     def case_warnings(self) -> tuple[str, ...]:

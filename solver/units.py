@@ -4,6 +4,13 @@ A case-file quantity is either a number (taken in the default unit for that kind
 or a string pint understands ("100 kmol/h", "65 degC", "1.5 bar"). Everything inside the
 engine is SI: K, Pa, mol/s, W, J/mol, kg/mol, m3/mol.
 
+Plant units beside pint's own: gauge pressures ``barg``, ``kPag`` and ``psig`` (absolute =
+gauge + one standard atmosphere, :data:`ATMOSPHERE` = 101325 Pa; pint's ``bar``, ``kPa`` and
+``psi`` with an offset, read like degC is read against K), ``MMBtu`` (a million of pint's
+``Btu``), and ``lbmol``. Pint's ``lb``, ``klb`` (kilo-pound) and ``ppm`` (1e-6) are used as
+pint defines them. ``MBtu`` is refused: a thousand Btu in US plant usage, a million by the SI
+prefix.
+
 A quantity string is read as a leading number followed by a unit expression ("40.7 cm**3/mol").
 The unit part is read with ``parse_units``, so a temperature unit inside a compound unit is a
 temperature *difference* ("75 J/mol/degC" is 75 J/mol/K, not 75 J/mol per 274.15 K as a plain
@@ -22,14 +29,19 @@ import pint
 from solver.user_cache import cache_folder
 
 __all__ = [
+    "ATMOSPHERE",
     "MAX_TEXT_LENGTH",
     "SI_UNITS",
     "Quantity",
     "UnitParseError",
     "convert",
     "example_unit",
+    "offset_scale",
     "temperature_scale",
     "to_si",
+    "to_si_of_kinds",
+    "flow_unit_kind",
+    "fraction_and_basis",
     "unit_factor",
     "ureg",
 ]
@@ -52,6 +64,14 @@ def _registry() -> pint.UnitRegistry:
 ureg = _registry()
 # pound-mole, used on US datasheets (453.59237 g per lb, NIST SP 811)
 ureg.define("lbmol = 453.59237 * mol = lb_mol")
+#: The atmosphere gauge pressures are read against [Pa] (the standard atmosphere, ISO 2533).
+ATMOSPHERE = 101325.0
+# gauge pressures: absolute = gauge + one standard atmosphere (psi = 6894.757293168361 Pa, NIST SP 811)
+ureg.define(f"bar_gauge = bar; offset: {ATMOSPHERE / 1e5!r} = barg")
+ureg.define(f"kilopascal_gauge = kilopascal; offset: {ATMOSPHERE / 1e3!r} = kPag")
+ureg.define(f"psi_gauge = psi; offset: {ATMOSPHERE / 6894.757293168361!r} = psig")
+# a million Btu, as fuel and steam duties are stated on US datasheets
+ureg.define("million_Btu = 1e6 * Btu = MMBtu")
 Quantity = ureg.Quantity
 
 #: SI unit and the dimensionality it stands for, per kind of quantity used in case files.
@@ -60,6 +80,8 @@ SI_UNITS: dict[str, str] = {
     "temperature_difference": "delta_degC",
     "pressure": "Pa",
     "molar_flow": "mol/s",
+    "mass_flow": "kg/s",
+    "pressure_difference": "Pa",
     "power": "W",
     "molar_energy": "J/mol",
     "molar_mass": "kg/mol",
@@ -83,6 +105,7 @@ MAX_TEXT_LENGTH = 200
 
 _LEADING_NUMBER = re.compile(r"\s*([+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)(.*)", re.DOTALL)
 _POWER = re.compile(r"\*\*|\^")
+_AMBIGUOUS_BTU = re.compile(r"(?<![A-Za-z_])MBtu")
 
 
 class UnitParseError(ValueError):
@@ -101,6 +124,10 @@ def _check_unit_text(text: str) -> None:
         before = text[: match.start()].rstrip()
         if not before or not (before[-1].isalpha() or before[-1] == "_"):
             raise UnitParseError(f"in {text!r} powers are allowed on unit names only (like 'm**3')")
+    if _AMBIGUOUS_BTU.search(text):
+        raise UnitParseError(
+            f"{text!r}: 'MBtu' is a thousand Btu in US usage but a million by the SI prefix; write kBtu or MMBtu"
+        )
 
 
 def _parse_unit_expression(text: str) -> pint.Unit:
@@ -171,6 +198,8 @@ def to_si(value: object, kind: str) -> float:
             offset_name = _single_offset_unit(unit)
             if kind == "temperature_difference" and offset_name is not None:
                 unit = ureg.parse_units("delta_" + offset_name)
+            if kind == "pressure_difference" and offset_name is not None:
+                raise UnitParseError(f"{value!r} is a gauge pressure; a pressure difference is needed (like '0.7 kPa')")
             try:
                 number = float(Quantity(magnitude, unit).to(si_unit).magnitude)
             except pint.DimensionalityError:
@@ -186,13 +215,32 @@ def to_si(value: object, kind: str) -> float:
     return number
 
 
+_MASS_PPM = re.compile(r"\s*([+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?)\s*(?:ppmw|wppm)\s*")
+
+
+def fraction_and_basis(value: object) -> tuple[float, str]:
+    """(fraction, "mole" or "mass") of a product purity: a number or pint's dimensionless
+    units ("0.995", "99.5 %", "50 ppm") are mole fractions; "50 ppmw" (or "50 wppm") is a mass
+    fraction of 50e-6. Raises :class:`UnitParseError`."""
+    if isinstance(value, str):
+        match = _MASS_PPM.fullmatch(value)
+        if match is not None:
+            number = float(match.group(1)) * 1e-6
+            if not math.isfinite(number):
+                raise UnitParseError("the value is not a finite number")
+            return number, "mass"
+    return to_si(value, "dimensionless"), "mole"
+
+
 def example_unit(kind: str) -> str:
     """A unit a user would write for ``kind``, for error messages."""
     return {
         "temperature": "'K' or 'degC'",
         "temperature_difference": "'K' or 'delta_degC'",
-        "pressure": "'kPa' or 'bar'",
+        "pressure": "'kPa', 'bar' or 'barg'",
         "molar_flow": "'kmol/h' or 'mol/s'",
+        "mass_flow": "'kg/h' or 'klb/h'",
+        "pressure_difference": "'kPa' or 'mbar'",
         "power": "'kW' or 'W'",
         "molar_energy": "'kJ/mol' or 'J/mol'",
         "molar_mass": "'kg/mol' or 'g/mol'",
@@ -232,22 +280,71 @@ def unit_factor(unit: str, kind: str) -> float:
     return factor
 
 
+def flow_unit_kind(unit: str) -> str:
+    """"molar_flow" or "mass_flow": the kind of a flow unit such as 'kmol/h' or 'klb/h'.
+    Raises the molar flow's :class:`UnitParseError` for a unit of neither."""
+    try:
+        unit_factor(unit, "molar_flow")
+        return "molar_flow"
+    except UnitParseError as molar_error:
+        try:
+            unit_factor(unit, "mass_flow")
+        except UnitParseError:
+            raise molar_error from None
+        return "mass_flow"
+
+
 def temperature_scale(unit: str) -> tuple[float, float]:
     """(slope, intercept) with ``T_in_unit = slope * T_kelvin + intercept`` for a temperature
     unit such as 'K', 'degC', 'degF', 'degR'. Difference units ('delta_degC') and units with a
     number ('2 K') are refused. Raises :class:`UnitParseError`."""
-    wanted = "wanted 'K', 'degC', 'degF' or 'degR'"
+    return offset_scale(unit, "temperature")
+
+
+_SCALE_WHAT = {"temperature": "a temperature unit", "pressure": "a unit of pressure"}
+_SCALE_EXAMPLES = {"temperature": "'K', 'degC', 'degF' or 'degR'", "pressure": "'bar', 'kPa', 'psi', 'barg' or 'psig'"}
+
+
+def offset_scale(unit: str, kind: str) -> tuple[float, float]:
+    """(slope, intercept) with ``value_in_unit = slope * value_si + intercept`` for a unit of
+    ``kind`` ("temperature" or "pressure") that may have an offset: 'degC' against K, a gauge
+    pressure 'barg' or 'psig' against Pa (:data:`ATMOSPHERE`). Difference units and units
+    with a number are refused. Raises :class:`UnitParseError`."""
+    wanted = f"wanted {_SCALE_EXAMPLES[kind]}"
     if not isinstance(unit, str):
-        raise UnitParseError(f"a temperature unit is needed as text ({wanted})")
+        raise UnitParseError(f"a {kind} unit is needed as text ({wanted})")
     parsed = _parse_unit_expression(unit.strip())
-    if parsed.dimensionality != ureg.kelvin.dimensionality or len(parsed._units) != 1 or _is_delta_unit(parsed):
-        raise UnitParseError(f"{unit!r} is not a temperature unit ({wanted})")
+    si = ureg.parse_units(SI_UNITS[kind])
+    if parsed.dimensionality != si.dimensionality or _is_delta_unit(parsed):
+        raise UnitParseError(f"{unit!r} is not {_SCALE_WHAT[kind]} ({wanted})")
+    if _single_offset_unit(parsed) is None and kind == "temperature" and len(parsed._units) != 1:
+        raise UnitParseError(f"{unit!r} is not {_SCALE_WHAT[kind]} ({wanted})")
     try:
-        zero = float(Quantity(0.0, "K").to(parsed).magnitude)
-        thousand = float(Quantity(1000.0, "K").to(parsed).magnitude)
+        zero = float(Quantity(0.0, si).to(parsed).magnitude)
+        thousand = float(Quantity(1000.0, si).to(parsed).magnitude)
+        slope = (thousand - zero) / 1000.0
+        if _single_offset_unit(parsed) is None:  # no offset: the exact reciprocal of the unit's size
+            slope, zero = 1.0 / float(Quantity(1.0, parsed).to(si).magnitude), 0.0
     except Exception:
-        raise UnitParseError(f"{unit!r} is not a temperature unit ({wanted})") from None
-    return (thousand - zero) / 1000.0, zero
+        raise UnitParseError(f"{unit!r} is not {_SCALE_WHAT[kind]} ({wanted})") from None
+    if not (math.isfinite(slope) and slope > 0.0 and math.isfinite(zero)):
+        raise UnitParseError(f"{unit!r} does not give a usable scale")
+    return slope, zero
+
+
+def to_si_of_kinds(value: object, kinds: tuple[str, ...]) -> tuple[float, str]:
+    """(value in SI, its kind) for a value that may be of any of ``kinds`` (tried in order; a
+    bare number takes the first kind): ``to_si_of_kinds("6000 kg/h", ("molar_flow",
+    "mass_flow")) == (1.6667, "mass_flow")``. Raises the first kind's :class:`UnitParseError`
+    when none fits."""
+    first_error = None
+    for kind in kinds:
+        try:
+            return to_si(value, kind), kind
+        except UnitParseError as exc:
+            first_error = first_error or exc
+    assert first_error is not None
+    raise first_error
 
 
 def convert(value_si: float, kind: str, unit: str) -> float:

@@ -775,7 +775,7 @@ FORMAT_ERRORS = [
     ("feeds[0].stage", "10", "feeds[0].stage", "10", "whole number"),
     ("feeds[0].flow", "-5 kmol/h", "feeds[0].flow", "-5 kmol/h", "range"),
     ("feeds[0].flow", 0, "feeds[0].flow", 0, "range"),
-    ("feeds[0].flow", "100 kg/h", "feeds[0].flow", "100 kg/h", "not a molar flow"),
+    ("feeds[0].flow", "100 kg", "feeds[0].flow", "100 kg", "not a molar flow"),
     ("feeds[0].flow", [100], "feeds[0].flow", [100], "a number or a string"),
     ("feeds[0].composition", {"methanol": 0.35, "water": 0.6}, "feeds[0].composition", {"methanol": 0.35, "water": 0.6}, "add up to 0.95"),
     ("feeds[0].composition", {"methanl": 0.35, "water": 0.65}, "feeds[0].composition.methanl", "methanl", "did you mean 'methanol'"),

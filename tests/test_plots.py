@@ -136,7 +136,7 @@ def captured(monkeypatch):
         path.write_bytes(PNG)
         return path
 
-    monkeypatch.setattr(plots, "_save", keep)
+    monkeypatch.setattr(plots, "save_figure", keep)
     return figures
 
 

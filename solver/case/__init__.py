@@ -9,7 +9,9 @@ a value sits, and the readers of single values and flat tables), one module per 
 file (``components_table``, ``thermo_table``, ``column_table``, ``feeds_table``,
 ``specs_table``, ``options_table`` for [check], [display] and [audit], ``network_tables`` for
 a network of columns) and
-:mod:`~solver.case.reader` (``load_case``, ``loads_case``, ``parse_case``).
+:mod:`~solver.case.reader` (``load_case``, ``loads_case``, ``parse_case``); :mod:`~solver.case.edits`
+(``with_spec``, ``with_feed``, ``with_stages``, ``with_column``: a new case with changed values,
+read again by the same reader).
 
 Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg/mol, m**3/mol):
 
@@ -86,6 +88,7 @@ from solver.case.model import (
     ThermoOptions,
 )
 from solver.case.reader import MAX_FILE_BYTES, load_case, loads_case, parse_case
+from solver.case.edits import with_column, with_feed, with_spec, with_stages
 from solver.case.sizing_table import ComponentHydraulicData, DowncomerRule, PackingData, SizingOptions
 from solver.thermo.data import WATSON_EXPONENT, ComponentData, Correlation
 
@@ -126,6 +129,10 @@ __all__ = [
     "loads_case",
     "molar_mass_of",
     "parse_case",
+    "with_column",
+    "with_feed",
+    "with_spec",
+    "with_stages",
 ]
 
 

@@ -129,7 +129,7 @@ def _read_pressures(value: Any, stages: int, at: At) -> tuple[float, ...]:
     if "top" not in value:
         at.child("top").fail("missing", expected="pressure.top, or pressure.profile")
     top = read_quantity(value["top"], "pressure", at.child("top"), above=0.0)
-    drop = read_quantity(value.get("drop_per_stage", 0.0), "pressure", at.child("drop_per_stage"), minimum=0.0)
+    drop = read_quantity(value.get("drop_per_stage", 0.0), "pressure_difference", at.child("drop_per_stage"), minimum=0.0)
     return tuple(top + drop * k for k in range(stages))
 
 

@@ -1,5 +1,6 @@
-"""The ``[[feeds]]`` tables: stage, flow, composition (mole or mass fractions), thermal
-condition and pressure of each feed; and the CoolProp molar masses a mass basis needs."""
+"""The ``[[feeds]]`` tables: stage, flow (molar, or mass with the feed's molar mass),
+composition (mole or mass fractions), thermal condition and pressure of each feed; and the
+molar masses a mass basis needs ([components.data], the handbook, or CoolProp's)."""
 
 from __future__ import annotations
 
@@ -19,6 +20,7 @@ from solver.case.fields import (
     read_fields,
     read_list,
     read_quantity,
+    read_quantity_of_kinds,
     read_table,
     read_text,
 )
@@ -26,10 +28,11 @@ from solver.case.model import Column, Feed
 from solver.errors import CaseError
 from solver.thermo.data import ComponentData
 
-__all__ = ["COMPOSITION_TOLERANCE", "molar_mass_of", "read_feeds_table"]
+__all__ = ["COMPOSITION_TOLERANCE", "component_molar_mass", "molar_mass_of", "read_feeds_table"]
 
 #: How far the fractions of a composition may add up away from 1 (without normalize = true).
 COMPOSITION_TOLERANCE = 1e-6
+_FLOW_KINDS = ("molar_flow", "mass_flow")
 
 
 def read_feeds_table(
@@ -50,7 +53,7 @@ def read_feeds_table(
 def _feed_fields(index: int, column: Column) -> dict[str, Field]:
     return {
         "stage": Field(stage_number(column.stages), required=True),
-        "flow": Field(quantity("molar_flow", above=0.0), required=True),
+        "flow": Field(lambda value, at: read_quantity_of_kinds(value, _FLOW_KINDS, at, above=0.0), required=True),
         "composition": Field(required=True),  # read with the basis, below
         "basis": Field(lambda value, at: read_choice(value, at, ("mole", "mass")), default="mole"),
         "normalize": Field(read_boolean),
@@ -75,6 +78,14 @@ def _read_feed(
     composition = _read_composition(value["composition"], names, fields.get("normalize", False), at.child("composition"))
     if fields["basis"] == "mass":
         composition = _mass_to_mole_fractions(composition, names, component_data, at.child("basis"))
+    flow, flow_kind = fields["flow"]
+    if flow_kind == "mass_flow":  # kg/s over the feed's molar mass sum z_i M_i
+        flow_at = at.child("flow")
+        molar_mass = sum(
+            z * component_molar_mass(name, component_data, flow_at, value["flow"], "a mass flow")
+            for name, z in zip(names, composition) if z > 0.0
+        )
+        flow = flow / molar_mass
     has_temperature, has_vapor_fraction = "temperature" in fields, "vapor_fraction" in fields
     if has_temperature == has_vapor_fraction:
         both = {"temperature": value["temperature"], "vapor_fraction": value["vapor_fraction"]} if has_temperature else None
@@ -85,7 +96,7 @@ def _read_feed(
         )
     return Feed(
         stage=fields["stage"],
-        flow=fields["flow"],
+        flow=flow,
         composition=composition,
         temperature=fields.get("temperature"),
         vapor_fraction=fields.get("vapor_fraction"),
@@ -126,25 +137,30 @@ def _mass_to_mole_fractions(
     mass_fractions: tuple[float, ...], names: tuple[str, ...], component_data: Mapping[str, ComponentData], at: At
 ) -> tuple[float, ...]:
     """x_i = (w_i / M_i) / sum_j (w_j / M_j); M from [components.data] or CoolProp."""
-    moles = []
-    for name, fraction in zip(names, mass_fractions):
-        if fraction == 0.0:
-            moles.append(0.0)
-            continue
-        if name in component_data:
-            molar_mass = component_data[name].molar_mass
-        else:
-            try:
-                molar_mass = molar_mass_of(name)
-            except CaseError as exc:
-                at.fail(
-                    f"a mass basis needs the molar mass of {name!r}: {exc.problem}; define it under [components.data]",
-                    "mass",
-                    "basis = \"mole\", or components with known molar masses",
-                )
-        moles.append(fraction / molar_mass)
+    moles = [
+        fraction / component_molar_mass(name, component_data, at, "mass", "a mass basis") if fraction > 0.0 else 0.0
+        for name, fraction in zip(names, mass_fractions)
+    ]
     total = sum(moles)
     return tuple(m / total for m in moles)
+
+
+def component_molar_mass(
+    name: str, component_data: Mapping[str, ComponentData], at: At, value: Any, needs: str = "a mass basis"
+) -> float:
+    """Molar mass [kg/mol] of the case's component ``name``: from [components.data] or the
+    handbook (``component_data``), else CoolProp's; a component without one fails at ``at``
+    (``value`` the value shown, ``needs`` what asked for it)."""
+    if name in component_data:
+        return component_data[name].molar_mass
+    try:
+        return molar_mass_of(name)
+    except CaseError as exc:
+        at.fail(
+            f"{needs} needs the molar mass of {name!r}: {exc.problem}; define it under [components.data]",
+            value,
+            "molar units and fractions, or components with known molar masses",
+        )
 
 
 def molar_mass_of(name: str) -> float:

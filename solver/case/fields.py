@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from typing import Any, Callable, Mapping, NoReturn
 
 from solver.errors import CaseError
-from solver.units import SI_UNITS, UnitParseError, to_si
+from solver.units import SI_UNITS, UnitParseError, to_si, to_si_of_kinds
 
 __all__ = [
     "At",
@@ -35,6 +35,7 @@ __all__ = [
     "read_integer",
     "read_list",
     "read_quantity",
+    "read_quantity_of_kinds",
     "read_real",
     "read_table",
     "read_text",
@@ -43,9 +44,11 @@ __all__ = [
 _QUANTITY_EXAMPLES = {
     "temperature": "a temperature such as '65 degC' or 338.15 (a plain number is K)",
     "temperature_difference": "a temperature difference such as '5 K' (a plain number is K)",
-    "pressure": "a pressure such as '101.325 kPa' or '1.5 bar' (a plain number is Pa)",
+    "pressure": "a pressure such as '101.325 kPa', '1.5 bar' or '0.5 barg' (a plain number is Pa)",
+    "pressure_difference": "a pressure difference such as '0.7 kPa' (a plain number is Pa)",
+    "mass_flow": "a mass flow such as '6000 kg/h' or '13 klb/h' (a plain number is kg/s)",
     "molar_flow": "a molar flow such as '100 kmol/h' (a plain number is mol/s)",
-    "power": "a power such as '-2.5 MW' or '800 kW' (a plain number is W)",
+    "power": "a power such as '-2.5 MW', '800 kW' or '3 MMBtu/h' (a plain number is W)",
     "molar_energy": "a molar energy such as '-250 cal/mol' or '35 kJ/mol' (a plain number is J/mol)",
     "molar_mass": "a molar mass such as '0.1 kg/mol' or '100 g/mol' (a plain number is kg/mol)",
     "molar_volume": "a molar volume such as '40.7 cm**3/mol' (a plain number is m**3/mol)",
@@ -212,8 +215,22 @@ def read_quantity(value: Any, kind: str, at: At, *, minimum=None, maximum=None, 
         number = to_si(value, kind)
     except UnitParseError as exc:
         at.fail(str(exc), value, _QUANTITY_EXAMPLES[kind])
-    unit = "" if kind == "dimensionless" else SI_UNITS[kind].replace("delta_degC", "K")
+    unit = _si_label(kind)
     return _check_range(number, value, at, minimum, maximum, above, below, unit)
+
+
+def _si_label(kind: str) -> str:
+    return "" if kind == "dimensionless" else SI_UNITS[kind].replace("delta_degC", "K")
+
+
+def read_quantity_of_kinds(value: Any, kinds: tuple[str, ...], at: At, *, above=None) -> tuple[float, str]:
+    """(value in SI, its kind) of a quantity that may be of any of ``kinds`` (a bare number:
+    the first), such as a feed flow in mol/s or kg/s; within ``above`` in its own SI unit."""
+    try:
+        number, kind = to_si_of_kinds(value, kinds)
+    except UnitParseError as exc:
+        at.fail(str(exc), value, " or ".join(_QUANTITY_EXAMPLES[kind] for kind in kinds))
+    return _check_range(number, value, at, None, None, above, None, _si_label(kind)), kind
 
 
 def quantity(kind: str, **bounds: float) -> Reader:

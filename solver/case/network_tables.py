@@ -80,7 +80,7 @@ def _stage(value: Any, section: ColumnSection, at: At) -> int:
     return read_integer(value, at, minimum=1, maximum=stages, what="a stage number")
 
 
-def _read_columns(value: Any, names: tuple[str, ...], at: At) -> dict[str, ColumnSection]:
+def _read_columns(value: Any, names: tuple[str, ...], at: At, component_data: Mapping[str, Any] | None = None) -> dict[str, ColumnSection]:
     if isinstance(value, Mapping):
         at.fail("must be a list of tables: write [[columns]], not [columns]", "a table", "[[columns]] tables")
     columns: dict[str, ColumnSection] = {}
@@ -92,7 +92,9 @@ def _read_columns(value: Any, names: tuple[str, ...], at: At) -> dict[str, Colum
         if name in columns:
             entry_at.child("name").fail("another column has this name", name, "a unique name")
         column = read_column_table({k: v for k, v in table.items() if k not in ("name", "specs")}, entry_at)
-        specs, reflux_temperature, reflux_subcooling = read_specs_table(table.get("specs", {}), names, column, entry_at.child("specs"))
+        specs, reflux_temperature, reflux_subcooling = read_specs_table(
+            table.get("specs", {}), names, column, entry_at.child("specs"), component_data
+        )
         column = replace(column, reflux_temperature=reflux_temperature, reflux_subcooling=reflux_subcooling)
         columns[name] = ColumnSection(name, column, specs)
     return columns
@@ -358,7 +360,7 @@ def read_network(data: Mapping[str, Any], names: tuple[str, ...], component_data
     if "column" in data:
         at.child("column").fail("a case has either [column] (one column) or [[columns]] (a network), not both", "a table",
                                 "[[columns]] tables only")
-    columns = _read_columns(data["columns"], names, at.child("columns"))
+    columns = _read_columns(data["columns"], names, at.child("columns"), component_data)
     connections = _read_connections(data.get("connections", []), columns, at.child("connections"))
     heat_links = _read_heat_links(data.get("heat_links", []), columns, at.child("heat_links"))
     _check_unique_names(columns, connections, heat_links, at)

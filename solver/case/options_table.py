@@ -4,13 +4,13 @@
 from __future__ import annotations
 
 from types import MappingProxyType
-from typing import Any
+from typing import Any, Mapping
 
 from solver.case.column_table import MAX_STAGES
-from solver.case.fields import At, Field, Reader, quantity, read_fields, read_real, read_text
+from solver.case.fields import At, Field, Reader, quantity, read_choice, read_fields, read_real, read_text
 from solver.case.model import AUDIT_THRESHOLD_KEYS, DEFAULT_DISPLAY, TOLERANCE_KEYS, AuditOptions, Spec
 from solver.case.specs_table import PRODUCTS, read_product_fractions
-from solver.units import UnitParseError, temperature_scale, unit_factor
+from solver.units import UnitParseError, flow_unit_kind, offset_scale, unit_factor
 
 __all__ = ["read_audit_table", "read_check_table", "read_display_table"]
 
@@ -33,8 +33,10 @@ def _unit_of(key: str, kind: str) -> Reader:
     def read(value: Any, at: At) -> str:
         unit = read_text(value, at, allow_empty=False, max_length=100).strip()
         try:
-            if kind == "temperature":
-                temperature_scale(unit)
+            if kind in ("temperature", "pressure"):  # may have an offset: degC, barg
+                offset_scale(unit, kind)
+            elif kind == "molar_flow":  # a molar or a mass flow
+                flow_unit_kind(unit)
             else:
                 unit_factor(unit, kind)
         except UnitParseError as exc:
@@ -46,6 +48,10 @@ def _unit_of(key: str, kind: str) -> Reader:
 
 _DISPLAY_KINDS = {"temperature": "temperature", "pressure": "pressure", "flow": "molar_flow", "duty": "power"}
 _DISPLAY_FIELDS = {key: Field(_unit_of(key, kind), default=DEFAULT_DISPLAY[key]) for key, kind in _DISPLAY_KINDS.items()}
+#: How product compositions are shown (no default: the screen's is mole fractions).
+_DISPLAY_FIELDS["composition"] = Field(
+    lambda value, at: read_choice(value, at, ("mole fraction", "ppm", "mass fraction", "ppmw"))
+)
 
 
 def read_display_table(value: Any, at: At) -> dict[str, str]:
@@ -71,7 +77,7 @@ _AUDIT_FIELDS = {
 }
 
 
-def read_audit_table(value: Any, names: tuple[str, ...], at: At) -> AuditOptions:
+def read_audit_table(value: Any, names: tuple[str, ...], at: At, component_data: Mapping | None = None) -> AuditOptions:
     """Product targets, reflux and thresholds for the audit's shortcut (see
     :class:`~solver.case.model.AuditOptions`)."""
     expected = "a table such as { distillate = { methanol = 0.99 }, reflux_factor = 1.3 }"
@@ -79,7 +85,7 @@ def read_audit_table(value: Any, names: tuple[str, ...], at: At) -> AuditOptions
     products: list[Spec] = []
     for product in PRODUCTS:
         if product in value:
-            products.extend(read_product_fractions(value[product], product, names, at.child(product)))
+            products.extend(read_product_fractions(value[product], product, names, at.child(product), component_data))
     if len(names) == 2:
         for product in PRODUCTS:
             if len([spec for spec in products if spec.product == product]) > 1:

@@ -123,7 +123,7 @@ def _parse(data: Any, at: At) -> Case:
         column, feeds, specs = _read_single_column(data, names, component_data, at)
     check = read_check_table(data.get("check", {}), at.child("check"))
     display = read_display_table(data.get("display", {}), at.child("display"))
-    audit = read_audit_table(data["audit"], names, at.child("audit")) if "audit" in data else None
+    audit = read_audit_table(data["audit"], names, at.child("audit"), component_data) if "audit" in data else None
     sizing = read_sizing_table(data["sizing"], names, at.child("sizing")) if "sizing" in data else None
     uncertainties = (read_uncertainty_table(data["uncertainty"], names, thermo, column, feeds, at.child("uncertainty"))
                      if "uncertainty" in data else ())
@@ -157,6 +157,8 @@ def _read_single_column(data: Mapping[str, Any], names, component_data, at: At):
         at.child("column").fail("missing", expected="a value for 'column' (a [column] table, or [[columns]] tables for a network)")
     column = read_column_table(data["column"], at.child("column"))
     feeds = read_feeds_table(data["feeds"], names, component_data, column, at.child("feeds"))
-    specs, reflux_temperature, reflux_subcooling = read_specs_table(data.get("specs", {}), names, column, at.child("specs"))
+    specs, reflux_temperature, reflux_subcooling = read_specs_table(
+        data.get("specs", {}), names, column, at.child("specs"), component_data
+    )
     column = replace(column, reflux_temperature=reflux_temperature, reflux_subcooling=reflux_subcooling)
     return column, feeds, specs

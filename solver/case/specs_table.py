@@ -18,7 +18,10 @@ from solver.case.fields import (
     read_table,
     quantity,
 )
+from solver.case.feeds_table import component_molar_mass
 from solver.case.model import Column, Spec
+from solver.thermo.data import ComponentData
+from solver.units import UnitParseError, fraction_and_basis
 
 __all__ = ["PRODUCTS", "read_product_fractions", "read_specs_table"]
 
@@ -38,7 +41,7 @@ _SPEC_KEYS = (
 
 
 def read_specs_table(
-    value: Any, names: tuple[str, ...], column: Column, at: At
+    value: Any, names: tuple[str, ...], column: Column, at: At, component_data: Mapping[str, ComponentData] | None = None
 ) -> tuple[tuple[Spec, ...], float | None, float | None]:
     """(the specifications in file order, reflux temperature [K] or None, reflux subcooling [K]
     or None)."""
@@ -60,7 +63,7 @@ def read_specs_table(
                 )
             specs.append(Spec(key, number, key=key_at.key))
         elif key in PRODUCTS:
-            specs.extend(read_product_fractions(item, key, names, key_at))
+            specs.extend(read_product_fractions(item, key, names, key_at, component_data))
         elif key == "recovery":
             specs.extend(_read_recoveries(item, names, key_at))
         elif key == "stage_temperature":
@@ -87,15 +90,44 @@ def _needs(column: Column, part: str, value: Any, at: At) -> None:
         at.fail(f"this column has no {part} (column.{part} = 'none')", value, f"a column with a {part}")
 
 
-def read_product_fractions(value: Any, product: str, names: tuple[str, ...], at: At) -> list[Spec]:
-    """``distillate`` or ``bottoms`` = {NAME = mole fraction}: specs of kind mole_fraction."""
+def read_product_fractions(
+    value: Any, product: str, names: tuple[str, ...], at: At, component_data: Mapping[str, ComponentData] | None = None
+) -> list[Spec]:
+    """``distillate`` or ``bottoms`` = {NAME = mole fraction}: specs of kind mole_fraction. A
+    fraction is a number, "99.5 %", "50 ppm" (molar) or "50 ppmw" (by mass: converted to the
+    mole fraction it means in a two-component product, with the molar masses)."""
     specs = []
     for written, fraction in read_table(value, at, "a table such as { water = 0.995 }").items():
         fraction_at = at.child(written)
         name = component_key(written, names, fraction_at)
-        x = read_quantity(fraction, "dimensionless", fraction_at, above=0.0, below=1.0)
+        x = _read_purity(fraction, name, names, component_data, fraction_at)
         specs.append(Spec("mole_fraction", x, component=name, product=product, key=fraction_at.key))
     return specs
+
+
+def _read_purity(
+    value: Any, name: str, names: tuple[str, ...], component_data: Mapping[str, ComponentData] | None, at: At
+) -> float:
+    """The mole fraction of ``name`` a purity ``value`` means (see :func:`read_product_fractions`)."""
+    try:
+        fraction, basis = fraction_and_basis(value)
+    except UnitParseError as exc:
+        at.fail(str(exc), value, "a fraction such as 0.995, '99.5 %', '50 ppm' (molar) or '50 ppmw' (by mass)")
+    if basis == "mole":
+        return read_quantity(value, "dimensionless", at, above=0.0, below=1.0)
+    if not 0.0 < fraction < 1.0:
+        at.fail(f"out of range ({fraction:g} by mass)", value, "a mass fraction > 0 and < 1")
+    if component_data is None or len(names) != 2:
+        at.fail(
+            "a mass fraction (ppmw) fixes a product's mole fraction only in a two-component case"
+            if component_data is not None else "a mass fraction (ppmw) is not read here",
+            value, "a mole fraction such as '50 ppm'",
+        )
+    other = names[1 - names.index(name)]
+    molar_mass = component_molar_mass(name, component_data, at, value, "a mass fraction")
+    other_molar_mass = component_molar_mass(other, component_data, at, value, "a mass fraction")
+    moles = fraction / molar_mass  # x = (w / M) / (w / M + (1 - w) / M_other)
+    return moles / (moles + (1.0 - fraction) / other_molar_mass)
 
 
 def _read_recoveries(value: Any, names: tuple[str, ...], at: At) -> list[Spec]:

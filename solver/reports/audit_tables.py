@@ -97,8 +97,8 @@ def shortcut_rows(shortcut: ShortcutReport, units: DisplayUnits) -> tuple[list[s
         rows.append(["distributing components", ", ".join(design.distributing_components)])
         rows.append(["feed q", cell(design.q)])
     rows += [
-        [f"distillate / {units.flow}"] + [cell(F(d.distillate_flow), ".5g") for d in designs],
-        [f"bottoms / {units.flow}"] + [cell(F(d.bottoms_flow), ".5g") for d in designs],
+        [f"distillate / {units.molar_flow}"] + [cell(F(d.distillate_flow), ".5g") for d in designs],
+        [f"bottoms / {units.molar_flow}"] + [cell(F(d.bottoms_flow), ".5g") for d in designs],
         [f"condenser duty / {units.duty}"] + [cell(Q(d.condenser_duty), ".5g") for d in designs],
         [f"reboiler duty / {units.duty}"] + [cell(Q(d.reboiler_duty), ".5g") for d in designs],
     ]
@@ -157,7 +157,7 @@ def side_by_side_rows(result: Result, units: DisplayUnits) -> tuple[list[str], l
         rows.append(["R for exactly its stages", cell(audit.shortcut_reflux_at_stages)] + [""] * (len(header) - 2))
     rows.append(["minimum reflux ratio"] + [_pinch_text(d.minimum_reflux) if shortcut.is_binary else cell(d.minimum_reflux)
                                             for d in designs] + blank)
-    rows.append([f"distillate / {units.flow}"] + [cell(F(d.distillate_flow), ".5g") for d in designs]
+    rows.append([f"distillate / {units.molar_flow}"] + [cell(F(d.distillate_flow), ".5g") for d in designs]
                 + [_run_cell(run, lambda r: r.distillate_flow, F, ".5g") for _, run in runs])
     for k in range(len(shortcut.basis.targets)):
         rows.append([f"impurity ratio {k + 1}"] + ["1" for _ in designs]
@@ -179,8 +179,8 @@ def side_by_side_rows(result: Result, units: DisplayUnits) -> tuple[list[str], l
 
 def cmo_rows(cmo: CMOAudit, units: DisplayUnits) -> tuple[list[str], list[list[str]]]:
     """(header, rows) of the stage-by-stage CMO audit."""
-    header = ["stage", f"L / {units.flow}", f"L CMO / {units.flow}", "L dev / %", f"V / {units.flow}",
-              f"V CMO / {units.flow}", "V dev / %", "operating curve - line"]
+    header = ["stage", f"L / {units.molar_flow}", f"L CMO / {units.molar_flow}", "L dev / %", f"V / {units.molar_flow}",
+              f"V CMO / {units.molar_flow}", "V dev / %", "operating curve - line"]
     rows = []
     for j in range(cmo.liquid.size):
         rows.append([

@@ -3,12 +3,13 @@ products and stages, in display units."""
 
 from __future__ import annotations
 
+import numpy as np
 from rich.table import Table
 
 from ..results import Result
 from .display import DisplayUnits, screen_table
 
-__all__ = ["PAIR_HEADER", "pair_rows", "spec_rows", "stage_label", "summary_tables"]
+__all__ = ["PAIR_HEADER", "pair_rows", "product_cells", "spec_rows", "stage_label", "summary_tables"]
 
 PAIR_HEADER = ("pair", "origin", "source, or how it was predicted")
 
@@ -43,7 +44,7 @@ def spec_rows(result: Result, units: DisplayUnits) -> list[tuple[str, str]]:
     for spec in result.specs:
         kind, value = spec.kind, spec.value
         if kind in ("distillate_rate", "bottoms_rate"):
-            text = f"{units.F(value):.6g} {units.flow}"
+            text = f"{units.F(value):.6g} {units.molar_flow}"
         elif kind in ("condenser_duty", "reboiler_duty"):
             text = f"{units.Q(value):.6g} {units.duty}"
         elif kind == "stage_temperature":
@@ -108,15 +109,25 @@ def _products(result: Result, units: DisplayUnits) -> Table:
     products.add_column(f"flow / {units.flow}", justify="right")
     products.add_column(f"T / {units.temperature_label}", justify="right")
     for name in result.components:
-        products.add_column(f"x {name}", justify="right")
-    for name, product in result.products().items():
-        products.add_row(
-            name.replace("_", " "),
-            f"{units.F(product['flow']):.5g}",
-            f"{units.T(product['T']):.2f}",
-            *[f"{value:.6f}" for value in product["composition"]],
-        )
+        products.add_column(f"{units.composition_label} {name}", justify="right")
+    for name, text in product_cells(result, units).items():
+        products.add_row(name.replace("_", " "), *text[:2], *text[3:])
     return products
+
+
+def product_cells(result: Result, units: DisplayUnits, flow_digits: str = ".5g") -> dict[str, list[str]]:
+    """Each product's cells in display units: flow (molar or mass), temperature, stage, and its
+    composition in the display's basis (mole or mass fractions, or ppm)."""
+    masses = result.molar_masses
+    cells = {}
+    for name, product in result.products().items():
+        composition = np.asarray(product["composition"])
+        digits = ".6f" if units.composition_label in ("x", "w") else ".5g"
+        cells[name] = [
+            format(units.stream(product["flow"], composition, masses), flow_digits), f"{units.T(product['T']):.2f}",
+            str(product["stage"]), *[format(value, digits) for value in units.fractions(composition, masses)],
+        ]
+    return cells
 
 
 def _stages(result: Result, units: DisplayUnits) -> Table:
@@ -125,13 +136,14 @@ def _stages(result: Result, units: DisplayUnits) -> Table:
         stages.add_column(column, justify="right")
     for name in result.components:
         stages.add_column(f"x {name}", justify="right")
+    masses = result.molar_masses
     for j, record in enumerate(result.stage_records()):
         stages.add_row(
             stage_label(result, j),
             f"{units.T(record['T']):.2f}",
             f"{units.P(record['P']):.5g}",
-            f"{units.F(record['L']):.4g}",
-            f"{units.F(record['V']):.4g}",
+            f"{units.stream(record['L'], record['x'], masses):.4g}",
+            f"{units.stream(record['V'], record['y'], masses):.4g}",
             *[f"{value:.5f}" for value in record["x"]],
         )
     return stages

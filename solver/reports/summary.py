@@ -13,7 +13,7 @@ from ..results import Result, write_atomic
 from .audit_tables import audit_markdown
 from .cautions import cautions
 from .display import DisplayUnits, markdown_table
-from .run_tables import PAIR_HEADER, pair_rows, spec_rows, stage_label
+from .run_tables import PAIR_HEADER, pair_rows, product_cells, spec_rows, stage_label
 from .sizing_tables import sizing_markdown
 
 __all__ = ["summary_markdown", "write_summary"]
@@ -75,7 +75,7 @@ def _feeds(result: Result, units: DisplayUnits) -> list[str]:
     for j, feeds in enumerate(result.stage_feeds):
         for feed in feeds:
             rows.append(
-                [feed.name or "feed", str(j + 1), f"{units.F(feed.flow):.5g}",
+                [feed.name or "feed", str(j + 1), f"{units.stream(feed.flow, feed.z, result.molar_masses):.5g}",
                  "" if feed.temperature is None else f"{units.T(feed.temperature):.2f}",
                  "" if feed.q is None else f"{feed.q:.4f}", *[f"{z:.6f}" for z in feed.z]]
             )
@@ -86,12 +86,10 @@ def _feeds(result: Result, units: DisplayUnits) -> list[str]:
 
 def _products(result: Result, units: DisplayUnits) -> list[str]:
     header = ["product", "stage", "phase", f"flow / {units.flow}", f"T / {units.temperature_label}",
-              *[f"x {name}" for name in result.components]]
-    rows = [
-        [name.replace("_", " "), str(p["stage"]), p["phase"], f"{units.F(p['flow']):.6g}", f"{units.T(p['T']):.2f}",
-         *[f"{value:.6f}" for value in p["composition"]]]
-        for name, p in result.products().items()
-    ]
+              *[f"{units.composition_label} {name}" for name in result.components]]
+    products = result.products()
+    rows = [[name.replace("_", " "), text[2], products[name]["phase"], *text[:2], *text[3:]]
+            for name, text in product_cells(result, units, ".6g").items()]
     right = [False, True, False] + [True] * (2 + len(result.components))
     return ["## Products", "", *markdown_table(header, rows, right), ""]
 
@@ -116,9 +114,12 @@ def _stages(result: Result, units: DisplayUnits) -> list[str]:
     c = result.components
     header = ["stage", f"T / {units.temperature_label}", f"P / {units.pressure}", f"L / {units.flow}",
               f"V / {units.flow}", f"draw / {units.flow}", *[f"x {name}" for name in c], *[f"y {name}" for name in c]]
+    masses = result.molar_masses
+    stream = units.stream
     rows = [
-        [stage_label(result, j), f"{units.T(r['T']):.3f}", f"{units.P(r['P']):.5g}", f"{units.F(r['L']):.5g}",
-         f"{units.F(r['V']):.5g}", f"{units.F(r['liquid_draw'] + r['vapor_draw']):.4g}",
+        [stage_label(result, j), f"{units.T(r['T']):.3f}", f"{units.P(r['P']):.5g}", f"{stream(r['L'], r['x'], masses):.5g}",
+         f"{stream(r['V'], r['y'], masses):.5g}",
+         f"{stream(r['liquid_draw'], r['x'], masses) + stream(r['vapor_draw'], r['y'], masses):.4g}",
          *[f"{value:.5f}" for value in r["x"] + r["y"]]]
         for j, r in enumerate(result.stage_records())
     ]

@@ -8,20 +8,27 @@ from pathlib import Path
 
 import numpy as np
 
-from ..plots import _save, _stage_axis, plt
+from matplotlib.figure import Figure
+
+from ..plots import _stage_axis, new_figure, save_figure
 from ..results import Result
 from .column import ColumnSizing
 
-__all__ = ["FLOOD_FIGURE", "flood_profile", "write_flood_figure"]
+__all__ = ["FLOOD_FIGURE", "flood_figure", "flood_profile", "write_flood_figure"]
 
 #: File name of the figure in an output folder.
 FLOOD_FIGURE = "flood.png"
 
 
 def flood_profile(sizing: ColumnSizing, stage_count: int, path: Path, title: str = "") -> Path:
+    """:func:`flood_figure` written to ``path``."""
+    return save_figure(flood_figure(sizing, stage_count, title), path)
+
+
+def flood_figure(sizing: ColumnSizing, stage_count: int, title: str = "") -> Figure:
     """Percent of flood per stage (horizontal) against stage number (vertical, top first)."""
     stages = sizing.stages
-    figure, ax = plt.subplots(figsize=(5.5, 6))
+    figure, ax = new_figure((5.5, 6))
     ax.plot(100 * sizing.rating.fraction_of_flood, stages, "o-", color="tab:blue", markersize=3,
             label="rigorous traffic, column as " + ("rated" if sizing.options.diameter else "sized"))
     if sizing.cmo_column_rating is not None:
@@ -36,7 +43,7 @@ def flood_profile(sizing: ColumnSizing, stage_count: int, path: Path, title: str
     _stage_axis(ax, stage_count)
     ax.legend(loc="best", fontsize=8)
     ax.set_title(title or "fraction of flood per stage", fontsize=9)
-    return _save(figure, path)
+    return figure
 
 
 def write_flood_figure(result: Result, folder: Path) -> list[Path]:

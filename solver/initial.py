@@ -424,6 +424,7 @@ def wang_henke_sweeps(
             # coefficients) go on relaxed: halfway to the new compositions, in their logarithms
             x = np.sqrt(np.maximum(x, 1e-300) * x_new)
             x = x / x.sum(axis=1, keepdims=True)
+            raw = x * raw.sum(axis=1, keepdims=True)  # the start's flows keep the relaxed compositions
         try:
             T_new, y_new = bubble_temperature(thermo, system.pressures, x, guess=T, max_iterations=60, vapor_guess=y)
         except ThermoError:

@@ -11,7 +11,12 @@
    stages form one sparse linear system in its liquid flows; for a column with two products
    the split is corrected by Holland's theta method so that the overhead total is the rate
    the flows were built for; temperatures then move to the bubble points of the new liquid
-   compositions.
+   compositions. Sweeps that have not settled after their number (they can cycle where the
+   K-values hang on the compositions through strongly nonideal activity coefficients) go on
+   under-relaxed, each taking the compositions halfway (in their logarithms) to the new ones
+   (successive under-relaxation of a fixed-point iteration, common practice).
+   A subcooled reflux raises the internal reflux below the top stage (see
+   :func:`subcooled_reflux_factor`).
 
 The sweeps use the stage graph's inflow matrices; the CMO flow estimate walks the stages top
 to bottom and so assumes one vertical chain (a plain column).
@@ -42,6 +47,7 @@ __all__ = [
     "estimate_split",
     "fenske_split",
     "initial_estimate",
+    "subcooled_reflux_factor",
     "theta_correction",
     "theta_correction_applies",
     "wang_henke_sweeps",
@@ -49,7 +55,7 @@ __all__ = [
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
 _PROFILE_SPECS = ("mole_fraction", "recovery", "stage_temperature")  # met by moving D on the CMO profile
-_WANG_HENKE_SWEEPS = 60  # at most; the sweeps stop when no temperature moves by 1e-3 K
+_WANG_HENKE_SWEEPS = 60  # plain sweeps at most (then as many relaxed); they stop when no temperature moves by 1e-3 K
 
 
 def fenske_split(feed_flows: np.ndarray, ln_alpha: np.ndarray, distillate, exponent: float) -> np.ndarray:
@@ -173,9 +179,14 @@ def _overhead_from_energy_balance(system: MeshSystem, duties: dict, feed: np.nda
     return float(grid[int(np.argmin(np.abs(mismatch)))])
 
 
-def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.ndarray, stage_q: np.ndarray):
+def cmo_flows(
+    system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.ndarray, stage_q: np.ndarray,
+    internal_reflux_factor: float = 1.0,
+):
     """Total liquid and vapor flows (scaled) leaving each stage under constant molar overflow,
-    walking a single chain of stages from the top."""
+    walking a single chain of stages from the top. ``internal_reflux_factor`` is the internal
+    reflux below the top stage per unit of the external reflux (above 1 for a subcooled
+    reflux, :func:`subcooled_reflux_factor`); the vapor below grows by the same flow."""
     N = system.N
     U, W = system.liquid_draws, system.vapor_draws
     F_net = system.net_feed
@@ -183,12 +194,40 @@ def cmo_flows(system: MeshSystem, D: float, V_top: float, stage_feed_totals: np.
     # liquid gains q F and loses the liquid draw going down; vapor follows from the balance
     # around the stages above
     L = reflux + np.cumsum(stage_q * stage_feed_totals - U)
+    L[1:] += (internal_reflux_factor - 1.0) * reflux
     V = np.empty(N)
     V[0] = D
     V[1:] = L[:-1] + D - np.cumsum(stage_feed_totals - U - W)[:-1]
     L[N - 1] = F_net - D
     floor = 1e-3 * F_net
     return np.maximum(L, floor), np.maximum(V, floor)
+
+
+def subcooled_reflux_factor(system: MeshSystem, T_top: float, x_top: np.ndarray) -> float:
+    """Internal reflux per unit of a total condenser's external reflux: a reflux subcooled by
+    dT condenses ``cp_L dT / lambda`` moles of vapor per mole on the stage below, so the liquid
+    leaving that stage is ``L0 (1 + cp_L dT / lambda)`` (the internal reflux of a subcooled
+    reflux, Wankat, *Separation Process Engineering*, 3rd ed., 2012, ch. 4; from memory), with
+    ``cp_L dT`` and ``lambda`` from the case's own enthalpies at the top stage's bubble point
+    ``T_top`` and liquid ``x_top``. 1 when the reflux is not subcooled."""
+    if not system.total_condenser:
+        return 1.0
+    setting = system.condenser_setting
+    if setting.reflux_temperature is not None:
+        subcooling = T_top - setting.reflux_temperature
+    else:
+        subcooling = setting.reflux_subcooling or 0.0
+    if subcooling <= 0.0:
+        return 1.0
+    thermo, P = system.thermo, system.pressures[:1]
+    T = np.array([T_top, T_top - subcooling])
+    x = np.array([x_top, x_top])
+    h_L = thermo.liquid_enthalpy(T, x, pressure=np.repeat(P, 2)).molar
+    latent = float(thermo.vapor_enthalpy(T[:1], x[:1], pressure=P).molar[0] - h_L[0])
+    sensible = float(h_L[0] - h_L[1])
+    if not (latent > 0.0 and sensible > 0.0):
+        return 1.0
+    return 1.0 + sensible / latent
 
 
 def initial_estimate(system: MeshSystem, *, correct_split: bool = True) -> np.ndarray:
@@ -254,6 +293,7 @@ class _CmoProfiles:
         self.top_vapor = top_vapor
         self.correct_split = correct_split
         self.T, self.x = T, x
+        self.internal_reflux_factor = subcooled_reflux_factor(system, float(T[system.top]), x[system.top])
         self.reflux_factor: float | None = None  # V_top / D = R + 1, once moved to meet a second spec
         self.stage_feed_totals = np.zeros(system.N)
         stage_vapor = np.zeros(system.N)
@@ -271,7 +311,8 @@ class _CmoProfiles:
 
     def at(self, D: float, V_top: float | None = None):
         """(L, V, T, x, l, S) of the sweeps on the CMO flows for D (and V_top, if given)."""
-        L, V = cmo_flows(self.system, D, self.vapor_for(D) if V_top is None else V_top, self.stage_feed_totals, self.stage_q)
+        L, V = cmo_flows(self.system, D, self.vapor_for(D) if V_top is None else V_top, self.stage_feed_totals, self.stage_q,
+                         self.internal_reflux_factor)
         T, x, l, stripping = wang_henke_sweeps(self.system, L, V, self.T, self.x, correct_split=self.correct_split)
         self.T, self.x = T, x
         return L, V, T, x, l, stripping
@@ -347,8 +388,8 @@ def wang_henke_sweeps(
     max_sweeps: int = _WANG_HENKE_SWEEPS,
     correct_split: bool = True,
 ):
-    """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K;
-    with ``correct_split`` (and two products) Holland's theta correction holds the overhead
+    """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K
+    (at most ``max_sweeps`` plain sweeps, then at most as many under-relaxed ones); with ``correct_split`` (and two products) Holland's theta correction holds the overhead
     total at ``V[top]``. Returns (T, x, component liquid flows l, stripping factors S with
     v = S l)."""
     thermo = system.thermo
@@ -367,7 +408,7 @@ def wang_henke_sweeps(
 
     two_products = correct_split and theta_correction_applies(system)
     y = None
-    for _ in range(max_sweeps):
+    for sweep in range(2 * max_sweeps):
         stripping = stripping_factors(T, x, y)
         # natural ordering keeps the elimination in stage order, where the column-wise
         # diagonal dominance of these matrices makes it stable
@@ -376,7 +417,15 @@ def wang_henke_sweeps(
         l = raw
         if two_products:
             l = theta_correction(raw, stripping[t] * raw[t], raw[system.bottom], system.total_feed_by_component, V[t])
-        x = l / l.sum(axis=1, keepdims=True)
+        x_new = l / l.sum(axis=1, keepdims=True)
+        if sweep < max_sweeps:
+            x = x_new
+        else:
+            # sweeps that have not settled (they cycle where K hangs on x through the activity
+            # coefficients) go on relaxed: halfway to the new compositions, in their logarithms
+            x = np.sqrt(np.maximum(x, 1e-300) * x_new)
+            x = x / x.sum(axis=1, keepdims=True)
+            raw = x * raw.sum(axis=1, keepdims=True)  # the start's flows keep the relaxed compositions
         step = bubble_point_step(thermo, system.pressures, x, T, y)
         if step is None:
             break

@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 
 from solver.case import load_case
 from solver.engine import build_system, simulate
-from solver.initial import _root_by_walking, cmo_flows, fenske_split, theta_correction
+from solver.initial import _root_by_walking, cmo_flows, fenske_split, subcooled_reflux_factor, theta_correction
 
 CASES = Path(__file__).resolve().parent.parent / "cases"
 
@@ -77,6 +77,23 @@ def test_cmo_flows_of_a_simple_column():
     assert V[0] == pytest.approx(0.4) and L[0] == pytest.approx(0.8)  # overhead and reflux
     assert L[f] - L[f - 1] == pytest.approx(totals[f])  # a boiling-liquid feed joins the liquid
     assert L[-1] == pytest.approx(system.net_feed - 0.4)  # the bottoms
+
+
+def test_a_subcooled_reflux_raises_the_internal_reflux_by_cp_dT_over_latent_heat():
+    system = build_system(load_case(CASES / "acetone_subcooled_reflux.toml"))  # 25 K subcooled
+    x_top = np.array([0.98, 0.02])
+    factor = subcooled_reflux_factor(system, 329.3, x_top)
+    # nearly pure acetone: cp of the liquid about 126 J/(mol K), heat of vaporization about
+    # 29.1 kJ/mol at its normal boiling point (CRC Handbook values, from memory):
+    # 1 + 126 * 25 / 29100 = 1.108
+    assert factor == pytest.approx(1.108, rel=0.02)
+    totals = np.zeros(system.N)
+    np.add.at(totals, system.graph.feed_stages, [feed.flow / system.flow_scale for feed in system.feeds])
+    L, V = cmo_flows(system, 0.2, 0.6, totals, np.ones(system.N), factor)
+    assert L[0] == pytest.approx(0.4) and L[1] == pytest.approx(0.4 * factor)  # external, internal reflux
+    assert V[2] - V[1] == pytest.approx(0.4 * (factor - 1.0))  # the vapor the cold reflux condenses
+    plain = build_system(load_case(CASES / "benzene_toluene.toml"))
+    assert subcooled_reflux_factor(plain, 360.0, np.array([0.95, 0.05])) == 1.0
 
 
 def test_the_default_start_solves_subcooled_feed_and_reflux_without_homotopy():

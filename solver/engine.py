@@ -17,7 +17,7 @@ import numpy as np
 from .case import Case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
-from .feasibility import check_binary_limits, check_specifications
+from .feasibility import check_binary_limits, check_specifications, check_total_reflux_bound
 from .initial import initial_estimate, theta_correction_applies
 from .mesh import CondenserSetting, MeshSystem, feed_sums_by_stage
 from .network import StageGraph, build_stage_graph
@@ -155,6 +155,17 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
             float(graph.stage_count) if all_equilibrium else None,
             graph.condenser,
         )
+    if _one_chain_of_equilibrium_stages(case, graph):
+        check_total_reflux_bound(
+            case.specs,
+            case.component_names,
+            thermo,
+            graph.pressures,
+            np.asarray(case.feeds[0].composition),
+            graph.stage_count - (1 if graph.condenser == "total" else 0),
+            {"distillate": case.feeds[0].stage - (2 if graph.condenser == "total" else 1),
+             "bottoms": graph.stage_count - case.feeds[0].stage},
+        )
     return MeshSystem(
         graph,
         thermo,
@@ -162,6 +173,21 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
         case.specs,
         case.component_names,
         condenser_setting=CondenserSetting(case.column.reflux_temperature, case.column.reflux_subcooling),
+    )
+
+
+def _one_chain_of_equilibrium_stages(case: Case, graph: StageGraph) -> bool:
+    """Whether Fenske's bound applies as :func:`~solver.feasibility.check_total_reflux_bound`
+    proves it: one feed, no side draws, every stage an equilibrium stage, the liquid going
+    from each stage to the next and the vapor back (no pumparound or other loop)."""
+    N = graph.stage_count
+    chain = np.column_stack([np.arange(N - 1), np.arange(1, N)])
+    return (
+        len(case.feeds) == 1
+        and not np.any(graph.liquid_draws) and not np.any(graph.vapor_draws)
+        and bool(np.all(graph.efficiencies == 1.0))
+        and np.array_equal(np.asarray(graph.liquid_edges).reshape(-1, 2), chain)
+        and np.array_equal(np.asarray(graph.vapor_edges).reshape(-1, 2), chain[:, ::-1])
     )
 
 

@@ -101,3 +101,15 @@ def test_audit_says_on_screen_that_real_stages_face_theoretical_ones(capsys, tmp
     assert code in (0, 1), err
     assert "note: the audit's columns have equilibrium stages" in out
     assert "real stages, Murphree E 0.963" in (tmp_path / "out" / "summary.md").read_text()  # the column beside the shortcut's
+
+
+def test_an_impossible_bottoms_purity_is_refused_before_solving(capsys, tmp_path):
+    """Before the fix the engine tried and failed after a Newton log (exit 3)."""
+    case = tmp_path / "stripper_too_short.toml"
+    text = (CASES / "benzene_toluene.toml").read_text().replace("stage = 8", "stage = 14")
+    case.write_text(text.replace("distillate = { benzene = 0.98 }", "bottoms = { toluene = 0.999999999 }"))
+    code, _, err = in_process(capsys, "run", case, "--out", tmp_path / "out")
+    assert code == 2, err
+    assert "stripper_too_short.toml" in err and "specs.bottoms.toluene = 0.999999999" in err, err
+    assert "equilibrium stages even at total reflux; the column has 15" in err
+    assert not (tmp_path / "out" / "result.json").exists()

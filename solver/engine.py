@@ -34,6 +34,7 @@ from .thermo.package import ThermoPackage
 __all__ = [
     "FALLBACK_CHAIN",
     "POST_CHECK_TOLERANCE",
+    "LONG_COLUMN",
     "VANISHING_FLOW",
     "build_system",
     "case_summary",
@@ -301,7 +302,7 @@ def _fallback_chain(
             break
         try:
             found, record = rung()
-        except ThermoError as exc:  # e.g. a bubble point of a later rung's start above the critical point
+        except (ThermoError, ConvergenceError) as exc:  # e.g. a bubble point above the critical point, a NaN start
             found, record = None, {name.replace(" ", "_") + "_failed": str(exc)}
         strategy.update(record)
         if found is not None and found.converged:
@@ -407,6 +408,8 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
         )
         if problem is not None:
             message = f"{message}; at the last point {problem}"
+    if not converged and system.N >= LONG_COLUMN:
+        message = f"{message}; {_long_column_advice(system.N)}"
     split = None
     if converged:
         split = check_liquids(thermo.activity, result.temperature, result.x,
@@ -414,6 +417,19 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy,
                                thermo=_with_range_notes(result.thermo, thermo.pure, result.temperature),
                                liquid_split=split)
+
+
+#: Stage count from which an unconverged column's message says what to change about its length.
+LONG_COLUMN = 300
+
+
+def _long_column_advice(stages: int) -> str:
+    return (
+        f"the column has {stages} stages, over which the default start (CMO flows, bubble-point sweeps) is poor "
+        "and every rung of the fallback chain is slow: give fewer stages (a few times the Fenske minimum at total "
+        "reflux is usually plenty), or solve a shorter column first and start this one from its profile "
+        "(solver.simulate(case, start=...))"
+    )
 
 
 def _with_range_notes(record: dict, pure: Any, temperature: np.ndarray) -> dict:

@@ -17,7 +17,7 @@ import numpy as np
 from .case import Case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
-from .feasibility import check_binary_limits, check_specifications
+from .feasibility import check_binary_limits, check_specifications, check_total_reflux_bound
 from .initial import initial_estimate, theta_correction_applies
 from .mesh import CondenserSetting, MeshSystem, feed_sums_by_stage
 from .network import StageGraph, build_stage_graph
@@ -34,6 +34,7 @@ from .thermo.package import ThermoPackage
 __all__ = [
     "FALLBACK_CHAIN",
     "POST_CHECK_TOLERANCE",
+    "LONG_COLUMN",
     "VANISHING_FLOW",
     "build_system",
     "case_summary",
@@ -155,6 +156,17 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
             float(graph.stage_count) if all_equilibrium else None,
             graph.condenser,
         )
+    if _one_chain_of_equilibrium_stages(case, graph):
+        check_total_reflux_bound(
+            case.specs,
+            case.component_names,
+            thermo,
+            graph.pressures,
+            np.asarray(case.feeds[0].composition),
+            graph.stage_count - (1 if graph.condenser == "total" else 0),
+            {"distillate": case.feeds[0].stage - (2 if graph.condenser == "total" else 1),
+             "bottoms": graph.stage_count - case.feeds[0].stage},
+        )
     return MeshSystem(
         graph,
         thermo,
@@ -162,6 +174,21 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
         case.specs,
         case.component_names,
         condenser_setting=CondenserSetting(case.column.reflux_temperature, case.column.reflux_subcooling),
+    )
+
+
+def _one_chain_of_equilibrium_stages(case: Case, graph: StageGraph) -> bool:
+    """Whether Fenske's bound applies as :func:`~solver.feasibility.check_total_reflux_bound`
+    proves it: one feed, no side draws, every stage an equilibrium stage, the liquid going
+    from each stage to the next and the vapor back (no pumparound or other loop)."""
+    N = graph.stage_count
+    chain = np.column_stack([np.arange(N - 1), np.arange(1, N)])
+    return (
+        len(case.feeds) == 1
+        and not np.any(graph.liquid_draws) and not np.any(graph.vapor_draws)
+        and bool(np.all(graph.efficiencies == 1.0))
+        and np.array_equal(np.asarray(graph.liquid_edges).reshape(-1, 2), chain)
+        and np.array_equal(np.asarray(graph.vapor_edges).reshape(-1, 2), chain[:, ::-1])
     )
 
 
@@ -275,7 +302,7 @@ def _fallback_chain(
             break
         try:
             found, record = rung()
-        except ThermoError as exc:  # e.g. a bubble point of a later rung's start above the critical point
+        except (ThermoError, ConvergenceError) as exc:  # e.g. a bubble point above the critical point, a NaN start
             found, record = None, {name.replace(" ", "_") + "_failed": str(exc)}
         strategy.update(record)
         if found is not None and found.converged:
@@ -381,6 +408,8 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
         )
         if problem is not None:
             message = f"{message}; at the last point {problem}"
+    if not converged and system.N >= LONG_COLUMN:
+        message = f"{message}; {_long_column_advice(system.N)}"
     split = None
     if converged:
         split = check_liquids(thermo.activity, result.temperature, result.x,
@@ -388,6 +417,19 @@ def _judged(result: Result, system: MeshSystem, strategy: dict[str, Any]) -> Res
     return dataclasses.replace(result, converged=converged, message=message, post_check=check, strategy=strategy,
                                thermo=_with_range_notes(result.thermo, thermo.pure, result.temperature),
                                liquid_split=split)
+
+
+#: Stage count from which an unconverged column's message says what to change about its length.
+LONG_COLUMN = 300
+
+
+def _long_column_advice(stages: int) -> str:
+    return (
+        f"the column has {stages} stages, over which the default start (CMO flows, bubble-point sweeps) is poor "
+        "and every rung of the fallback chain is slow: give fewer stages (a few times the Fenske minimum at total "
+        "reflux is usually plenty), or solve a shorter column first and start this one from its profile "
+        "(solver.simulate(case, start=...))"
+    )
 
 
 def _with_range_notes(record: dict, pure: Any, temperature: np.ndarray) -> dict:

@@ -24,7 +24,7 @@ import numpy as np
 from .case import Spec
 from .errors import SpecError
 
-__all__ = ["check_binary_limits", "check_specifications"]
+__all__ = ["check_binary_limits", "check_specifications", "check_total_reflux_bound"]
 
 
 def check_specifications(
@@ -213,3 +213,105 @@ def check_binary_limits(
                 f"{top.key} = {top.value:g} with {bottom.key} = {bottom.value:g} needs at least {needed:.2f} stages even at "
                 f"total reflux; the column has {equilibrium_stages_available:g}"
             )
+
+
+
+def check_total_reflux_bound(
+    specs: Sequence[Spec],
+    component_names: Sequence[str],
+    thermo,
+    pressures: Sequence[float],
+    feed_composition: np.ndarray,
+    equilibrium_stages: int,
+    section_stages: dict[str, int] | None = None,
+) -> None:
+    """Refuse a product mole fraction that no column of ``equilibrium_stages`` equilibrium
+    stages reaches, even at total reflux: Fenske's bound (Fenske 1932, Ind. Eng. Chem. 24, 482)
+    with the case's own K-values, made certain.
+
+    For a column that is one chain of equilibrium stages with one feed and no side draws, the
+    component balances of the sections above and below the feed make a stage's liquid ratio
+    ``x_a / x_b`` at most ``alpha`` times the one of the stage below, where ``alpha >= 1``
+    bounds ``K_a / K_b`` everywhere in the column: the ratio in the distillate is at most
+    ``alpha**N`` times the one in the bottoms. A purity ``x_s`` of a product bounds its ratio of
+    each other component to ``s`` by ``(1 - x_s) / x_s``; the overall balance bounds the other
+    product's ratio by the feed's (the limit of every product split). ``alpha`` is the largest
+    relative volatility of the pair over the liquids between the two components (and the feed)
+    at their bubble points at the top and bottom pressures and at the column's extreme
+    temperatures: the most favourable volatility. If a property evaluation fails the check is
+    skipped: it refuses only what is certain and leaves the rest to the engine.
+    ``section_stages`` (equilibrium stages between the feed and each product, by product) only
+    adds to the message."""
+    names = list(component_names)
+    z = np.asarray(feed_composition, dtype=float)
+    z = z / z.sum()
+    for spec in specs:
+        if spec.kind != "mole_fraction" or spec.product not in ("distillate", "bottoms") or not 0.0 < spec.value < 1.0:
+            continue
+        s = names.index(spec.component)
+        worst = None
+        for other in range(len(names)):
+            if other == s or z[other] <= 0.0 or z[s] <= 0.0:
+                continue
+            # a: the component the distillate is richer in than the bottoms, b: the other one
+            a, b = (s, other) if spec.product == "distillate" else (other, s)
+            purity_ratio = spec.value / (1.0 - spec.value) if spec.product == "distillate" else (1.0 - spec.value) / spec.value
+            distillate_ratio, bottoms_ratio = (
+                (purity_ratio, z[a] / z[b]) if spec.product == "distillate" else (z[a] / z[b], purity_ratio)
+            )
+            if distillate_ratio <= bottoms_ratio:
+                continue  # the feed is already that pure in this pair
+            volatility = _largest_volatility(thermo, pressures, z, a, b)
+            if volatility is None:
+                return
+            alpha, low, high = volatility
+            needed = np.inf if alpha <= 1.0 else float(np.log(distillate_ratio / bottoms_ratio) / np.log(alpha))
+            if worst is None or needed > worst[0]:
+                worst = (needed, alpha, low, high, a, b)
+        if worst is not None and worst[0] > equilibrium_stages + 1e-9:
+            needed, alpha, low, high, a, b = worst
+            stages = "no number of" if not np.isfinite(needed) else f"at least {needed:.1f}"
+            section = (section_stages or {}).get(spec.product)
+            side = "" if section is None else f" ({section} of them on the {spec.product} side of the feed)"
+            raise SpecError(
+                f"{_label(spec)} = {spec.value:.12g} needs {stages} equilibrium stages even at total reflux; the column "
+                f"has {equilibrium_stages}{side}: add stages or relax the {spec.product} purity (Fenske with the relative "
+                f"volatility {names[a]}/{names[b]} at its largest in the column, {alpha:.4g}, between "
+                f"{low - 273.15:.1f} and {high - 273.15:.1f} degC, from a feed with {names[a]}/{names[b]} = "
+                f"{z[a] / z[b]:.4g})"
+            )
+
+
+def _largest_volatility(thermo, pressures: Sequence[float], z: np.ndarray, a: int, b: int) -> tuple[float, float, float] | None:
+    """The largest ``K_a / K_b`` (at least 1) over the liquids between pure ``a`` and pure
+    ``b`` and the feed, at their bubble points at the lowest and highest pressure and, where K
+    does not depend on the vapor, also at the lowest and highest of those temperatures; with
+    that temperature range. None if a property evaluation fails."""
+    from .thermo.flash import bubble_temperature
+
+    c = z.size
+    shares = np.concatenate([[1e-6], np.linspace(0.05, 0.95, 19), [1.0 - 1e-6]])
+    liquids = np.full((shares.size, c), 1e-9)
+    liquids[:, a] = shares
+    liquids[:, b] = 1.0 - shares
+    liquids = np.vstack([liquids, z])
+    liquids = liquids / liquids.sum(axis=1, keepdims=True)
+    P = np.array([min(pressures), max(pressures)], dtype=float)
+    x = np.repeat(liquids, 2, axis=0)
+    P_rows = np.tile(P, liquids.shape[0])
+    try:
+        with np.errstate(all="ignore"):
+            T, _ = bubble_temperature(thermo, P_rows, x)
+            rows_T, rows_P, rows_x = [T], [P_rows], [x]
+            if not thermo.vapor_dependent:
+                for extreme in (float(np.min(T)), float(np.max(T))):
+                    rows_T.append(np.full(T.size, extreme))
+                    rows_P.append(P_rows)
+                    rows_x.append(x)
+            K = thermo.k_values(np.concatenate(rows_T), np.concatenate(rows_P), np.concatenate(rows_x), derivatives=False).K
+            ratio = K[:, a] / K[:, b]
+    except Exception:  # a guard, never a reason to refuse a case
+        return None
+    if not (np.all(np.isfinite(ratio)) and np.all(np.isfinite(T))):
+        return None
+    return max(float(np.max(ratio)), 1.0), float(np.min(T)), float(np.max(T))

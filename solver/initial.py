@@ -31,13 +31,13 @@ from __future__ import annotations
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 from scipy.optimize import brentq
 from scipy.special import expit
 
 from .case import Spec
 from .errors import ThermoError
 from .mesh import TEMPERATURE_SCALE, MeshSystem
+from .sparse_solve import sparse_solve
 from .thermo.flash import bubble_temperature
 
 __all__ = [
@@ -408,11 +408,16 @@ def wang_henke_sweeps(
 
     two_products = correct_split and theta_correction_applies(system)
     y = None
+    raw = None
     for sweep in range(2 * max_sweeps):
         stripping = stripping_factors(T, x, y)
         # natural ordering keeps the elimination in stage order, where the column-wise
         # diagonal dominance of these matrices makes it stable
-        solution = spla.spsolve(component_balance_matrix(system, L, V, stripping), rhs, permc_spec="NATURAL")
+        solution = sparse_solve(component_balance_matrix(system, L, V, stripping), rhs, permc_spec="NATURAL")
+        if solution is None:
+            # singular or overflowing (stripping factors multiplied over a very long column):
+            # keep the last sweep's profile rather than carry NaN into the start
+            break
         raw = np.maximum(solution.reshape(c, N).T, 1e-30)
         l = raw
         if two_products:
@@ -432,6 +437,8 @@ def wang_henke_sweeps(
         T, y, moved = step
         if moved < tolerance:
             break
+    if raw is None:  # not one sweep solved: the flows of the given compositions
+        raw = L[:, None] * x
     return T, x, raw, stripping_factors(T, x, y)
 
 

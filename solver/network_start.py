@@ -26,10 +26,10 @@ from __future__ import annotations
 
 import numpy as np
 import scipy.sparse as sp
-import scipy.sparse.linalg as spla
 
 from .initial import bubble_point_step
 from .network_mesh import NetworkSystem
+from .sparse_solve import sparse_solve
 from .thermo.flash import bubble_temperature
 
 __all__ = ["cmo_network_flows", "network_initial_estimate", "network_sweeps"]
@@ -117,8 +117,8 @@ def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, 
     for r, (condenser, reboiler, _) in enumerate(system.heat_links, start=2 * N + len(system.specs) + len(system.internal_rows)):
         A[r, 2 * N + system.extra_index(condenser)] = 1.0
         A[r, 2 * N + system.extra_index(reboiler)] = 1.0
-    solution = spla.spsolve(A.tocsc(), b)
-    if not np.all(np.isfinite(solution)):
+    solution = sparse_solve(A.tocsc(), b)
+    if solution is None:
         solution = np.linalg.lstsq(A.toarray(), b, rcond=None)[0]
     floor = 1e-3
     L = np.maximum(solution[:N], floor)
@@ -271,7 +271,9 @@ def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = 
         K = thermo.k_values(T, system.pressures, x, derivatives=False, y=y).K
         S = K * (V / L)[:, None]
         S[tops] = (V[tops] / L[tops])[:, None]
-        solution = spla.spsolve(_balance_matrix(system, L, V, U, W, rates, S), rhs)
+        solution = sparse_solve(_balance_matrix(system, L, V, U, W, rates, S), rhs)
+        if solution is None:  # singular or overflowing: keep the last sweep's profile
+            break
         l = np.maximum(solution.reshape(c, N).T, 1e-30)
         x = l / l.sum(axis=1, keepdims=True)
         step = bubble_point_step(thermo, system.pressures, x, T, y)

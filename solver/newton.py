@@ -19,10 +19,10 @@ from dataclasses import dataclass, field
 from typing import Callable
 
 import numpy as np
-import scipy.sparse.linalg as spla
 
 from .errors import ConvergenceError
 from .mesh import MeshSystem
+from .sparse_solve import lu_solve
 
 __all__ = [
     "IterationRecord",
@@ -210,11 +210,10 @@ def _check_finite(values: np.ndarray, what: str, namer: Callable[[int], str], lo
 
 def _newton_step(current) -> tuple[np.ndarray | None, str]:
     """The full Newton step ``-J^-1 F`` by sparse LU, or None and the reason there is none."""
-    try:
-        step = spla.splu(current.jacobian).solve(-current.residuals)
-    except RuntimeError as exc:  # exactly singular
-        return None, f"the Jacobian is singular ({exc}); the specifications may not fix the column"
-    if not np.all(np.isfinite(step)):
+    step, reason = lu_solve(current.jacobian, -current.residuals)
+    if step is None:
+        if reason.startswith("singular"):
+            return None, f"the Jacobian is {reason}; the specifications may not fix the column"
         return None, "the Newton step is not finite (ill-conditioned Jacobian)"
     return step, ""
 

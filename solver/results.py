@@ -86,7 +86,8 @@ class Result:
     temperature: np.ndarray  # (N,) K
     pressure: np.ndarray  # (N,) Pa
     liquid_flow: np.ndarray  # (N,) mol/s, the L slot
-    vapor_flow: np.ndarray  # (N,) mol/s, the V slot
+    vapor_flow: np.ndarray  # (N,) mol/s, the engine's V slot: on a total condenser it holds the liquid distillate;
+    # everything shown (stage_records, result.json, stages.csv, tables, the audit) has V = 0 there instead
     x: np.ndarray  # (N, c)
     y: np.ndarray  # (N, c), composition of the vapor slot (of the liquid distillate, for a total condenser)
     K: np.ndarray  # (N, c)
@@ -339,6 +340,9 @@ class Result:
                     "L_V": "flows leaving a stage for its neighbours, side draws excluded; total condenser: "
                     "L = reflux, V = 0, distillate in liquid_draw; partial condenser: V = vapor distillate; "
                     "reboiler: L = bottoms",
+                    "top_stage_vapor": "the vapor leaving stage 1: 0 for a total condenser (the liquid distillate is "
+                    "its liquid_draw), the vapor distillate for a partial condenser; the same in stages.csv, the stage "
+                    "table and the audit's CMO table",
                     "duty": "heat added to the stage",
                     "equilibrium": "y_j = E_j K_j x_j + (1 - E_j) y_(j+1), K = gamma Psat / P",
                 },

@@ -101,3 +101,39 @@ def test_audit_says_on_screen_that_real_stages_face_theoretical_ones(capsys, tmp
     assert code in (0, 1), err
     assert "note: the audit's columns have equilibrium stages" in out
     assert "real stages, Murphree E 0.963" in (tmp_path / "out" / "summary.md").read_text()  # the column beside the shortcut's
+
+
+def test_an_impossible_bottoms_purity_is_refused_before_solving(capsys, tmp_path):
+    """Before the fix the engine tried and failed after a Newton log (exit 3)."""
+    case = tmp_path / "stripper_too_short.toml"
+    text = (CASES / "benzene_toluene.toml").read_text().replace("stage = 8", "stage = 14")
+    case.write_text(text.replace("distillate = { benzene = 0.98 }", "bottoms = { toluene = 0.999999999 }"))
+    code, _, err = in_process(capsys, "run", case, "--out", tmp_path / "out")
+    assert code == 2, err
+    assert "stripper_too_short.toml" in err and "specs.bottoms.toluene = 0.999999999" in err, err
+    assert "equilibrium stages even at total reflux; the column has 15" in err
+    assert not (tmp_path / "out" / "result.json").exists()
+
+
+@pytest.mark.parametrize("condenser", ["total", "partial"])
+def test_top_stage_vapor_is_shown_by_one_convention(condenser):
+    """The audit's CMO table showed the distillate as the vapor leaving a total condenser while
+    the stage table, stages.csv and result.json show 0 there (the distillate being the liquid
+    draw). Now every shown table agrees with the result file's stages."""
+    from solver.audit.cmo import cmo_audit
+    from solver.audit.record import cmo_record
+    from solver.case import loads_case
+    from solver.engine import simulate
+
+    text = (CASES / "benzene_toluene.toml").read_text().replace('condenser = "total"', f'condenser = "{condenser}"')
+    result = simulate(loads_case(text, source_file="bt.toml"))
+    assert result.converged
+    stages = result.to_dict()["stages"]
+    audit = cmo_audit(result)
+    expected_top = 0.0 if condenser == "total" else result.distillate_flow
+    assert stages[0]["V"] == pytest.approx(expected_top, abs=1e-12)
+    assert audit.vapor[0] == pytest.approx(expected_top, abs=1e-12)
+    assert audit.vapor_cmo[0] == pytest.approx(expected_top, abs=1e-12)
+    rows = cmo_record(audit)["stages"]
+    assert [row["V"] for row in rows] == pytest.approx([stage["V"] for stage in stages], rel=1e-12, abs=1e-12)
+    assert "top_stage_vapor" in result.to_dict()["conventions"]

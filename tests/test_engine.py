@@ -297,3 +297,21 @@ def test_the_second_start_is_the_sweeps_without_the_theta_correction(monkeypatch
     assert result.converged and result.strategy["rung"] == "second start"
     assert result.strategy["second_start"] == {"converged": True, "newton_iterations": result.iterations}
     np.testing.assert_allclose(result.temperature, reference.temperature, atol=1e-6)
+
+
+def test_an_unconverged_long_column_says_what_to_change():
+    """A 300-stage column stopped after one Newton iteration per rung: the message names the
+    stage count and suggests fewer stages or a start from a shorter column."""
+    text = (Path(__file__).resolve().parent.parent / "cases" / "benzene_toluene.toml").read_text()
+    case = load_case_text(text.replace("stages = 16", "stages = 300").replace("stage = 8", "stage = 150"))
+    result = simulate(case, options=NewtonOptions(max_iterations=1), continuation=False, shortening=0)
+    assert not result.converged
+    assert "the column has 300 stages" in result.message and "give fewer stages" in result.message
+    short = simulate(methanol_water_case(), options=NewtonOptions(max_iterations=1), continuation=False, shortening=0)
+    assert not short.converged and "give fewer stages" not in short.message
+
+
+def load_case_text(text: str):
+    from solver.case import loads_case
+
+    return loads_case(text, source_file="long_column.toml")

@@ -56,7 +56,9 @@ class CMOAudit:
     internal flow (1..N-1), ``vapor_deviation`` likewise (2..N), NaN elsewhere. For a binary,
     ``line_distance[j]`` is ``y_j+1 - y_line(x_j)``, the vertical distance of the rigorous
     operating curve from the straight operating line of the same section (lines through the
-    products the column delivers, slopes from the CMO flows), NaN for the last stage."""
+    products the column delivers, slopes from the CMO flows), NaN for the last stage.
+    ``liquid`` and ``vapor`` follow the result file's stream conventions: no vapor leaves a
+    total condenser (its distillate is the liquid draw)."""
 
     feed_stage: int
     q: float
@@ -113,8 +115,10 @@ def cmo_audit(result: Result, light: int | None = None) -> CMOAudit:
     liquid_cmo = np.where(numbers < f, L_top, L_bottom)
     vapor_cmo = np.where(numbers <= f, V_top, V_bottom)
     liquid_cmo[-1] = B
-    vapor_cmo[0] = D
     L, V = result.liquid_flow.copy(), result.vapor_flow.copy()
+    # the result file's convention: no vapor leaves a total condenser (its distillate is the
+    # liquid draw); a partial condenser's vapor is the distillate
+    vapor_cmo[0] = V[0] = 0.0 if result.condenser == "total" else D
     liquid_deviation = np.full(N, np.nan)
     vapor_deviation = np.full(N, np.nan)
     liquid_deviation[:-1] = L[:-1] / liquid_cmo[:-1] - 1.0

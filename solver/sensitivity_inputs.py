@@ -156,8 +156,7 @@ def _with_pair_term(index: int, term: str, side: int) -> Apply:
         moved = dataclasses.replace(case, thermo=dataclasses.replace(case.thermo, pairs=tuple(pairs)))
         # the pairs fitted to UNIFAC do not depend on the stated ones: kept, not fitted again
         activity = activity_model(moved, moved.component_names, getattr(thermo, "predicted_pairs", ()))
-        return moved, ThermoPackage(thermo.pure, activity, enthalpy=thermo.enthalpy_model,
-                                    cmo_latent_heat=thermo.cmo_latent_heat)
+        return moved, thermo.replaced(activity=activity)
     return apply
 
 
@@ -178,11 +177,7 @@ def _with_vapor_pressure_shift(component: int) -> Apply:
         shift = np.array(pure.shift if isinstance(pure, ShiftedVaporPressure) else np.zeros(thermo.component_count))
         shift[component] = value
         base = pure._pure if isinstance(pure, ShiftedVaporPressure) else pure
-        shifted = ThermoPackage(
-            ShiftedVaporPressure(base, shift), thermo.activity, enthalpy=thermo.enthalpy_model,
-            cmo_latent_heat=thermo.cmo_latent_heat,
-        )
-        return case, shifted
+        return case, thermo.replaced(pure=ShiftedVaporPressure(base, shift))
     return apply
 
 

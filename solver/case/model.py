@@ -129,14 +129,14 @@ class InteractionParameter:
 @dataclass(frozen=True)
 class ThermoOptions:
     liquid: str = "ideal"  # ideal | wilson | nrtl | uniquac | unifac | unifac-dortmund | peng-robinson | soave-redlich-kwong
-    vapor: str = "ideal"  # ideal | the equation of state of the liquid
+    vapor: str = "ideal"  # ideal | the equation of state of the liquid | peng-robinson or soave-redlich-kwong beside an activity model
     enthalpy: str = "rigorous"  # rigorous | cmo
     pairs: tuple[BinaryParameters, ...] = ()
     uniquac_structure: Mapping[str, tuple[float, float]] = field(default_factory=_frozen_mapping)  # name -> (r, q)
     wilson_volumes: Mapping[str, float] = field(default_factory=_frozen_mapping)  # name -> m3/mol, for energy-form Wilson
     groups: Mapping[str, Mapping[str, int]] = field(default_factory=_frozen_mapping)  # name -> {UNIFAC subgroup: count}
     missing_pairs: str = ""  # "" (a missing pair is an error) | unifac | unifac-dortmund | ideal
-    interaction: tuple[InteractionParameter, ...] = ()  # k_ij of the equation of state
+    interaction: tuple[InteractionParameter, ...] = ()  # k_ij of the equation of state (of both phases or the vapor)
 
 
 @dataclass(frozen=True)

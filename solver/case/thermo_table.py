@@ -1,5 +1,6 @@
-"""The ``[thermo]`` table: the liquid, vapor and enthalpy models, the per-component tables
-``[thermo.wilson_volumes]`` and ``[thermo.uniquac_structure]``, and the binary parameters
+"""The ``[thermo]`` table: the liquid, vapor and enthalpy models (an equation of state for
+both phases, or an activity model beside an ideal vapor or an equation of state for the
+vapor), the per-component tables ``[thermo.wilson_volumes]`` and ``[thermo.uniquac_structure]``, and the binary parameters
 ``[thermo.MODEL.I.J]`` of the activity model (see :class:`~solver.case.model.BinaryParameters`)."""
 
 from __future__ import annotations
@@ -85,9 +86,10 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
     groups = read_unifac_groups(table, liquid, missing_pairs, names, at)
     interaction: tuple[InteractionParameter, ...] = ()
     if "interaction" in table:
-        if liquid not in _CUBIC_MODELS:
+        if liquid not in _CUBIC_MODELS and vapor not in _CUBIC_MODELS:
             at.child("interaction").fail(
-                f"not used: thermo.liquid is {liquid!r}", "interaction", "k_ij only with an equation of state: "
+                f"not used: thermo.liquid is {liquid!r} and thermo.vapor is {vapor!r}", "interaction",
+                "k_ij only with an equation of state: liquid or vapor = "
                 + " or ".join(repr(m) for m in _CUBIC_MODELS)
             )
         interaction = _read_interaction(table["interaction"], names, at.child("interaction"))
@@ -159,7 +161,7 @@ def read_unifac_groups(
 
 def _read_vapor(table: Mapping, liquid: str, at: At) -> str:
     """With an equation of state for the liquid the vapor is the same equation (the default);
-    otherwise the vapor is ideal."""
+    beside an activity model the vapor is ideal (the default) or an equation of state."""
     vapor_at = at.child("vapor")
     if liquid in _CUBIC_MODELS:
         vapor = read_choice(table.get("vapor", liquid), vapor_at, _CUBIC_MODELS + ("ideal",))
@@ -167,7 +169,7 @@ def _read_vapor(table: Mapping, liquid: str, at: At) -> str:
             vapor_at.fail(f"with liquid = {liquid!r} both phases come from that equation of state", vapor,
                           f"{liquid!r} (or leave vapor out)")
         return vapor
-    return read_choice(table.get("vapor", "ideal"), vapor_at, ("ideal",))
+    return read_choice(table.get("vapor", "ideal"), vapor_at, ("ideal",) + _CUBIC_MODELS)
 
 
 _INTERACTION_FIELDS = {

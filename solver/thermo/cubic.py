@@ -282,7 +282,8 @@ class CubicPhase:
     ``single_root (n,)`` True where the cubic had one real root (phase identity ambiguous),
     ``ln_phi (n,c)``, ``d_ln_phi_dT (n,c)`` [1/K], ``d_ln_phi_dP (n,c)`` [1/Pa],
     ``d_ln_phi_dx (n,c,c)`` with ``[s, i, k] = d ln phi_i / d x_k``, ``departure_enthalpy (n,)``
-    H - H_ig [J/mol], ``d_departure_dT (n,)`` [J/mol/K], ``d_departure_dx (n,c)`` [J/mol].
+    H - H_ig [J/mol], ``d_departure_dT (n,)`` [J/mol/K], ``d_departure_dx (n,c)`` [J/mol],
+    ``d_departure_dP (n,)`` [J/mol/Pa] = V - T (dV/dT)_P = -R T^2 (dZ/dT)_P / P (less the shift).
     The derivative arrays are None when they were not asked for."""
 
     Z: np.ndarray
@@ -295,6 +296,7 @@ class CubicPhase:
     departure_enthalpy: np.ndarray
     d_departure_dT: np.ndarray | None
     d_departure_dx: np.ndarray | None
+    d_departure_dP: np.ndarray | None = None
 
     def rows(self, part: slice) -> "CubicPhase":
         return CubicPhase(*(None if value is None else value[part] for value in self.__dict__.values()))
@@ -398,6 +400,7 @@ def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray,
     Z_P = (Z_A * A + Z_B * B) * inverse_P
     B_P = B * inverse_P
     d_ln_phi_dP = beta * Z_P - (Z_P - B_P) / zb - E * (L_Z * Z_P + L_B * B_P)
+    d_departure_dP = -(RT * T) * inverse_P * Z_T
 
     # composition: G_ik = beta_i rho_k + E_i sigma_k + tau_k - kappa a_ik for independent w,
     # then d/dx_k = (G_ik - sum_j w_j G_ij) / sum(x); sum_j w_j a_ij = q_i, so with the
@@ -430,11 +433,12 @@ def _evaluate(par: CubicParameters, T: np.ndarray, P: np.ndarray, x: np.ndarray,
     if shift is not None:
         d_ln_phi_dT += shift * (P / (RT * T))
         d_ln_phi_dP -= shift / RT
+        d_departure_dP -= shift_mix
     d_departure_dx = -(RT * T) * d_ln_phi_dT  # partial molar departure enthalpies
     return CubicPhase(
         Z, volume, single_root, np.ascontiguousarray(ln_phi.T), np.ascontiguousarray(d_ln_phi_dT.T),
         np.ascontiguousarray(d_ln_phi_dP.T), d_ln_phi_dx, departure, d_departure_dT,
-        np.ascontiguousarray(d_departure_dx.T),
+        np.ascontiguousarray(d_departure_dx.T), d_departure_dP * total,
     )
 
 

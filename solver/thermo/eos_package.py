@@ -19,7 +19,7 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 
@@ -35,7 +35,8 @@ from .pure import PureComponents
 if TYPE_CHECKING:
     from ..case import Case
 
-__all__ = ["CUBIC_MODELS", "CubicThermoPackage", "cubic_parameters"]
+__all__ = ["CUBIC_MODELS", "CubicThermoPackage", "as_phase_enthalpy", "cubic_parameters", "incipient_vapor",
+           "phase_composition"]
 
 CUBIC_MODELS = ("peng-robinson", "soave-redlich-kwong")
 
@@ -49,14 +50,16 @@ _SAME_ROOT = 1e-4
 def cubic_parameters(case: Case) -> CubicParameters:
     """Critical constants and acentric factors of the case's components (CoolProp's for its
     fluids, ``acentric_factor`` of ``[components.data]`` for user components) and the k_ij of
-    ``[thermo.interaction]``."""
+    ``[thermo.interaction]``, for the case's equation of state (its liquid model, or the vapor
+    model beside an activity model)."""
+    variant = case.thermo.liquid if case.thermo.liquid in CUBIC_MODELS else case.thermo.vapor
     names = tuple(case.component_names)
     tc, pc, omega, sources = [], [], [], []
     for name in names:
         info = component_info(name, case.component_data)
         tc.append(info.critical_temperature)
         pc.append(info.critical_pressure)
-        omega.append(_acentric_factor(case, info))
+        omega.append(_acentric_factor(case, info, variant))
         sources.append(info.source)
     index = {name: i for i, name in enumerate(names)}
     k = np.zeros((len(names), len(names)))
@@ -65,10 +68,24 @@ def cubic_parameters(case: Case) -> CubicParameters:
         i, j = index[pair.first], index[pair.second]
         k[i, j] = k[j, i] = pair.value
         interaction_sources[f"{pair.first}/{pair.second}"] = pair.source
-    return CubicParameters(names, tc, pc, omega, case.thermo.liquid, k, None, tuple(sources), interaction_sources)
+    return CubicParameters(names, tc, pc, omega, variant, k, None, tuple(sources), interaction_sources)
 
 
-def _acentric_factor(case: Case, info) -> float:
+def incipient_vapor(k_values: Callable[[np.ndarray], np.ndarray], x: np.ndarray, y: np.ndarray) -> np.ndarray:
+    """The vapor in equilibrium with liquid ``x (n,c)`` where K depends on the vapor:
+    ``y = K(y) x / sum(K(y) x)`` by successive substitution from ``y (n,c)``, vectorized over
+    states; ``k_values(y) -> K (n,c)`` at the states' fixed temperature and pressure."""
+    for _ in range(_SUBSTITUTIONS):
+        new = k_values(y) * x
+        new = new / new.sum(axis=1, keepdims=True)
+        change = np.max(np.abs(new - y))
+        y = new
+        if change < _VAPOR_TOLERANCE:
+            break
+    return y
+
+
+def _acentric_factor(case: Case, info, variant: str) -> float:
     if info.backend == "coolprop":
         import CoolProp.CoolProp as CP
 
@@ -77,7 +94,7 @@ def _acentric_factor(case: Case, info) -> float:
     value = getattr(data, "acentric_factor", None)
     if value is None:
         raise CaseError(
-            f"the {case.thermo.liquid} equation of state needs the acentric factor of {info.name}",
+            f"the {variant} equation of state needs the acentric factor of {info.name}",
             file=case.source_file,
             key=f"components.data.{info.name}.acentric_factor",
             expected="a number such as 0.152, with its source",
@@ -90,6 +107,8 @@ class CubicThermoPackage(ThermoPackage):
 
     #: K depends on the vapor composition: the MESH equations take d ln K / d y
     vapor_dependent = True
+    #: a bubble point may land on the trivial solution K = 1 (both roots one phase)
+    trivial_solution_possible = True
 
     def __init__(self, pure: PureComponents, parameters: CubicParameters, *, enthalpy: str = "rigorous",
                  reference_pressure: float, description: dict | None = None) -> None:
@@ -138,15 +157,8 @@ class CubicThermoPackage(ThermoPackage):
         x = x / x.sum(axis=1, keepdims=True)
         y = wilson_k_values(self.parameters, temperature, pressure) * x
         y = y / y.sum(axis=1, keepdims=True)
-        for _ in range(_SUBSTITUTIONS):
-            K = cubic_k_values(self.parameters, temperature, pressure, x, y, derivatives=False).K
-            new = K * x
-            new = new / new.sum(axis=1, keepdims=True)
-            change = np.max(np.abs(new - y))
-            y = new
-            if change < _VAPOR_TOLERANCE:
-                break
-        return y
+        return incipient_vapor(
+            lambda vapor: cubic_k_values(self.parameters, temperature, pressure, x, vapor, derivatives=False).K, x, y)
 
     def wilson_bubble_point(self, pressure, x) -> tuple[np.ndarray, np.ndarray]:
         """Bubble temperature (K) and vapor of ``x (n,c)`` at ``pressure (n,)`` Pa by Wilson's
@@ -185,7 +197,7 @@ class CubicThermoPackage(ThermoPackage):
             return parent(T, composition, model="cmo")
         state = cubic_phase(self.parameters, T, self._pressure(T, pressure), composition, phase)
         h = cubic_phase_enthalpy(state, composition, self.pure.ideal_gas_enthalpy(T))
-        return _as_phase_enthalpy(h)
+        return as_phase_enthalpy(h)
 
     def liquid_enthalpy(self, temperature, x, model: str | None = None, pressure=None) -> PhaseEnthalpy:
         """Liquid enthalpy (J/mol): ideal gas plus the liquid root's departure at ``pressure``
@@ -205,13 +217,13 @@ class CubicThermoPackage(ThermoPackage):
     def stage_properties(self, temperature, pressure, x, y) -> StageProperties:
         """K-values, enthalpies and all derivatives in one pass of the equation of state."""
         T = np.asarray(temperature, dtype=float)
-        x, y = _phase_composition(x), _phase_composition(y)
+        x, y = phase_composition(x), phase_composition(y)
         props = cubic_stage_properties(self.parameters, T, pressure, x, y, self.pure.ideal_gas_enthalpy)
         kv = props.k_values
         k_values = KValues(kv.K, kv.d_ln_K_dT, kv.d_ln_K_dx, kv.d_ln_K_dy)
         if self.enthalpy_model == "cmo":
             return StageProperties(k_values, super().liquid_enthalpy(T, x, model="cmo"), super().vapor_enthalpy(T, y, model="cmo"))
-        return StageProperties(k_values, _as_phase_enthalpy(props.liquid), _as_phase_enthalpy(props.vapor))
+        return StageProperties(k_values, as_phase_enthalpy(props.liquid), as_phase_enthalpy(props.vapor))
 
     # ------------------------------------------------------------------ honesty
     def range_problem(self, temperature, pressure, x, y, skip_first: bool = False) -> str | None:
@@ -222,7 +234,7 @@ class CubicThermoPackage(ThermoPackage):
         bad = ~(np.isfinite(T) & (T > 0.0))
         if bad.any():
             return f"temperature {T[bad][0]!r} K is not a finite positive temperature"
-        kv = cubic_k_values(self.parameters, T, pressure, _phase_composition(x), _phase_composition(y), derivatives=False)
+        kv = cubic_k_values(self.parameters, T, pressure, phase_composition(x), phase_composition(y), derivatives=False)
         check = trivial_solution(kv.liquid.Z, kv.vapor.Z, kv.K, _SAME_ROOT, _TRIVIAL_LN_K)
         one_phase = (check.z_gap < _SAME_ROOT) | (check.largest_ln_k < _TRIVIAL_LN_K)
         if skip_first:
@@ -237,7 +249,7 @@ class CubicThermoPackage(ThermoPackage):
             f"{check.largest_ln_k[j]:.3g} at {T[j]:.2f} K and {P[j] / 1e5:.4g} bar; the stage is at or above "
             f"the critical point of its mixture ({int(one_phase.sum())} such stage(s))"
         )
-        note = self.critical_pressure_note(P[j], _phase_composition(x)[j], f"stage {j + 1}")
+        note = self.critical_pressure_note(P[j], phase_composition(x)[j], f"stage {j + 1}")
         return f"{text}; {note}" if note else text
 
     def critical_pressure_note(self, pressure: float, x, what: str) -> str:
@@ -247,7 +259,7 @@ class CubicThermoPackage(ThermoPackage):
         return critical_pressure_note(self.parameters, float(pressure), np.asarray(x, dtype=float), what)
 
 
-def _phase_composition(x) -> np.ndarray:
+def phase_composition(x) -> np.ndarray:
     """``x (n,c)`` with the rows of a phase that is not there (all flows zero, a trial point of
     Newton's line search) replaced by equal fractions, so the equation of state stays finite."""
     x = np.asarray(x, dtype=float)
@@ -259,7 +271,8 @@ def _phase_composition(x) -> np.ndarray:
     return x
 
 
-def _as_phase_enthalpy(h) -> PhaseEnthalpy:
+def as_phase_enthalpy(h) -> PhaseEnthalpy:
+    """A phase enthalpy of the equation of state as the thermo package gives one."""
     return PhaseEnthalpy(h.molar, h.d_dT, h.d_dx, h.ideal_gas, h.departure)
 
 

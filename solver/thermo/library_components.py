@@ -52,11 +52,11 @@ class LibraryComponent(UserComponent):
             raise self._missing("ideal_gas_cp", "use enthalpy = 'cmo'")
         return extrapolation.ideal_gas_enthalpy(corr, T, warn=False)
 
-    def liquid_molar_volume(self, T: np.ndarray) -> np.ndarray:
+    def liquid_molar_volume_and_slope(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         corr = self.data.liquid_molar_volume
         if corr is None:
-            return super().liquid_molar_volume(T)
-        return extrapolation.liquid_molar_volume(corr, T, Tc=self.Tc, Pc=self.Pc, warn=False)[0]
+            return super().liquid_molar_volume_and_slope(T)
+        return extrapolation.liquid_molar_volume(corr, T, Tc=self.Tc, Pc=self.Pc, warn=False)
 
     def check_temperature(self, T: np.ndarray) -> None:
         """Nothing to refuse below Tc (the package checks Tc): outside a range the documented

@@ -36,7 +36,10 @@ from .unifac import DortmundUNIFAC, UNIFAC
 if TYPE_CHECKING:  # the case reader is upstream; only its data model is read here
     from ..case import Case
 
-__all__ = ["KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage", "activity_model"]
+__all__ = ["ActivityParts", "KValues", "PhaseEnthalpy", "StageProperties", "ThermoPackage", "activity_model",
+           "activity_parts"]
+
+_EQUATIONS_OF_STATE = ("peng-robinson", "soave-redlich-kwong")
 
 
 @dataclass(frozen=True)
@@ -135,6 +138,58 @@ def _predicted_pairs(case: Case, pure: PureComponents) -> list[PredictedPair]:
     return predicted
 
 
+@dataclass(frozen=True)
+class ActivityParts:
+    """What a package with an activity model for the liquid is built from: the pure-component
+    properties, the activity model, the pairs fitted to UNIFAC and the description of both."""
+
+    pure: PureComponents
+    activity: object
+    predicted_pairs: tuple
+    description: dict
+
+
+def activity_parts(case: Case) -> ActivityParts:
+    """The pure components, the activity model (with the pairs predicted where the case asks
+    for it) and their description for the result file."""
+    infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
+    pure = PureComponents(infos, case.component_data)
+    predicted = _predicted_pairs(case, pure)
+    activity = activity_model(case, case.component_names, [p.parameters for p in predicted])
+    description = {
+        "liquid": case.thermo.liquid,
+        "vapor": case.thermo.vapor,
+        "enthalpy": case.thermo.enthalpy,
+        "k_value_model": "modified Raoult's law, ideal vapor: K_i = gamma_i Psat_i / P",
+        "enthalpy_reference": "ideal gas at 298.15 K = 0 for every component",
+        "pairs": [
+            {
+                "model": pair.model,
+                "i": pair.first,
+                "j": pair.second,
+                "constant_term": list(pair.constant_term),
+                "term_over_temperature_K": list(pair.term_over_temperature),
+                "term_in_ln_temperature": list(pair.term_in_ln_temperature),
+                "term_times_temperature_per_K": list(pair.term_times_temperature),
+                "alpha": pair.alpha,
+                "alpha_slope_per_K": pair.alpha_slope,
+                "alpha_reference_temperature_K": pair.alpha_reference_temperature,
+                "as_written": dict(pair.energy_form),
+                "source": pair.source,
+            }
+            for pair in case.thermo.pairs
+        ],
+        "pair_origins": [
+            {"pair": [pair.first, pair.second], "origin": "case file", "source": pair.source}
+            for pair in case.thermo.pairs
+        ]
+        + [p.describe() for p in predicted],
+        "missing_pairs": case.thermo.missing_pairs or None,
+        "uniquac_structure": {name: list(rq) for name, rq in case.thermo.uniquac_structure.items()},
+    }
+    return ActivityParts(pure, activity, tuple(p.parameters for p in predicted), description)
+
+
 class ThermoPackage:
     """K-values and phase enthalpies of one mixture, vectorized over stages.
 
@@ -166,50 +221,28 @@ class ThermoPackage:
     # ------------------------------------------------------------------ construction
     @classmethod
     def from_case(cls, case: Case) -> "ThermoPackage":
-        """The case's package; an equation of state for both phases is its own package
-        (:class:`~solver.thermo.eos_package.CubicThermoPackage`, imported here: it builds on this one)."""
-        if cls is ThermoPackage and case.thermo.liquid in ("peng-robinson", "soave-redlich-kwong"):
+        """The case's package; an equation of state for both phases
+        (:class:`~solver.thermo.eos_package.CubicThermoPackage`) or for the vapor beside an
+        activity model (:class:`~solver.thermo.gamma_phi_package.GammaPhiThermoPackage`) is a
+        package of its own (imported here: each builds on this one)."""
+        if cls is ThermoPackage and case.thermo.liquid in _EQUATIONS_OF_STATE:
             from .eos_package import CubicThermoPackage
 
             return CubicThermoPackage.from_case(case)
-        infos: list[ComponentInfo] = [component_info(name, case.component_data) for name in case.component_names]
-        pure = PureComponents(infos, case.component_data)
-        predicted = _predicted_pairs(case, pure)
-        activity = activity_model(case, case.component_names, [p.parameters for p in predicted])
-        description = {
-            "liquid": case.thermo.liquid,
-            "vapor": case.thermo.vapor,
-            "enthalpy": case.thermo.enthalpy,
-            "k_value_model": "modified Raoult's law, ideal vapor: K_i = gamma_i Psat_i / P",
-            "enthalpy_reference": "ideal gas at 298.15 K = 0 for every component",
-            "pairs": [
-                {
-                    "model": pair.model,
-                    "i": pair.first,
-                    "j": pair.second,
-                    "constant_term": list(pair.constant_term),
-                    "term_over_temperature_K": list(pair.term_over_temperature),
-                    "term_in_ln_temperature": list(pair.term_in_ln_temperature),
-                    "term_times_temperature_per_K": list(pair.term_times_temperature),
-                    "alpha": pair.alpha,
-                    "alpha_slope_per_K": pair.alpha_slope,
-                    "alpha_reference_temperature_K": pair.alpha_reference_temperature,
-                    "as_written": dict(pair.energy_form),
-                    "source": pair.source,
-                }
-                for pair in case.thermo.pairs
-            ],
-            "pair_origins": [
-                {"pair": [pair.first, pair.second], "origin": "case file", "source": pair.source}
-                for pair in case.thermo.pairs
-            ]
-            + [p.describe() for p in predicted],
-            "missing_pairs": case.thermo.missing_pairs or None,
-            "uniquac_structure": {name: list(rq) for name, rq in case.thermo.uniquac_structure.items()},
-        }
-        package = cls(pure, activity, enthalpy=case.thermo.enthalpy, description=description)
-        package.predicted_pairs = tuple(p.parameters for p in predicted)  # the fitted pairs, to build the model again
+        if cls is ThermoPackage and case.thermo.vapor in _EQUATIONS_OF_STATE:
+            from .gamma_phi_package import GammaPhiThermoPackage
+
+            return GammaPhiThermoPackage.from_case(case)
+        parts = activity_parts(case)
+        package = cls(parts.pure, parts.activity, enthalpy=case.thermo.enthalpy, description=parts.description)
+        package.predicted_pairs = parts.predicted_pairs  # the fitted pairs, to build the model again
         return package
+
+    def replaced(self, *, pure=None, activity=None) -> "ThermoPackage":
+        """This package with other pure-component properties or another activity model (an
+        input moved for a sensitivity), the same constant latent heat."""
+        return ThermoPackage(self.pure if pure is None else pure, self.activity if activity is None else activity,
+                             enthalpy=self.enthalpy_model, cmo_latent_heat=self.cmo_latent_heat)
 
     def describe(self) -> dict:
         """Every model and parameter used, with sources, for the result file."""
@@ -280,6 +313,8 @@ class ThermoPackage:
 
     #: K depends on the vapor composition (an equation of state for the vapor)
     vapor_dependent = False
+    #: a bubble point may land on the trivial solution K = 1 (an equation of state for both phases)
+    trivial_solution_possible = False
 
     def range_problem(self, temperature, pressure, x, y, skip_first: bool = False) -> str | None:
         """Why a solution lies outside the property models' range, or None: a temperature at or

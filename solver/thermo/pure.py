@@ -154,15 +154,21 @@ class PureComponents:
         user's correlation, or the Rackett equation (Rackett 1970, J. Chem. Eng. Data 15,
         514-517) from the critical constants when the user gave a critical compressibility
         (``critical_compressibility``) or volume (``critical_volume``)."""
+        return self.liquid_molar_volume_and_slope(T)[0]
+
+    def liquid_molar_volume_and_slope(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``(V_L, dV_L/dT)`` in m3/mol and m3/(mol K), each (n, c), as
+        :meth:`liquid_molar_volume`."""
         T = _temperatures(T)
         if self._all_coolprop:
             return self._coolprop_liquid_volume(T)
         value = np.empty((T.size, len(self.names)))
+        slope = np.empty_like(value)
         if len(self._coolprop):
-            value[:, self._coolprop] = self._coolprop_liquid_volume(T)
+            value[:, self._coolprop], slope[:, self._coolprop] = self._coolprop_liquid_volume(T)
         for index, user in self._users:
-            value[:, index] = user.liquid_molar_volume(T)
-        return value
+            value[:, index], slope[:, index] = user.liquid_molar_volume_and_slope(T)
+        return value, slope
 
     def check_temperature(self, T: np.ndarray) -> None:
         """Raise :class:`~solver.errors.ThermoError` naming the component and the temperature
@@ -339,10 +345,15 @@ class PureComponents:
         slope /= tau
         return value, slope
 
-    def _coolprop_liquid_volume(self, T: np.ndarray) -> np.ndarray:
-        located = self._saturation_state(T)[6]
-        values, _ = self._volume_table.evaluate(*located, derivative=False)
-        return np.exp(values[0])
+    def _coolprop_liquid_volume(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        spread, Tcl, tau, outside, _, _, located, constants = self._saturation_state(T)
+        values, slopes = self._volume_table.evaluate(*located)
+        volume = np.exp(values[0])
+        # the fit is in s = ln(1 - T/Tc), ds/dT = -1/(Tc tau); the volume is constant where T was clamped
+        slope = volume * slopes[0] * constants["minus_inverse_Tc"] / tau
+        if outside:
+            slope = np.where(spread == Tcl, slope, 0.0)
+        return volume, slope
 
     def _coolprop_ideal_gas_enthalpy(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         constants = self._constants(T.size)

@@ -16,7 +16,8 @@ from solver.errors import ThermoError
 from solver.thermo import correlations
 from solver.thermo.data import ComponentData, Correlation
 
-__all__ = ["LOWEST_TEMPERATURE", "UserComponent", "extend_in_inverse_temperature", "rackett_volume"]
+__all__ = ["LOWEST_TEMPERATURE", "UserComponent", "extend_in_inverse_temperature", "rackett_volume",
+           "rackett_volume_and_slope"]
 
 #: K; extrapolation formulas in 1/T use at least this
 LOWEST_TEMPERATURE = 1.0
@@ -74,16 +75,20 @@ class UserComponent:
         return correlations.integrate_from_reference(corr, np.maximum(T, LOWEST_TEMPERATURE), self.Tc, strict=False)
 
     def liquid_molar_volume(self, T: np.ndarray) -> np.ndarray:
+        return self.liquid_molar_volume_and_slope(T)[0]
+
+    def liquid_molar_volume_and_slope(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``(V_L, dV_L/dT)`` (m3/mol, m3/(mol K)): the user's correlation, else Rackett."""
         corr = self.data.liquid_molar_volume
         if corr is not None:
-            return correlations.liquid_molar_volume(corr, np.maximum(T, LOWEST_TEMPERATURE), self.Tc, strict=False)[0]
+            return correlations.liquid_molar_volume(corr, np.maximum(T, LOWEST_TEMPERATURE), self.Tc, strict=False)
         Zc = _rackett_compressibility(self.data)
         if Zc is None:
             raise self._missing(
                 "liquid_molar_volume",
                 "give one, or a critical compressibility or critical volume for the Rackett equation",
             )
-        return rackett_volume(T, self.data.critical_temperature, self.data.critical_pressure, Zc)
+        return rackett_volume_and_slope(T, self.data.critical_temperature, self.data.critical_pressure, Zc)
 
     def check_temperature(self, T: np.ndarray) -> None:
         for key in ("vapor_pressure", "heat_of_vaporization", "ideal_gas_cp", "liquid_molar_volume"):
@@ -118,6 +123,19 @@ def rackett_volume(T: np.ndarray, critical_temperature: float, critical_pressure
     ``Tr`` is clipped to [0, 1]."""
     reduced = np.clip(np.asarray(T, dtype=float) / critical_temperature, 0.0, 1.0)
     return GAS_CONSTANT * critical_temperature / critical_pressure * Zc ** (1.0 + (1.0 - reduced) ** (2.0 / 7.0))
+
+
+def rackett_volume_and_slope(T: np.ndarray, critical_temperature: float, critical_pressure: float,
+                             Zc: float) -> tuple[np.ndarray, np.ndarray]:
+    """:func:`rackett_volume` and its temperature derivative (m3/(mol K); zero where ``Tr`` is
+    clipped, and taken as zero at ``Tr = 1`` where it is infinite)."""
+    T = np.asarray(T, dtype=float)
+    volume = rackett_volume(T, critical_temperature, critical_pressure, Zc)
+    reduced = T / critical_temperature
+    inside = (reduced > 0.0) & (reduced < 1.0)
+    gap = np.where(inside, 1.0 - reduced, 1.0)
+    slope = np.where(inside, -volume * math.log(Zc) * (2.0 / 7.0) * gap ** (-5.0 / 7.0) / critical_temperature, 0.0)
+    return volume, slope
 
 
 def _rackett_compressibility(data: ComponentData) -> float | None:

@@ -232,7 +232,8 @@ def _backtrack(evaluate, X, step, damping, flow_mask, merit, reference, options:
     Jacobian is evaluated with it (a full step is the common case)."""
     for halving in range(options.max_halvings + 1):
         trial = take_step(X, step, damping, flow_mask)
-        candidate = evaluate(trial, halving == 0)
+        with np.errstate(divide="ignore", over="ignore", invalid="ignore"):  # a wild trial is rejected below
+            candidate = evaluate(trial, halving == 0)
         if np.all(np.isfinite(candidate.residuals)):
             trial_merit = 0.5 * float(candidate.residuals @ candidate.residuals)
             if trial_merit <= reference - 2.0 * options.armijo * damping * merit:

@@ -32,6 +32,7 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import Any, Mapping
 
+from solver.case.fields import check_keys, read_choice, read_table, read_text
 from solver.units import UnitParseError, to_si
 
 __all__ = [
@@ -136,9 +137,9 @@ class SizingOptions:
 def read_sizing_table(value: Any, names: tuple[str, ...], at: Any) -> SizingOptions:
     """The ``[sizing]`` table ``value`` of a case whose components are ``names``; ``at`` is
     its place in the file (``child``, ``fail``)."""
-    table = _table(value, at)
-    _keys(table, at, _KEYS)
-    internals = _choice(table.get("internals", "sieve"), at.child("internals"), INTERNALS)
+    table = read_table(value, at)
+    check_keys(table, at, _KEYS)
+    internals = read_choice(table.get("internals", "sieve"), at.child("internals"), INTERNALS)
     options: dict[str, Any] = {"internals": internals}
     for key, kind, low, high in (("tray_spacing", "length", 0.15, 1.5), ("flood_fraction", "dimensionless", 0.3, 1.0),
                                  ("system_factor", "dimensionless", 0.3, 1.0),
@@ -165,9 +166,9 @@ def read_sizing_table(value: Any, names: tuple[str, ...], at: Any) -> SizingOpti
 
 
 def _read_downcomer(value: Any, at: Any) -> DowncomerRule:
-    table = _table(value, at)
-    _keys(table, at, _DOWNCOMER_KEYS)
-    rule = _choice(table.get("rule", "flow_parameter"), at.child("rule"), DOWNCOMER_RULES)
+    table = read_table(value, at)
+    check_keys(table, at, _DOWNCOMER_KEYS)
+    rule = read_choice(table.get("rule", "flow_parameter"), at.child("rule"), DOWNCOMER_RULES)
     values: dict[str, Any] = {"rule": rule}
     for key, kind, low, high in (("residence_time", "time", 1.0, 30.0), ("velocity", "velocity", 0.01, 1.0),
                                  ("minimum_fraction", "dimensionless", 0.02, 0.4)):
@@ -177,15 +178,15 @@ def _read_downcomer(value: Any, at: Any) -> DowncomerRule:
 
 
 def _read_packing(value: Any, internals: str, at: Any) -> PackingData:
-    table = _table(value, at)
-    _keys(table, at, _PACKING_KEYS)
+    table = read_table(value, at)
+    check_keys(table, at, _PACKING_KEYS)
     if internals not in PACKED:
         at.fail(f"a packing is given but internals = {internals!r}", expected="internals = 'random' or 'structured'")
     for required in ("packing_factor", "source"):
         if required not in table:
             at.child(required).fail("missing", expected=f"a value for {required!r} (packing factors are the packing "
                                                         "maker's or a handbook's: name it in source)")
-    values: dict[str, Any] = {"source": _text(table["source"], at.child("source"))}
+    values: dict[str, Any] = {"source": read_text(table["source"], at.child("source"), allow_empty=False, max_length=2000)}
     for key, kind, low, high in (("packing_factor", "inverse_length", 1.0, 3000.0),
                                  ("flood_packing_factor", "inverse_length", 1.0, 3000.0),
                                  ("nominal_size", "length", 0.005, 0.2), ("specific_area", "inverse_length", 20.0, 1500.0),
@@ -204,8 +205,8 @@ def _read_packing(value: Any, internals: str, at: Any) -> PackingData:
 
 
 def _read_thresholds(value: Any, at: Any) -> Mapping[str, float]:
-    table = _table(value, at)
-    _keys(table, at, tuple(DEFAULT_SIZING_THRESHOLDS))
+    table = read_table(value, at)
+    check_keys(table, at, tuple(DEFAULT_SIZING_THRESHOLDS))
     chosen = dict(DEFAULT_SIZING_THRESHOLDS)
     for key, item in table.items():
         chosen[key] = _quantity(item, "dimensionless", at.child(key), 0.0, 1.0)
@@ -213,7 +214,7 @@ def _read_thresholds(value: Any, at: Any) -> Mapping[str, float]:
 
 
 def _read_components(value: Any, names: tuple[str, ...], at: Any) -> Mapping[str, ComponentHydraulicData]:
-    table = _table(value, at)
+    table = read_table(value, at)
     found: dict[str, ComponentHydraulicData] = {}
     for written, entry in table.items():
         where = at.child(written)
@@ -222,9 +223,9 @@ def _read_components(value: Any, names: tuple[str, ...], at: Any) -> Mapping[str
             close = difflib.get_close_matches(name, names, n=1, cutoff=0.6)
             hint = f"; did you mean {close[0]!r}?" if close else ""
             where.fail(f"not a component of this case{hint}", written, "one of components.names: " + ", ".join(names))
-        entry = _table(entry, where)
-        _keys(entry, where, _COMPONENT_KEYS)
-        values: dict[str, Any] = {"name": name, "source": _text(entry.get("source", ""), where.child("source"))}
+        entry = read_table(entry, where)
+        check_keys(entry, where, _COMPONENT_KEYS)
+        values: dict[str, Any] = {"name": name, "source": read_text(entry.get("source", ""), where.child("source"), max_length=2000)}
         for key, kind, low, high in (("liquid_density", "mass_density", 100.0, 3000.0),
                                      ("surface_tension", "surface_tension", 1e-4, 0.2),
                                      ("liquid_viscosity", "viscosity", 1e-5, 1.0)):
@@ -237,35 +238,6 @@ def _read_components(value: Any, names: tuple[str, ...], at: Any) -> Mapping[str
 
 
 # --- single values -----------------------------------------------------------------------
-
-
-def _table(value: Any, at: Any) -> Mapping:
-    if not isinstance(value, Mapping):
-        at.fail("must be a table", value, "a table { key = value, ... }")
-    return value
-
-
-def _keys(table: Mapping, at: Any, allowed: tuple[str, ...]) -> None:
-    for name in table:
-        if name not in allowed:
-            close = difflib.get_close_matches(str(name), allowed, n=1, cutoff=0.6)
-            hint = f"; did you mean {close[0]!r}?" if close else ""
-            at.child(name).fail(f"unknown key{hint}", name, "one of: " + ", ".join(allowed))
-
-
-def _choice(value: Any, at: Any, choices: tuple[str, ...]) -> str:
-    word = value.strip().lower() if isinstance(value, str) else None
-    if word not in choices:
-        close = difflib.get_close_matches(str(value).lower(), choices, n=1, cutoff=0.6)
-        hint = f"; did you mean {close[0]!r}?" if close else ""
-        at.fail(f"not a known choice{hint}", value, "one of: " + ", ".join(repr(c) for c in choices))
-    return word
-
-
-def _text(value: Any, at: Any) -> str:
-    if not isinstance(value, str) or len(value) > 2000:
-        at.fail("must be a string (at most 2000 characters)", value, "a string in quotes")
-    return value
 
 
 def _quantity(value: Any, kind: str, at: Any, low: float, high: float) -> float:

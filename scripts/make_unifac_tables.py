@@ -2,18 +2,18 @@
 
     python scripts/make_unifac_tables.py
 
-Provenance. The numbers are the published tables of the two methods as transcribed in the
+Provenance. The numbers are the published tables of the two methods as copied into the
 open-source registry package ``thermo`` (Caleb Bell, Chemical Engineering Design Library),
 version 0.6.1, module ``thermo.unifac``:
 
-- original UNIFAC: subgroups ``UFSG`` and main groups ``UFMG`` (transcribed there from the UNIFAC
+- original UNIFAC: subgroups ``UFSG`` and main groups ``UFMG`` (copied there from the UNIFAC
   Consortium's public list of published parameters, ddbst.com "published-parameters-unifac"),
   interaction parameters ``UFIP`` (file "UNIFAC original interaction parameters.tsv", the same
   public list). The tables are those of Hansen, Rasmussen, Fredenslund, Schiller & Gmehling,
   Ind. Eng. Chem. Res. 30 (1991) 2352-2355 (main groups 1-50), with the revision and extension
   of Wittig, Lohmann & Gmehling, Ind. Eng. Chem. Res. 42 (2003) 183-188, and the groups the
   consortium published later (sulfones, imidazolium and bis(trifluoromethylsulfonyl)imide).
-- modified UNIFAC (Dortmund): subgroups ``DOUFSG`` and main groups ``DOUFMG`` (transcribed there
+- modified UNIFAC (Dortmund): subgroups ``DOUFSG`` and main groups ``DOUFMG`` (copied there
   from the consortium's public list, ddbst.com "PublishedParametersUNIFACDO"), interaction
   parameters ``DOUFIP2016`` (the public list as of 2016): Weidlich & Gmehling, Ind. Eng. Chem.
   Res. 26 (1987) 1372-1381; Gmehling, Li & Schiller, Ind. Eng. Chem. Res. 32 (1993) 178-193;
@@ -44,8 +44,8 @@ OUT = Path(__file__).resolve().parent.parent / "solver" / "thermo" / "data"
 RENAMED = {20: "HCO"}
 
 COMMON_SOURCE = (
-    f"transcribed by scripts/make_unifac_tables.py from the registry package thermo {thermo.__version__} "
-    "(module thermo.unifac), which transcribes the UNIFAC Consortium's public list of published parameters"
+    f"copied by scripts/make_unifac_tables.py from the registry package thermo {thermo.__version__} "
+    "(module thermo.unifac), which copies the UNIFAC Consortium's public list of published parameters"
 )
 
 VARIANTS = {
@@ -129,7 +129,7 @@ def build(variant: str) -> str:
         "subgroup_columns": ["number", "name", "main group", "R", "Q"],
         "interaction_columns": spec["interaction_columns"],
         "sources": spec["sources"],
-        "transcription": f"{COMMON_SOURCE}; tables {spec['subgroup_table']}, {spec['main_group_table']}, {spec['interaction_table']}",
+        "copied_from": f"{COMMON_SOURCE}; tables {spec['subgroup_table']}, {spec['main_group_table']}, {spec['interaction_table']}",
         "main_groups": {str(k): main_groups[k][0] for k in sorted(main_groups) if k in used_main_groups},
     }
     text = json.dumps(header, indent=2)[:-2]

@@ -291,7 +291,7 @@ class UNIFAC:
             ],
             "source": description["model_source"],
             "parameter_sources": description["sources"],
-            "transcription": description["transcription"],
+            "copied_from": description["copied_from"],
             "built_in_group_assignments": builtin,
         }
 

@@ -2,7 +2,7 @@
 
 1. An independent implementation: the registry package ``thermo`` (Caleb Bell), version as
    installed, class ``thermo.unifac.UNIFAC`` (``version=0`` original with its tables UFSG/UFIP,
-   ``version=1`` Dortmund with DOUFSG/DOUFIP2016, the tables ours were transcribed from), and
+   ``version=1`` Dortmund with DOUFSG/DOUFIP2016, the tables ours were copied from), and
    its copy of the DDBST published group assignments (``UNIFAC_group_assignment_DDBST``).
 2. Published worked examples with their printed answers.
 3. Infinite-dilution activity coefficients from the literature.

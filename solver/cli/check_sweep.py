@@ -8,7 +8,6 @@ import math
 import os
 import sys
 import time
-from pathlib import Path
 
 from rich.table import Table
 from rich.text import Text
@@ -16,7 +15,7 @@ from rich.text import Text
 from .. import __version__
 from ..caution import CAUTION
 from ..errors import CaseError
-from .common import add_scheduler_option, console_for, output_folder, positive_int, progress_bar, refuse_before_engine, styled
+from .common import add_scheduler_option, console_for, output_folder, positive_int, progress_bar, read_case, styled
 
 __all__ = ["add_check_command", "add_sweep_command", "command_check", "command_sweep"]
 
@@ -108,14 +107,11 @@ def add_check_command(sub) -> None:
 
 
 def command_sweep(args: argparse.Namespace) -> int:
-    from ..case import load_case
     from ..sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
     from ..workers import stop_workers, study_executor
 
     console = console_for()
-    case_path = Path(args.case)
-    base = load_case(case_path)  # a bad case is reported before any point runs
-    refuse_before_engine(base, "sweep")
+    case_path, base = read_case(args.case, "sweep")  # a bad case is reported before any point runs
     document = load_document(case_path)
     variations = [parse_variation(text) for text in args.vary]
     if len(variations) > 2:

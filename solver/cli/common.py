@@ -14,7 +14,7 @@ from rich.text import Text
 
 from ..errors import CaseError
 
-__all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "add_scheduler_option", "finish_run", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "refuse_before_engine", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
+__all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "add_scheduler_option", "finish_run", "at_least_three", "console_for", "default_out", "fail_on", "output_folder", "positive_int", "print_sizing", "progress_bar", "read_case", "sizing_figure", "sizing_flags", "styled", "with_sizing"]
 
 
 #: Files of a run that show a converged solution; removed from the output folder when a later
@@ -64,12 +64,17 @@ def progress_bar(console: Console) -> Progress:
     )
 
 
-def refuse_before_engine(case, command: str) -> None:
-    """Refuse an unknown component, and a network of columns where ``command`` does not solve
-    one (a network is checked for its degrees of freedom either way), before the engine's modules are imported (they take seconds); the
-    lookup reads the shipped index of CoolProp's fluids, not CoolProp."""
+def read_case(case_file: str, command: str):
+    """The case at ``case_file`` (its path and the :class:`~solver.case.Case`), read and checked
+    before the engine's modules are imported (they take seconds): an unknown component is
+    refused (the lookup reads the shipped index of CoolProp's fluids, not CoolProp), and so is a
+    network of columns where ``command`` does not solve one (a network is checked for its
+    degrees of freedom either way)."""
+    from ..case import load_case
     from ..components import component_info
 
+    case_path = Path(case_file)
+    case = load_case(case_path)
     for name in case.component_names:
         component_info(name, case.component_data)
     if case.network is not None:
@@ -79,6 +84,7 @@ def refuse_before_engine(case, command: str) -> None:
             check_network(case)
         else:
             refuse_network(case, command)
+    return case_path, case
 
 
 def at_least_three(text: str) -> int:

@@ -3,11 +3,10 @@
 from __future__ import annotations
 
 import argparse
-from pathlib import Path
 
 from ..errors import ConvergenceError
 from .common import (
-    PLOT_FILES, console_for, finish_run, output_folder, positive_int, print_sizing, refuse_before_engine, sizing_figure, styled,
+    PLOT_FILES, console_for, finish_run, output_folder, positive_int, print_sizing, read_case, sizing_figure, styled,
     with_sizing,
 )
 
@@ -15,11 +14,7 @@ __all__ = ["add_run_command", "command_run"]
 
 
 def command_run(args: argparse.Namespace) -> int:
-    from ..case import load_case
-
-    case_path = Path(args.case)
-    case = load_case(case_path)
-    refuse_before_engine(case, "run")  # a bad case is refused before the engine is imported
+    case_path, case = read_case(args.case, "run")  # a bad case is refused before the engine is imported
     if case.network is not None:
         from .network import run_network
 

@@ -6,12 +6,11 @@ from __future__ import annotations
 import argparse
 import os
 import sys
-from pathlib import Path
 
 from ..caution import CAUTION
 from ..errors import CaseError
 from .common import (
-    PLOT_FILES, at_least_three, console_for, fail_on, finish_run, output_folder, print_sizing, refuse_before_engine, sizing_figure,
+    PLOT_FILES, at_least_three, console_for, fail_on, finish_run, output_folder, print_sizing, read_case, sizing_figure,
     sizing_flags, styled, with_sizing,
 )
 
@@ -24,11 +23,7 @@ SHORTCUT_SCHEMA = "traystack-shortcut/1"
 def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
-    from ..case import load_case
-
-    case_path = Path(args.case)
-    case = load_case(case_path)
-    refuse_before_engine(case, "shortcut")  # a bad case is refused before the engine is imported
+    case_path, case = read_case(args.case, "shortcut")  # a bad case is refused before the engine is imported
     from ..audit import shortcut_case
     from ..audit.flags import two_liquids
     from ..engine import case_summary
@@ -80,11 +75,7 @@ def add_shortcut_command(sub) -> None:
 
 
 def command_audit(args: argparse.Namespace) -> int:
-    from ..case import load_case
-
-    case_path = Path(args.case)
-    case = load_case(case_path)
-    refuse_before_engine(case, "audit")  # a bad case is refused before the engine is imported
+    case_path, case = read_case(args.case, "audit")  # a bad case is refused before the engine is imported
     if case.network is not None:
         from .network import audit_network
 

@@ -5,20 +5,15 @@ from __future__ import annotations
 import argparse
 import os
 import sys
-from pathlib import Path
 
 from ..caution import CAUTION
-from .common import console_for, fail_on, output_folder, print_sizing, refuse_before_engine, sizing_figure, sizing_flags
+from .common import console_for, fail_on, output_folder, print_sizing, read_case, sizing_figure, sizing_flags
 
 __all__ = ["add_size_command", "command_size"]
 
 
 def command_size(args: argparse.Namespace) -> int:
-    from ..case import load_case
-
-    case_path = Path(args.case)
-    case = load_case(case_path)
-    refuse_before_engine(case, "size")  # a bad case is refused before the engine is imported
+    case_path, case = read_case(args.case, "size")  # a bad case is refused before the engine is imported
     from ..engine import simulate
     from ..reports import display_units, write_summary
     from ..results import write_result_json, write_stages_csv

@@ -81,15 +81,12 @@ def _statistics_table(study, view: str, linear):
 
 
 def command_uncertainty(args: argparse.Namespace) -> int:
-    from ..case import load_case
-    from .common import console_for, output_folder, progress_bar, refuse_before_engine
+    from .common import console_for, output_folder, progress_bar, read_case
     from ..caution import CAUTION
     from ..errors import CaseError
 
     console = console_for()
-    case_path = Path(args.case)
-    case = load_case(case_path)
-    refuse_before_engine(case, "uncertainty")
+    case_path, case = read_case(args.case, "uncertainty")
     if not case.uncertainties:
         raise CaseError("the case states no uncertainties", file=str(case_path), key="uncertainty",
                         expected="an [uncertainty] table (README.md, \"Case files\")")

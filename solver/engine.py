@@ -435,7 +435,7 @@ def _long_column_advice(stages: int) -> str:
 def _with_range_notes(record: dict, pure: Any, temperature: np.ndarray) -> dict:
     """The thermo record with, per handbook component, the notes on properties evaluated
     beyond their correlation's range at the solution's stage temperatures."""
-    notes = pure.range_notes(temperature) if hasattr(pure, "range_notes") else {}
+    notes = pure.range_notes(temperature)
     if not notes:
         return record
     components = [dict(entry, range_notes=notes.get(entry.get("name"), [])) for entry in record.get("components", [])]

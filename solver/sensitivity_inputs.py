@@ -155,7 +155,7 @@ def _with_pair_term(index: int, term: str, side: int) -> Apply:
             pairs[index] = dataclasses.replace(pair, **{term: tuple(both)})
         moved = dataclasses.replace(case, thermo=dataclasses.replace(case.thermo, pairs=tuple(pairs)))
         # the pairs fitted to UNIFAC do not depend on the stated ones: kept, not fitted again
-        activity = activity_model(moved, moved.component_names, getattr(thermo, "predicted_pairs", ()))
+        activity = activity_model(moved, moved.component_names, thermo.predicted_pairs)
         return moved, thermo.replaced(activity=activity)
     return apply
 

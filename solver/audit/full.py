@@ -160,7 +160,7 @@ def _ideal_vapor(case: Case, thermo: ThermoPackage, columns: RigorousColumns, co
                  reflux_needed: RigorousRun, search: StageSearch, budget: int) -> IdealVaporComparison | None:
     """For a vapor from an equation of state: the design questions once more with ideal-vapor
     K-values (:mod:`.ideal_vapor`), warm-started from the solutions already found."""
-    if not getattr(thermo, "vapor_dependent", False):
+    if not thermo.vapor_dependent:
         return None
     return ideal_vapor_comparison(case, column.stages, column.feed_stage, column.reflux_ratio, column.distillate_flow,
                                   column.targets, column.feed_composition, reflux_needed, search, budget,

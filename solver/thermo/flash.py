@@ -103,7 +103,7 @@ def bubble_temperature(thermo, pressure, x, guess=None, max_iterations: int = 10
     k = thermo.k_values(temperature, pressure, x, derivatives=False, y=y)
     y = k.K * x
     y = y / y.sum(axis=1, keepdims=True)
-    if getattr(thermo, "trivial_solution_possible", False) and vapor_guess is not _FROM_WILSON:
+    if thermo.trivial_solution_possible and vapor_guess is not _FROM_WILSON:
         temperature, y = _leave_trivial_bubble_points(thermo, pressure, x, temperature, y, k.K, max_iterations)
     return temperature, y
 

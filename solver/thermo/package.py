@@ -313,6 +313,8 @@ class ThermoPackage:
 
     #: K depends on the vapor composition (an equation of state for the vapor)
     vapor_dependent = False
+    #: the pairs fitted to UNIFAC (``[thermo] missing_pairs``), kept to build the model again
+    predicted_pairs: tuple = ()
     #: a bubble point may land on the trivial solution K = 1 (an equation of state for both phases)
     trivial_solution_possible = False
 

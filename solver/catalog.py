@@ -7,11 +7,10 @@ properties comes from."""
 from __future__ import annotations
 
 import difflib
-import fnmatch
 from dataclasses import dataclass
 from functools import lru_cache
 
-from solver.components import list_components
+from solver.components import list_components, usable_coolprop_name
 from solver.fluids import fluid_aliases
 from solver.handbook.names import AmbiguousFormula, IndexEntry, entries, find, loose, search
 
@@ -40,48 +39,30 @@ class Matches:
 
 
 @lru_cache(maxsize=1)
-def _fluids() -> tuple[CoolPropFluid, ...]:
-    return tuple(
-        CoolPropFluid(info.name, info.coolprop_name, fluid_aliases(info.coolprop_name), info.molar_mass,
-                      info.normal_boiling_point, info.critical_temperature, info.critical_pressure)
+def _fluids() -> dict[str, CoolPropFluid]:
+    """Every usable CoolProp fluid by its CoolProp name, in the order of the component registry."""
+    return {
+        info.coolprop_name: CoolPropFluid(info.name, info.coolprop_name, fluid_aliases(info.coolprop_name),
+                                          info.molar_mass, info.normal_boiling_point, info.critical_temperature,
+                                          info.critical_pressure)
         for info in list_components()
-    )
-
-
-@lru_cache(maxsize=1)
-def _fluid_keys() -> tuple[dict[str, CoolPropFluid], dict[str, CoolPropFluid]]:
-    exact: dict[str, CoolPropFluid] = {}
-    for fluid in _fluids():
-        for key in (fluid.name, fluid.coolprop_name, *fluid.aliases):
-            exact.setdefault(key.lower(), fluid)
-    by_loose: dict[str, CoolPropFluid] = {}
-    for key, fluid in exact.items():
-        by_loose.setdefault(loose(key), fluid)
-    return exact, by_loose
+    }
 
 
 def coolprop_fluid(name: str) -> CoolPropFluid | None:
     """The usable CoolProp fluid called ``name`` (name or alias, any case; spaces, hyphens and
-    underscores optional), or None."""
-    exact, by_loose = _fluid_keys()
-    key = name.strip().lower()
-    return exact.get(key) or by_loose.get(loose(key))
+    underscores optional: :func:`solver.components.usable_coolprop_name`), or None."""
+    fluid = usable_coolprop_name(name)
+    return None if fluid is None else _fluids()[fluid]
 
 
 def matches(pattern: str | None) -> Matches:
     """The CoolProp fluids whose name or an alias contains ``pattern`` (ignoring case; a shell
-    glob when it has ``*``, ``?`` or ``[``) and the handbook compounds whose name, a synonym,
-    the CAS number or the formula does; everything without a pattern."""
+    glob when it has ``*``, ``?`` or ``[``: :func:`solver.components.list_components`) and the
+    handbook compounds whose name, a synonym, the CAS number or the formula does; everything
+    without a pattern."""
     fluids = _fluids()
-    if pattern:
-        text = pattern.strip().lower()
-        glob = any(ch in text for ch in "*?[")
-        fluids = tuple(
-            f for f in fluids
-            if any(fnmatch.fnmatchcase(k.lower(), text) if glob else text in k.lower()
-                   for k in (f.name, f.coolprop_name, *f.aliases))
-        )
-    return Matches(tuple(fluids), tuple(search(pattern)))
+    return Matches(tuple(fluids[info.coolprop_name] for info in list_components(pattern)), tuple(search(pattern)))
 
 
 def exact_handbook(name: str) -> IndexEntry | None:
@@ -98,7 +79,7 @@ def close_names(name: str, extra=(), count: int = 3) -> list[str]:
     aliases, the handbook library's compounds and their synonyms, and the names in ``extra``
     (user-defined components); each answer is the canonical name."""
     candidates: dict[str, str] = {key.lower(): key.lower() for key in extra}
-    for fluid in _fluids():
+    for fluid in _fluids().values():
         for key in (fluid.name, *fluid.aliases):
             candidates.setdefault(key.lower(), fluid.name)
     for entry in entries():

@@ -43,6 +43,7 @@ __all__ = [
     "shortcut_layer",
     "shortcut_yx_diagram",
     "shortcut_yx_figure",
+    "stage_axis",
     "stage_marks",
     "sweep_figure",
     "sweep_plot",
@@ -71,7 +72,8 @@ def save_figure(figure: Figure, path: str | Path) -> Path:
     return write_atomic(Path(path), buffer.getvalue())
 
 
-def _stage_axis(ax, count: int) -> None:
+def stage_axis(ax, count: int) -> None:
+    """Stage number on the y axis, 1 (the top) uppermost, whole numbers, a light grid."""
     ax.yaxis.set_major_locator(MaxNLocator(integer=True))
     ax.set_ylabel("stage (1 = top)")
     ax.set_ylim(count + 0.5, 0.5)
@@ -112,7 +114,7 @@ def temperature_figure(result: Result) -> Figure:
     figure, ax = new_figure((5, 6))
     ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3, label="temperature")
     ax.set_xlabel("temperature / °C")
-    _stage_axis(ax, result.stage_count)
+    stage_axis(ax, result.stage_count)
     _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "stage temperatures")
@@ -134,7 +136,7 @@ def flow_figure(result: Result) -> Figure:
     ax.plot(result.liquid_flow[inner] * to_kmol_h, stages[inner], "o-", markersize=3, label="liquid L")
     ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", markersize=3, label="vapor V")
     ax.set_xlabel("flow leaving the stage / kmol/h")
-    _stage_axis(ax, result.stage_count)
+    stage_axis(ax, result.stage_count)
     _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "internal flows (rigorous)")
@@ -157,7 +159,7 @@ def composition_figure(result: Result) -> Figure:
     smallest = float(np.min(result.x[result.x > 0])) if np.any(result.x > 0) else 1e-12
     logarithmic.set_xlim(max(smallest, 1e-15) / 2, 1.5)
     for ax in (linear, logarithmic):
-        _stage_axis(ax, result.stage_count)
+        stage_axis(ax, result.stage_count)
         _mark_stages(ax, result)
     logarithmic.set_ylabel("")
     linear.legend(loc="best", fontsize=8)
@@ -357,7 +359,7 @@ def cmo_flow_figure(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarra
     ax.plot(*_stage_steps(np.asarray(vapor_cmo)[inner] * to_kmol_h, stages[inner]), "--", color="tab:orange",
             linewidth=1.0, label="vapor V, CMO")
     ax.set_xlabel("flow leaving the stage / kmol/h")
-    _stage_axis(ax, result.stage_count)
+    stage_axis(ax, result.stage_count)
     _mark_stages(ax, result)
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "internal flows: rigorous against constant molar overflow")

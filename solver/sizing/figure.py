@@ -10,7 +10,7 @@ import numpy as np
 
 from matplotlib.figure import Figure
 
-from ..plots import _stage_axis, new_figure, save_figure
+from ..plots import stage_axis, new_figure, save_figure
 from ..results import Result
 from .column import ColumnSizing
 
@@ -40,7 +40,7 @@ def flood_figure(sizing: ColumnSizing, stage_count: int, title: str = "") -> Fig
         ax.axhline(section.section.first - 0.5, color="0.7", linewidth=0.6)
     ax.set_xlabel("% of flood")
     ax.set_xlim(0, max(110.0, float(np.nanmax(100 * sizing.rating.fraction_of_flood)) + 5))
-    _stage_axis(ax, stage_count)
+    stage_axis(ax, stage_count)
     ax.legend(loc="best", fontsize=8)
     ax.set_title(title or "fraction of flood per stage", fontsize=9)
     return figure

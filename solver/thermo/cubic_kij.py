@@ -9,6 +9,39 @@ against a stored copy of it; "verified" would mean read in a stored copy. Hydroc
 have small k_ij (about -0.01 to 0.03), and zero is the default for any pair not listed; the
 reference tests compare bubble pressures with these values against reference equations of state
 (tests/reference/test_cubic_reference.py), which bounds the harm a mistaken value could do.
+No shipped case uses this table (their k_ij are zero or written in the case file).
+
+Verification attempted, December 2026: every value is still UNVERIFIED. The publisher's page of
+the volume (dechema.de, Chemistry Data Series Vol. VI) confirms that it lists Peng-Robinson
+binary parameters fitted to all the data of each binary, but no page we could read shows the
+numbers, and no paper tabulating Peng-Robinson k_ij of light hydrocarbons was found in a
+readable form (searched: the volume's title and authors; "Peng-Robinson binary interaction
+parameters propane n-butane"; tables of k_ij in public code, where the ones found came from
+process simulators' data banks and were not used).
+
+What the values do against the reference mixture model (GERG-2008 in CoolProp, O. Kunz and
+W. Wagner, J. Chem. Eng. Data 57 (2012) 3032; Peng-Robinson with the reference equations'
+critical constants; rms relative bubble-pressure deviation at x1 = 0.1-0.9, 0.5-3 MPa; computed,
+not a source of values): the table's k_ij against k = 0 and the k that fits the reference best.
+
+    pair                  table    rms(table)  rms(k=0)  best k   rms(best)
+    ethane/propane       +0.0011     1.35 %     1.17 %  -0.0059    0.49 %
+    ethane/n-butane      +0.0096     1.23 %     1.17 %  +0.0047    0.51 %
+    ethane/isobutane     -0.0067     0.79 %     1.67 %  -0.0070    0.79 %
+    ethane/n-pentane     +0.0078     1.29 %     3.20 %  +0.0120    0.65 %
+    propane/n-butane     +0.0033     0.76 %     0.32 %  -0.0009    0.28 %
+    propane/isobutane    -0.0078     0.85 %     0.66 %  -0.0032    0.42 %
+    propane/n-pentane    +0.0267     0.89 %     4.20 %  +0.0223    0.24 %
+    isobutane/n-butane   -0.0004     0.50 %     0.53 %  -0.0018    0.45 %
+    n-butane/n-pentane   +0.0174     2.99 %     0.45 %  -0.0013    0.40 %
+    propylene/propane    +0.0074     0.41 %     1.45 %  +0.0091    0.30 %
+
+Doubtful, to be checked first when a copy of the table is at hand: n-butane/n-pentane (the
+table's value makes the bubble pressures six times worse than k = 0) and propane/n-butane
+(worse than k = 0). The suspected swap of the n- and iso-butane values is not borne out by the
+ethane pairs (ethane/isobutane -0.0067 is what the reference model wants); for the methane
+pairs the comparison is inconclusive (methane is supercritical there and no k brings the rms
+below 1.5 %).
 """
 
 from __future__ import annotations

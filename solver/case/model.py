@@ -137,6 +137,7 @@ class ThermoOptions:
     groups: Mapping[str, Mapping[str, int]] = field(default_factory=_frozen_mapping)  # name -> {UNIFAC subgroup: count}
     missing_pairs: str = ""  # "" (a missing pair is an error) | unifac | unifac-dortmund | ideal
     interaction: tuple[InteractionParameter, ...] = ()  # k_ij of the equation of state (of both phases or the vapor)
+    volume_shift: str = "none"  # none | peneloux (an equation of state for both phases only)
 
 
 @dataclass(frozen=True)

@@ -38,7 +38,10 @@ _LIQUID_MODELS = ("ideal", "wilson", "nrtl", "uniquac") + _UNIFAC_MODELS + _CUBI
 _ACTIVITY_MODELS = ("wilson", "nrtl", "uniquac")
 _MISSING_PAIRS = _UNIFAC_MODELS + ("ideal",)
 _THERMO_KEYS = ("liquid", "vapor", "enthalpy") + _ACTIVITY_MODELS + (
-    "wilson_volumes", "uniquac_structure", "groups", "missing_pairs", "interaction")
+    "wilson_volumes", "uniquac_structure", "groups", "missing_pairs", "interaction", "volume_shift")
+#: ``volume_shift``: none, or the Peneloux translation matched to the liquid volume data
+#: (:mod:`solver.thermo.cubic_volume_shift`, whose names these mirror)
+_VOLUME_SHIFTS = ("none", "peneloux")
 #: model -> the key of its energy form
 _ENERGY_FORM_KEY = {"nrtl": "dg", "wilson": "dlambda", "uniquac": "du"}
 #: The four terms of a binary parameter: key -> (kind of quantity, how a message names it)
@@ -93,8 +96,18 @@ def read_thermo_table(value: Any, names: tuple[str, ...], at: At) -> ThermoOptio
                 + " or ".join(repr(m) for m in _CUBIC_MODELS)
             )
         interaction = _read_interaction(table["interaction"], names, at.child("interaction"))
+    volume_shift = "none"
+    if "volume_shift" in table:
+        volume_shift = read_choice(table["volume_shift"], at.child("volume_shift"), _VOLUME_SHIFTS)
+        if volume_shift != "none" and liquid not in _CUBIC_MODELS:
+            at.child("volume_shift").fail(
+                f"not used: thermo.liquid is {liquid!r}", table["volume_shift"],
+                "volume_shift only with an equation of state for both phases: liquid = "
+                + " or ".join(repr(m) for m in _CUBIC_MODELS),
+            )
     return ThermoOptions(
         interaction=interaction,
+        volume_shift=volume_shift,
         liquid=liquid,
         vapor=vapor,
         enthalpy=enthalpy,

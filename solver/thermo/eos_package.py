@@ -29,6 +29,7 @@ from . import activity as activity_models
 from .cubic import CubicParameters, cubic_k_values, cubic_phase, cubic_phase_enthalpy, cubic_stage_properties
 from .cubic_critical import critical_pressure_note, trivial_solution
 from .cubic_flash import wilson_k_values
+from .cubic_volume_shift import with_matched_volume_shift
 from .package import KValues, PhaseEnthalpy, StageProperties, ThermoPackage
 from .pure import PureComponents
 
@@ -122,6 +123,10 @@ class CubicThermoPackage(ThermoPackage):
         infos = [component_info(name, case.component_data) for name in case.component_names]
         pure = PureComponents(infos, case.component_data)
         parameters = cubic_parameters(case)
+        if case.thermo.volume_shift == "peneloux":
+            parameters = with_matched_volume_shift(
+                parameters, pure.liquid_molar_volume,
+                "each component's data (CoolProp's reference equation, the user's correlation or Rackett)")
         description = {
             "liquid": case.thermo.liquid,
             "vapor": case.thermo.liquid,

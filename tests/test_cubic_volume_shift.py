@@ -10,35 +10,14 @@ import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
 
-from conftest import case_from_text
+from test_eos_package import binary
 from solver.errors import CaseError
 from solver.thermo.cubic_volume_shift import MATCHING_REDUCED_TEMPERATURE, saturated_liquid_volume
 from solver.thermo.package import ThermoPackage
 
-CASE = """
-[components]
-names = ["propane", "n-butane"]
-[thermo]
-liquid = "{liquid}"
-{extra}
-[column]
-stages = 10
-condenser = "total"
-reboiler = "partial"
-pressure.top = "10 bar"
-[[feeds]]
-stage = 5
-flow = "100 kmol/h"
-composition = {{ propane = 0.4, n-butane = 0.6 }}
-vapor_fraction = 0.0
-[specs]
-reflux_ratio = 2.5
-distillate_rate = "40 kmol/h"
-"""
-
 
 def _package(liquid="peng-robinson", extra=""):
-    return ThermoPackage.from_case(case_from_text(CASE.format(liquid=liquid, extra=extra)))
+    return ThermoPackage.from_case(binary(liquid, extra))
 
 
 def test_shift_matches_coolprop_liquid_volume_at_the_matching_point_and_leaves_k_values():
@@ -63,8 +42,8 @@ def test_shift_matches_coolprop_liquid_volume_at_the_matching_point_and_leaves_k
 
 def test_volume_shift_only_with_an_equation_of_state_for_both_phases():
     with pytest.raises(CaseError) as caught:
-        case_from_text(CASE.format(liquid="ideal", extra='volume_shift = "peneloux"'))
+        binary("ideal", 'volume_shift = "peneloux"')
     assert "thermo.volume_shift" in str(caught.value) and "not used" in str(caught.value)
     with pytest.raises(CaseError) as caught:
-        case_from_text(CASE.format(liquid="peng-robinson", extra='volume_shift = "peneloox"'))
+        binary("peng-robinson", 'volume_shift = "peneloox"')
     assert "did you mean 'peneloux'" in str(caught.value)

@@ -3,8 +3,10 @@
 Halvorsen & Skogestad (Ind. Eng. Chem. Res. 42 (2003) 596, 605 and 616) show that, for constant
 relative volatilities and constant molar overflow, a Petlyuk arrangement with infinitely many
 stages needs as its minimum vapor the highest peak of the feed's Vmin diagram, when its
-prefractionator runs on the diagram's optimal segment (the paper itself was not read here; its
-abstract, read in a stored copy, states the "highest peak" result). The rigorous network of
+prefractionator runs on the diagram's optimal segment. Only the abstract of part 3 (pp. 616-629)
+was read here, in a stored copy: "the minimum-energy solution in a complex integrated Petlyuk
+arrangement is equal to the most difficult split between any pair of the products ... simply
+as the highest peak"; the optimal segment below is derived here. The rigorous network of
 :mod:`solver.network_engine` must therefore approach that minimum from above as its sections
 grow long. Checked here:
 

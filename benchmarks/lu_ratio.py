@@ -1,8 +1,20 @@
 """Cost of one Newton iteration relative to one sparse LU factorization of its Jacobian.
 
-N = 200 stages, 5 components (benzene, toluene, ethylbenzene, o-xylene, n-nonane; ideal liquid). ``ratio`` = seconds per Newton iteration
-(residuals, Jacobian assembly, factorization, solve, line search) / seconds for one
-``scipy.sparse.linalg.splu`` of the same Jacobian (target: at most 4).
+Single column: N = 200 stages, 5 components (benzene, toluene, ethylbenzene, o-xylene,
+n-nonane; ideal liquid), from the default start. Networks: the Petlyuk arrangement of the
+network hard cases at two purities (50 stages) and their four-section divided-wall column of
+120 stages (tests/hard/network_hard_cases.py), and the same column with 480 stages, each from
+the start of the engine's rung that solved it (the network start, or the second start of CMO
+flows alone); the starts themselves are not timed.
+
+``ratio`` = seconds per Newton iteration (residuals, Jacobian assembly, factorization, solve,
+line search; best of five runs) / seconds for one ``scipy.sparse.linalg.splu`` of the
+Jacobians of the same run (the mean over its iterates, each the best of five). Targets: at most
+4 for the single column, at most 3 for the networks. ``ratio_lu_at_start`` divides by the LU
+of the starting point's Jacobian alone (what this script reported before networks were added).
+``ratio_unit_of_work`` is (one residual+Jacobian + one LU) / one LU, the least an iteration
+can cost. ``evaluations_per_iteration`` counts residual evaluations, line-search trials
+included (a full Newton step needs one). Times are CPU seconds of this process (``time.process_time``).
 Writes benchmarks/results/lu_ratio.json.
 """
 
@@ -10,33 +22,77 @@ from __future__ import annotations
 
 import time
 
+import numpy as np
 import scipy.sparse.linalg as spla
 
-from _common import best_of, five_component_case, save
-from solver.initial import initial_estimate
-from solver.newton import NewtonOptions, solve
+from _common import best_of, divided_wall_case, five_component_case, network_hard_case, save
 from solver.engine import build_system
+from solver.initial import initial_estimate
+from solver.network_engine import build_network_system, simulate_network
+from solver.network_start import network_initial_estimate
+from solver.newton import NewtonOptions, solve
+
+NETWORK_CASES = {
+    "petlyuk_purities": lambda: network_hard_case("petlyuk_purities"),
+    "divided_wall_120": lambda: network_hard_case("divided_wall_120"),
+    "divided_wall_480": lambda: divided_wall_case(48),
+}
+#: CPU time of this process: the machine is shared, and wall time counts the other processes' turns
+CLOCK = time.process_time
+
+
+def iteration_ratio(system, X0) -> dict:
+    """Seconds per Newton iteration from ``X0`` (best of three runs), seconds per sparse LU of
+    the Jacobians met on the way, per residual-plus-Jacobian evaluation, and their ratios."""
+
+    def run(evaluate=system.evaluate):
+        return solve(evaluate, X0, system.temperature_index(), system.flow_mask(), NewtonOptions())
+
+    jacobians, calls = [], []
+
+    def recording(X, jacobian=True):
+        calls.append(jacobian)
+        evaluation = system.evaluate(X, jacobian)
+        if evaluation.jacobian is not None:
+            jacobians.append(evaluation.jacobian)
+        return evaluation
+
+    result = run(recording)  # also the warm-up
+    best = best_of(run, 5, CLOCK) / max(result.iterations, 1)
+    lu_seconds = float(np.mean([best_of(lambda: spla.splu(matrix), 5, CLOCK) for matrix in jacobians]))
+    lu_at_start = best_of(lambda: spla.splu(jacobians[0]), 20, CLOCK)
+    evaluate_seconds = best_of(lambda: system.evaluate(X0, True), 20, CLOCK)
+    return {"ratio": best / lu_seconds, "ratio_lu_at_start": best / lu_at_start,
+            "ratio_unit_of_work": (evaluate_seconds + lu_seconds) / lu_seconds, "seconds_per_iteration": best,
+            "seconds_per_lu": lu_seconds, "seconds_per_lu_at_start": lu_at_start, "seconds_per_evaluation": evaluate_seconds,
+            "iterations": result.iterations, "evaluations_per_iteration": len(calls) / max(result.iterations, 1),
+            "converged": bool(result.converged), "unknowns": int(system.size),
+            "jacobian_nonzeros": int(jacobians[-1].nnz)}
+
+
+def show(label: str, row: dict) -> None:
+    print(f"{label}: {row['seconds_per_iteration'] * 1e3:.2f} ms per Newton iteration ({row['iterations']} iterations, "
+          f"{row['unknowns']} unknowns, {row['evaluations_per_iteration']:.1f} evaluations each), {row['seconds_per_lu'] * 1e3:.2f} ms per sparse LU "
+          f"({row['seconds_per_lu_at_start'] * 1e3:.2f} at the start), {row['seconds_per_evaluation'] * 1e3:.2f} ms per "
+          f"residual+Jacobian; ratio {row['ratio']:.2f} ({row['ratio_lu_at_start']:.2f} to the start's LU; "
+          f"one residual+Jacobian and one LU alone {row['ratio_unit_of_work']:.2f})")
 
 
 def main() -> None:
-    case = five_component_case(200)
-    system = build_system(case)
-    X0 = initial_estimate(system)
-    solve(system.evaluate, X0, system.temperature_index(), system.flow_mask(), NewtonOptions())  # warm up
-    best = float("inf")
-    for _ in range(3):
-        start = time.perf_counter()
-        result = solve(system.evaluate, X0, system.temperature_index(), system.flow_mask(), NewtonOptions())
-        best = min(best, (time.perf_counter() - start) / max(result.iterations, 1))
-    jacobian = system.evaluate(X0, True).jacobian
-    lu_seconds = best_of(lambda: spla.splu(jacobian), 20)
-    evaluate_seconds = best_of(lambda: system.evaluate(X0, True), 20)
-    ratio = best / lu_seconds
-    print(f"N = 200, c = 5: {best * 1e3:.2f} ms per Newton iteration ({result.iterations} iterations), "
-          f"{lu_seconds * 1e3:.2f} ms per sparse LU, {evaluate_seconds * 1e3:.2f} ms per residual+Jacobian; ratio {ratio:.2f}")
-    save("lu_ratio", {"ratio": ratio, "seconds_per_iteration": best, "seconds_per_lu": lu_seconds,
-                      "seconds_per_evaluation": evaluate_seconds, "iterations": result.iterations,
-                      "unknowns": system.size, "target_ratio": 4.0})
+    system = build_system(five_component_case(200))
+    column = iteration_ratio(system, initial_estimate(system))
+    show("N = 200, c = 5", column)
+    networks = {}
+    for name, make_case in NETWORK_CASES.items():
+        case = make_case()
+        rung = simulate_network(case).strategy["rung"]
+        network = build_network_system(case)
+        start = network_initial_estimate(network, **({"energy_passes": 0} if rung == "second start" else {}))
+        row = iteration_ratio(network, start)
+        row.update(stages=int(network.N), rung=rung)
+        networks[name] = row
+        show(f"network {name} ({network.N} stages, rung {rung!r})", row)
+    save("lu_ratio", {**column, "target_ratio": 4.0, "networks": networks, "network_target_ratio": 3.0})
 
 
 if __name__ == "__main__":

@@ -3,7 +3,16 @@
 An ideal four-component column (benzene, toluene, ethylbenzene, o-xylene) at N = 20, 50, 100,
 200 and 500 stages: seconds for the default start plus Newton, Newton iterations, seconds per
 iteration. ``exponent`` is the fitted slope of log(time) against log(N) from 50 to 500 stages
-(target: at most 1.15). Writes benchmarks/results/scaling.json.
+(target: at most 1.15).
+
+Networks: the four-section divided-wall column of the network hard cases
+(tests/hard/network_hard_cases.py) with 6, 12, 24 and 48 stages a section (60 to 480 stages;
+12 is its 120-stage column). For each: CPU seconds per Newton iteration from the start of the
+engine's rung that solved it (the starts not timed), and the CPU seconds of one unit of work at
+the solution (residuals with Jacobian, sparse LU, solve), which no line search or rung choice
+disturbs. ``network_exponent`` is the fitted slope of log(seconds per iteration) against
+log(stages) (target: at most 1.15); ``network_unit_exponent`` that of the unit of work.
+Writes benchmarks/results/scaling.json.
 """
 
 from __future__ import annotations
@@ -12,12 +21,47 @@ import time
 
 import numpy as np
 
-from _common import ideal_four_case, save
+import scipy.sparse.linalg as spla
+
+from _common import best_of, divided_wall_case, ideal_four_case, save
 from solver.initial import initial_estimate
-from solver.newton import NewtonOptions, solve
+from solver.network_engine import build_network_system, simulate_network
+from solver.network_start import network_initial_estimate
+from solver.newton import NewtonOptions, solve, solve_system
 from solver.engine import build_system, simulate
 
 STAGE_COUNTS = (20, 50, 100, 200, 500)
+SECTION_STAGES = (6, 12, 24, 48)
+
+
+def network_rows() -> list[dict]:
+    """Seconds per Newton iteration and per unit of work of the divided-wall column at each
+    section length (CPU time of this process: the machine may be shared)."""
+    rows = []
+    for section in SECTION_STAGES:
+        case = divided_wall_case(section)
+        result = simulate_network(case)
+        assert result.converged, result.message
+        rung = result.strategy["rung"]
+        system = build_network_system(case)
+        start = network_initial_estimate(system, **({"energy_passes": 0} if rung == "second start" else {}))
+        options = NewtonOptions(max_iterations=200)
+        newton = solve_system(system, start, options)
+        assert newton.converged, newton.message
+        seconds = best_of(lambda: solve_system(system, start, options), 3, time.process_time)
+
+        def unit(X=newton.X):
+            evaluation = system.evaluate(X, True)
+            spla.splu(evaluation.jacobian).solve(evaluation.residuals)
+
+        unit_seconds = best_of(unit, 10, time.process_time)
+        rows.append({"section_stages": section, "stages": int(system.N), "unknowns": int(system.size), "rung": rung,
+                     "iterations": newton.iterations, "newton_seconds": seconds,
+                     "seconds_per_iteration": seconds / max(newton.iterations, 1), "unit_seconds": unit_seconds})
+        print(f"divided wall, {section:2d} stages a section ({system.N:3d} stages, {system.size} unknowns): "
+              f"{newton.iterations} iterations from the start of rung {rung!r}, "
+              f"{seconds / max(newton.iterations, 1) * 1e3:.2f} ms per iteration, {unit_seconds * 1e3:.2f} ms per unit of work")
+    return rows
 
 
 def main() -> None:
@@ -56,9 +100,17 @@ def main() -> None:
     newton_exponent = float(np.polyfit(logs, np.log([r["newton_seconds"] for r in selected]), 1)[0])
     print(f"fitted exponent of time against N (50..500): {exponent:.3f} for the whole solve (case to result), "
           f"{newton_exponent:.3f} for Newton alone (target at most 1.15)")
+    networks = network_rows()
+    logs = np.log([r["stages"] for r in networks])
+    network_exponent = float(np.polyfit(logs, np.log([r["seconds_per_iteration"] for r in networks]), 1)[0])
+    unit_exponent = float(np.polyfit(logs, np.log([r["unit_seconds"] for r in networks]), 1)[0])
+    print(f"divided wall: fitted exponent of seconds per Newton iteration against stages (60..480): {network_exponent:.3f}, "
+          f"of the unit of work {unit_exponent:.3f} (target at most 1.15)")
     save("scaling", {"rows": rows, "exponent": exponent, "exponent_newton_only": newton_exponent, "target_exponent": 1.15,
+                     "network_rows": networks, "network_exponent": network_exponent, "network_unit_exponent": unit_exponent,
                      "note": "seconds = simulate(case) from the default start (property fits, start, Newton, post-check); "
-                             "newton_seconds = Newton's method alone from the same start"})
+                             "newton_seconds = Newton's method alone from the same start; network figures are CPU seconds "
+                             "of Newton from the start of the engine's rung that solved the case"})
 
 
 if __name__ == "__main__":

@@ -36,7 +36,7 @@ from .network_graph import NetworkGraph
 from .network_specs import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
 from .streams import FlashedFeed, StageProfile
 
-__all__ = ["ConnectionStream", "NetworkSystem"]
+__all__ = ["ConnectionStream", "NetworkSystem", "SparseAssembly"]
 
 
 @dataclass(frozen=True)
@@ -96,6 +96,7 @@ class NetworkSystem:
         self.fixed_duties = self.fixed_duties / fe
         self.size = self.stage_size + len(self.extra_names)
         self._build_patterns()
+        self._assembly: SparseAssembly | None = None  # the Jacobian's layout, found at its first assembly
 
     # ------------------------------------------------------------------ structure
     def _build_streams(self, network) -> None:
@@ -415,8 +416,9 @@ class NetworkSystem:
             cols.append(np.asarray(entry_cols, dtype=int))
             vals.append(np.asarray(entry_vals, dtype=float))
         rows, cols, vals = np.concatenate(rows), np.concatenate(cols), np.concatenate(vals)
-        keep = vals != 0.0
-        return sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
+        if self._assembly is None or not self._assembly.matches(rows, cols):
+            self._assembly = SparseAssembly(rows, cols, self.size)
+        return self._assembly.matrix(vals)
 
     def _transfer_blocks(self, s: StageState, rates, gLx, gVy) -> np.ndarray:
         """(M, w, w): derivatives of a rate connection's destination rows with respect to the
@@ -462,6 +464,29 @@ class NetworkSystem:
         """Heat added to each stage (W): fixed heaters and coolers, exchangers on connections
         entering it, condenser and reboiler duties."""
         return self.stage_duties_scaled(self.unpack(X)[3]) * self.flow_scale * self.energy_scale
+
+
+class SparseAssembly:
+    """The CSC layout of a fixed list of (row, column) entries, duplicates summed, found once;
+    each later matrix with the same entries only sums its values into place (``np.bincount``)
+    instead of sorting the triplets again. Entries that sum to exactly zero are dropped, as a
+    triplet build without zero values drops them."""
+
+    def __init__(self, rows: np.ndarray, cols: np.ndarray, size: int) -> None:
+        self.rows, self.cols = rows, cols
+        unique, self.position = np.unique(cols.astype(np.int64) * size + rows, return_inverse=True)
+        indptr = np.concatenate([[0], np.cumsum(np.bincount(unique // size, minlength=size))])
+        self.template = sp.csc_matrix((np.zeros(len(unique)), (unique % size).astype(np.int32), indptr.astype(np.int32)),
+                                      shape=(size, size))
+
+    def matches(self, rows: np.ndarray, cols: np.ndarray) -> bool:
+        return rows.shape == self.rows.shape and np.array_equal(rows, self.rows) and np.array_equal(cols, self.cols)
+
+    def matrix(self, vals: np.ndarray) -> sp.csc_matrix:
+        matrix = self.template.copy()
+        matrix.data = np.bincount(self.position.ravel(), weights=vals, minlength=len(matrix.indices))
+        matrix.eliminate_zeros()
+        return matrix
 
 
 def _edges(matrix: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:

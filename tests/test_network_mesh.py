@@ -6,9 +6,11 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+import scipy.sparse as sp
 
 from conftest import network_example_case
 from solver.network_engine import build_network_system, network_post_check, network_result, simulate_network
+from solver.network_mesh import SparseAssembly
 from solver.network_start import network_initial_estimate
 from solver.newton import solve_system
 
@@ -137,3 +139,24 @@ def test_specs_hold_at_the_solution():
     assert pumparound["duty"] == pytest.approx(pumparound["flow"] * (h[1] - h[0]), rel=1e-8)
     assert result.products["stripper.bottoms"]["flow"] == pytest.approx(30 / 3.6, rel=1e-9)
     assert max(network_post_check(result, system).values()) < 1e-8
+
+
+def test_cached_jacobian_layout_gives_the_triplet_matrix():
+    """SparseAssembly (the Jacobian's CSC layout found once) against scipy's own triplet build:
+    the same entries (duplicates summed, zeros dropped) and the same values to rounding (scipy
+    may sum three or more duplicates in another order)."""
+    rng = np.random.default_rng(7)
+    size = 40
+    rows, cols = rng.integers(0, size, 600), rng.integers(0, size, 600)
+    assembly = SparseAssembly(rows, cols, size)
+    for _ in range(3):
+        vals = rng.normal(size=600)
+        vals[rng.random(600) < 0.2] = 0.0
+        built = assembly.matrix(vals)
+        keep = vals != 0.0
+        expected = sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(size, size))
+        expected.sum_duplicates()
+        assert built.has_sorted_indices and built.nnz == expected.nnz
+        assert np.array_equal(built.indptr, expected.indptr) and np.array_equal(built.indices, expected.indices)
+        np.testing.assert_allclose(built.data, expected.data, rtol=1e-13, atol=1e-15)
+    assert assembly.matches(rows, cols) and not assembly.matches(rows[::-1], cols)

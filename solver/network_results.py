@@ -20,10 +20,10 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .results import UNITS, json_safe, write_atomic
+from .results import UNITS, json_safe, stages_csv_text, write_atomic
 from .streams import FlashedFeed
 
-__all__ = ["NETWORK_SCHEMA", "NetworkResult", "write_network_result_json"]
+__all__ = ["NETWORK_SCHEMA", "NetworkResult", "write_network_result_json", "write_network_stages_csv"]
 
 NETWORK_SCHEMA = "traystack-result/2"
 
@@ -148,6 +148,18 @@ class NetworkResult:
 
     def to_json(self) -> str:
         return json.dumps(self.to_dict(), indent=2, allow_nan=False)
+
+    def stages_csv(self) -> str:
+        """The stage table of every column as one CSV: each row led by its column's name and
+        its stage number there (columns in file order, each top first), the liquid and vapor
+        sent on by rate connections beside the side draws; SI units in the headers."""
+        return stages_csv_text(self.stage_records(), self.components, leading=("column",),
+                               trailing=("transfer_liquid", "transfer_vapor"))
+
+
+def write_network_stages_csv(result: NetworkResult, path: str | os.PathLike):
+    """Write :meth:`NetworkResult.stages_csv` to ``path`` atomically."""
+    return write_atomic(path, result.stages_csv())
 
 
 def write_network_result_json(result: NetworkResult, path: str | os.PathLike):

@@ -14,7 +14,9 @@ from rich.console import Console
 from ..audit.network_vmin import network_vmin_audit
 from ..case import Case
 from ..network_engine import simulate_network
-from ..network_results import NetworkResult, write_network_result_json
+from ..network_graph import check_network
+from ..network_results import NetworkResult, write_network_result_json, write_network_stages_csv
+from ..network_specs import resolve_specs
 from ..newton import NewtonOptions
 from ..reports import display_units
 from ..reports.display import screen_table
@@ -24,22 +26,36 @@ from ..thermo.package import ThermoPackage
 __all__ = ["audit_network", "run_network"]
 
 
+def network_outputs(result: NetworkResult, case: Case, out: Path, units) -> list[Path]:
+    """The files of a network run in ``out``: result.json, stages.csv (one file, each row led
+    by its column), and when converged the picture of the network (network.png) and each
+    column's temperature and composition profiles; summary.md last, naming the pictures. The
+    pictures of an earlier run are removed when this one did not converge."""
+    from ..network_plot import column_profile_files, column_profiles, network_figure  # matplotlib
+    from ..reports.network_summary import write_network_summary
+
+    written = [write_network_result_json(result, out / "result.json"), write_network_stages_csv(result, out / "stages.csv")]
+    plots: list[Path] = []
+    if result.converged:
+        plots = [network_figure(result, out / "network.png"), *column_profiles(result, out)]
+    else:
+        for name in ("network.png", *[f for files in column_profile_files(result).values() for f in files]):
+            (out / name).unlink(missing_ok=True)
+    written.append(write_network_summary(result, out / "summary.md", units, resolve_specs(case, check_network(case)), [path.name for path in plots]))
+    return written + plots
+
+
 def run_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> tuple[list[Path], NetworkResult]:
-    """``run``: result.json, the picture of the network (network.png, when converged) and the
-    tables per column on screen. Returns (files written, result)."""
+    """``run``: result.json, stages.csv, summary.md, the picture of the network (network.png)
+    and each column's profiles (when converged) and the tables per column on screen. Returns
+    (files written, result)."""
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     result = simulate_network(case, options=options)
-    written = [write_network_result_json(result, out / "result.json")]
-    if result.converged:
-        from ..network_plot import network_figure  # matplotlib only when there is a picture to draw
-
-        written.append(network_figure(result, out / "network.png"))
-    else:
-        (out / "network.png").unlink(missing_ok=True)
+    written = network_outputs(result, case, out, units)
     if args.json:
         print(result.to_json())
-    for table in network_tables(result, units):
+    for table in network_tables(result, units, resolve_specs(case, check_network(case))):
         console.print(table)
     return written, result
 

@@ -23,7 +23,7 @@ from matplotlib.patches import FancyArrowPatch, Rectangle
 from .network_results import NetworkResult
 from .plots import profile_composition_figure, profile_temperature_figure, save_figure
 
-__all__ = ["column_marks", "column_profile_files", "column_profiles", "network_figure"]
+__all__ = ["column_marks", "column_profile_files", "column_profiles", "file_stem", "network_figure"]
 
 _KMOL_PER_H = 3.6  # mol/s to kmol/h
 
@@ -46,14 +46,16 @@ def column_marks(result: NetworkResult, column: str) -> list[tuple[int, str]]:
     return sorted(set(marks))
 
 
+def file_stem(column: str) -> str:
+    """A column's name as it stands in file names (``temperature_STEM.png``): characters other
+    than letters, digits, '-', '_' and '.' become '-'."""
+    return re.sub(r"[^A-Za-z0-9_.-]+", "-", column)
+
+
 def column_profile_files(result: NetworkResult) -> dict[str, tuple[str, str]]:
-    """Column name -> the file names of its temperature and composition profiles (characters
-    other than letters, digits, '-', '_' and '.' in a column's name become '-')."""
-    files = {}
-    for column in result.columns:
-        stem = re.sub(r"[^A-Za-z0-9_.-]+", "-", column["name"])
-        files[column["name"]] = (f"temperature_{stem}.png", f"compositions_{stem}.png")
-    return files
+    """Column name -> the file names of its temperature and composition profiles."""
+    return {c["name"]: (f"temperature_{file_stem(c['name'])}.png", f"compositions_{file_stem(c['name'])}.png")
+            for c in result.columns}
 
 
 def column_profiles(result: NetworkResult, folder: Path) -> list[Path]:

@@ -24,10 +24,11 @@ __all__ = ["network_summary_markdown", "write_network_summary"]
 
 
 def network_summary_markdown(result: NetworkResult, units: DisplayUnits, specs: Sequence[SpecRow] = (),
-                             plots: Sequence[str] = ()) -> str:
+                             plots: Sequence[str] = (), sections: Sequence[str] = ()) -> str:
     """The summary of a network run as Markdown (module docstring); ``specs`` the resolved
     specifications (:func:`solver.network_specs.resolve_specs`), ``plots`` file names relative
-    to the summary."""
+    to the summary, ``sections`` further Markdown lines set before the plots (e.g. each
+    column's sizing)."""
     lines = [f"# {result.title or 'traystack result'}", "", _status(result), "", _arrangement(result, units), ""]
     lines += _feeds(result, units)
     for column in result.columns:
@@ -36,6 +37,7 @@ def network_summary_markdown(result: NetworkResult, units: DisplayUnits, specs: 
         lines += ["## Connections", "", *markdown_table(connection_header(units), connection_rows(result, units),
                                                         [False] * 3 + [True] * 2), ""]
     lines += _convergence(result)
+    lines += list(sections)
     if plots:
         lines += ["## Plots", "", *[f"![{os.path.splitext(name)[0]}]({name})" for name in plots], ""]
     lines += ["## Cautions", ""]
@@ -46,9 +48,9 @@ def network_summary_markdown(result: NetworkResult, units: DisplayUnits, specs: 
 
 
 def write_network_summary(result: NetworkResult, path: str | os.PathLike, units: DisplayUnits,
-                          specs: Sequence[SpecRow] = (), plots: Sequence[str] = ()) -> Path:
+                          specs: Sequence[SpecRow] = (), plots: Sequence[str] = (), sections: Sequence[str] = ()) -> Path:
     """Write :func:`network_summary_markdown` to ``path`` atomically."""
-    return write_atomic(path, network_summary_markdown(result, units, specs, plots))
+    return write_atomic(path, network_summary_markdown(result, units, specs, plots, sections))
 
 
 def _status(result: NetworkResult) -> str:

@@ -4,10 +4,16 @@ each column a box spanning its stages (stage 1 at the top, condenser and reboile
 connection an arrow from its stage to its destination labelled with its name and rate, feeds
 and products as arrows in and out with their rates; the temperature profile of every column
 beside it. The layout follows the network graph (networkx) only in which stages the arrows
-join; the columns stand side by side in file order."""
+join; the columns stand side by side in file order.
+
+Beside it, the profiles of each column as for one column (:mod:`solver.plots`): its stage
+temperatures and its liquid compositions against its own stage numbers, with its feeds, side
+draws and the stages that send to or take from a connection marked
+(``temperature_COLUMN.png``, ``compositions_COLUMN.png``)."""
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 import numpy as np
@@ -15,11 +21,56 @@ from matplotlib.figure import Figure
 from matplotlib.patches import FancyArrowPatch, Rectangle
 
 from .network_results import NetworkResult
-from .plots import save_figure
+from .plots import profile_composition_figure, profile_temperature_figure, save_figure
 
-__all__ = ["network_figure"]
+__all__ = ["column_marks", "column_profile_files", "column_profiles", "file_stem", "network_figure"]
 
 _KMOL_PER_H = 3.6  # mol/s to kmol/h
+
+
+def column_marks(result: NetworkResult, column: str) -> list[tuple[int, str]]:
+    """(stage of the column, kind) of its feeds, side draws and connection ends, as
+    :func:`solver.plots.stage_marks` gives them for one column."""
+    marks = []
+    for g in result.column_stages(column):
+        number = result.stage_number[g]
+        if result.stage_feeds[g]:
+            marks.append((number, "feed"))
+        if result.liquid_draw[g] > 0 or result.vapor_draw[g] > 0:
+            marks.append((number, "side draw"))
+    for connection in result.connections.values():
+        if connection["from"]["column"] == column:
+            marks.append((connection["from"]["stage"], "to a connection"))
+        if connection["to"]["column"] == column:
+            marks.append((connection["to"]["stage"], "from a connection"))
+    return sorted(set(marks))
+
+
+def file_stem(column: str) -> str:
+    """A column's name as it stands in file names (``temperature_STEM.png``): characters other
+    than letters, digits, '-', '_' and '.' become '-'."""
+    return re.sub(r"[^A-Za-z0-9_.-]+", "-", column)
+
+
+def column_profile_files(result: NetworkResult) -> dict[str, tuple[str, str]]:
+    """Column name -> the file names of its temperature and composition profiles."""
+    return {c["name"]: (f"temperature_{file_stem(c['name'])}.png", f"compositions_{file_stem(c['name'])}.png")
+            for c in result.columns}
+
+
+def column_profiles(result: NetworkResult, folder: Path) -> list[Path]:
+    """Write the temperature and composition profiles of every column into ``folder``
+    (atomically); returns the paths, column by column."""
+    written = []
+    for name, (temperature_file, composition_file) in column_profile_files(result).items():
+        stages = result.column_stages(name)
+        marks = column_marks(result, name)
+        what = f"column {name!r}"
+        written.append(save_figure(profile_temperature_figure(result.title, result.temperature[stages], marks,
+                                                              f"stage temperatures of {what}"), folder / temperature_file))
+        written.append(save_figure(profile_composition_figure(result.title, result.components, result.x[stages], marks,
+                                                              f"liquid compositions of {what}"), folder / composition_file))
+    return written
 
 
 def _position(result: NetworkResult, column: str, stage: int) -> tuple[float, float]:

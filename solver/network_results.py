@@ -20,10 +20,10 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .results import UNITS, json_safe, write_atomic
+from .results import UNITS, Result, json_safe, stages_csv_text, write_atomic
 from .streams import FlashedFeed
 
-__all__ = ["NETWORK_SCHEMA", "NetworkResult", "write_network_result_json"]
+__all__ = ["NETWORK_SCHEMA", "NetworkResult", "write_network_result_json", "write_network_stages_csv"]
 
 NETWORK_SCHEMA = "traystack-result/2"
 
@@ -148,6 +148,59 @@ class NetworkResult:
 
     def to_json(self) -> str:
         return json.dumps(self.to_dict(), indent=2, allow_nan=False)
+
+    def column_result(self, name: str) -> Result:
+        """Column ``name`` seen alone, as a one-column :class:`~solver.results.Result` with its
+        own stages: a connection that brings a stream in is a feed of its stage (flow,
+        composition and enthalpy of its source), one that takes a stream from a stage is a side
+        draw there, except the vapor leaving the top stage and the liquid leaving the bottom
+        stage, which stay the column's top and bottom products. Its stages meet the same
+        balances, so what is built for one column (sizing, profiles) reads it unchanged."""
+        stages = self.column_stages(name)
+        first = int(stages[0])
+        column = next(c for c in self.columns if c["name"] == name)
+        L, V = self.liquid_flow[stages].copy(), self.vapor_flow[stages].copy()
+        liquid_draw = self.liquid_draw[stages] + self.transfer_liquid[stages]
+        vapor_draw = self.vapor_draw[stages] + self.transfer_vapor[stages]
+        feeds = [list(self.stage_feeds[g]) for g in stages]
+        for connection_name, c in self.connections.items():
+            source, liquid = self._stage_index(c["from"]), c["from"]["phase"] == "liquid"
+            if c["from"]["column"] == name and c["fraction"] is not None:
+                end = c["from"]["stage"] == (column["stages"] if liquid else 1)
+                if not end:
+                    (L if liquid else V)[source - first] -= c["flow"]
+                    (liquid_draw if liquid else vapor_draw)[source - first] += c["flow"]
+            if c["to"]["column"] == name:
+                composition = (self.x if liquid else self.y)[source]
+                h = (self.h_liquid if liquid else self.h_vapor)[source]
+                feeds[c["to"]["stage"] - 1].append(FlashedFeed(c["to"]["stage"], c["flow"], tuple(composition.tolist()), float(h),
+                                                               1.0 if liquid else 0.0, connection_name,
+                                                               float(self.temperature[source]), float(self.pressure[source])))
+        return Result(
+            title=f"{self.title}: column {name}", case={**self.case, "column": {}}, converged=self.converged,
+            iterations=self.iterations, residual_norm=self.residual_norm, message=self.message, components=self.components,
+            roles=tuple(self.roles[g] for g in stages), temperature=self.temperature[stages], pressure=self.pressure[stages],
+            liquid_flow=L, vapor_flow=V, x=self.x[stages], y=self.y[stages], K=self.K[stages], h_liquid=self.h_liquid[stages],
+            h_vapor=self.h_vapor[stages], efficiency=self.efficiency[stages], liquid_draw=liquid_draw, vapor_draw=vapor_draw,
+            duty=self.duty[stages], stage_feeds=tuple(tuple(f) for f in feeds), condenser=column["condenser"],
+            reboiler=column["reboiler"], thermo=self.thermo, iteration_log=self.iteration_log, enthalpy_model=self.enthalpy_model,
+        )
+
+    def _stage_index(self, end: Mapping[str, Any]) -> int:
+        """The global index of a connection's end (``{"column": ..., "stage": ...}``)."""
+        return int(self.column_stages(end["column"])[end["stage"] - 1])
+
+    def stages_csv(self) -> str:
+        """The stage table of every column as one CSV: each row led by its column's name and
+        its stage number there (columns in file order, each top first), the liquid and vapor
+        sent on by rate connections beside the side draws; SI units in the headers."""
+        return stages_csv_text(self.stage_records(), self.components, leading=("column",),
+                               trailing=("transfer_liquid", "transfer_vapor"))
+
+
+def write_network_stages_csv(result: NetworkResult, path: str | os.PathLike):
+    """Write :meth:`NetworkResult.stages_csv` to ``path`` atomically."""
+    return write_atomic(path, result.stages_csv())
 
 
 def write_network_result_json(result: NetworkResult, path: str | os.PathLike):

@@ -14,7 +14,7 @@ duties by ``flow_scale * energy_scale``, temperatures by :data:`TEMPERATURE_SCAL
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Callable
+from typing import Callable, Mapping
 
 import numpy as np
 
@@ -57,10 +57,16 @@ class SpecRow:
 
 @dataclass(frozen=True)
 class SpecKind:
-    """A kind of spec: its residual (see the module docstring) and its words in reports."""
+    """A kind of spec: its residual (see the module docstring), its words in reports, the
+    quantity its value is (``ratio``, ``flow`` mol/s, ``fraction``, ``temperature`` K,
+    ``duty`` W) and how reports read the value reached from a solved network
+    (``achieved(result, row)``, :class:`~solver.network_results.NetworkResult`; None where
+    the result alone does not give it)."""
 
     residual: Callable
     words: str
+    quantity: str = "ratio"
+    achieved: Callable | None = None
 
 
 def network_products(graph: NetworkGraph) -> tuple[ProductRef, ...]:
@@ -165,18 +171,49 @@ def _return_temperature_residual(system, s, extras, row: SpecRow):
     return system.return_temperature_row(s, extras, row)
 
 
-#: Every kind of network spec row: its residual and its words.
+def _achieved_product(result, row: SpecRow) -> Mapping:
+    return result.products[row.product.name]
+
+
+def _achieved_ratio(result, row: SpecRow) -> float:
+    own = result.liquid_flow if row.kind == "reflux_ratio" else result.vapor_flow
+    return float(own[row.stage]) / _achieved_product(result, row)["flow"]
+
+
+def _achieved_recovery(result, row: SpecRow) -> float:
+    product = _achieved_product(result, row)
+    fed = sum(feed.flow * feed.z[row.component] for feeds in result.stage_feeds for feed in feeds)
+    return product["flow"] * product["composition"][row.component] / fed
+
+
+def _achieved_duty(result, row: SpecRow) -> float:
+    return result.duties[row.extra] if row.extra in result.duties else result.duties[row.extra.rsplit(".", 1)[0]]
+
+
+def _achieved_fraction(result, row: SpecRow) -> float:
+    g = row.source_stage
+    if row.phase == "liquid":
+        leaving = result.liquid_flow[g] + result.liquid_draw[g] + result.transfer_liquid[g]
+    else:
+        leaving = result.vapor_flow[g] + result.vapor_draw[g] + result.transfer_vapor[g]
+    return result.connections[row.extra.rsplit(".", 1)[0]]["flow"] / float(leaving)
+
+
+#: Every kind of network spec row: its residual, its words, its quantity and its reached value.
 SPEC_REGISTRY: dict[str, SpecKind] = {
-    "reflux_ratio": SpecKind(_ratio_residual, "reflux ratio"),
-    "boilup_ratio": SpecKind(_ratio_residual, "boilup ratio"),
-    "product_flow": SpecKind(_product_flow_residual, "product flow"),
-    "mole_fraction": SpecKind(_mole_fraction_residual, "mole fraction in a product"),
-    "recovery": SpecKind(_recovery_residual, "recovery in a product"),
-    "stage_temperature": SpecKind(_stage_temperature_residual, "stage temperature"),
-    "duty": SpecKind(_duty_residual, "exchanger duty"),
-    "connection_flow": SpecKind(_connection_flow_residual, "connection rate"),
-    "connection_fraction": SpecKind(_connection_fraction_residual, "connection fraction"),
-    "return_temperature": SpecKind(_return_temperature_residual, "return temperature"),
+    "reflux_ratio": SpecKind(_ratio_residual, "reflux ratio", "ratio", _achieved_ratio),
+    "boilup_ratio": SpecKind(_ratio_residual, "boilup ratio", "ratio", _achieved_ratio),
+    "product_flow": SpecKind(_product_flow_residual, "product flow", "flow", lambda r, row: _achieved_product(r, row)["flow"]),
+    "mole_fraction": SpecKind(_mole_fraction_residual, "mole fraction in a product", "fraction",
+                              lambda r, row: _achieved_product(r, row)["composition"][row.component]),
+    "recovery": SpecKind(_recovery_residual, "recovery in a product", "fraction", _achieved_recovery),
+    "stage_temperature": SpecKind(_stage_temperature_residual, "stage temperature", "temperature",
+                                  lambda r, row: float(r.temperature[row.stage])),
+    "duty": SpecKind(_duty_residual, "exchanger duty", "duty", _achieved_duty),
+    "connection_flow": SpecKind(_connection_flow_residual, "connection rate", "flow",
+                                lambda r, row: r.connections[row.extra.rsplit(".", 1)[0]]["flow"]),
+    "connection_fraction": SpecKind(_connection_fraction_residual, "connection fraction", "fraction", _achieved_fraction),
+    "return_temperature": SpecKind(_return_temperature_residual, "return temperature", "temperature"),
 }
 
 

@@ -37,6 +37,8 @@ __all__ = [
     "flow_profiles",
     "light_component",
     "new_figure",
+    "profile_composition_figure",
+    "profile_temperature_figure",
     "run_figures",
     "sample_histograms",
     "save_figure",
@@ -95,13 +97,15 @@ def stage_marks(result: Result) -> list[tuple[int, str]]:
 
 
 _MARK_STYLES = {"feed": ("tab:green", "--"), "side draw": ("tab:purple", "-."), "side heater": ("tab:red", ":"),
-                "side cooler": ("tab:blue", ":")}
+                "side cooler": ("tab:blue", ":"), "to a connection": ("tab:orange", "-."),
+                "from a connection": ("tab:cyan", "--")}
 
 
-def _mark_stages(ax, result: Result) -> None:
-    """A horizontal line at each feed, side-draw, heater and cooler stage, labelled once per kind."""
+def _mark_stages(ax, marks: Sequence[tuple[int, str]]) -> None:
+    """A horizontal line at each marked stage (feed, side draw, heater, cooler, connection),
+    labelled once per kind."""
     shown = set()
-    for stage, kind in stage_marks(result):
+    for stage, kind in marks:
         color, style = _MARK_STYLES[kind]
         ax.axhline(stage, color=color, linestyle=style, linewidth=0.9, alpha=0.8,
                    label=None if kind in shown else kind, gid=f"stage-mark {kind} {stage}")
@@ -110,14 +114,21 @@ def _mark_stages(ax, result: Result) -> None:
 
 def temperature_figure(result: Result) -> Figure:
     """Temperature against stage number, feeds and side streams marked."""
-    stages = np.arange(1, result.stage_count + 1)
+    return profile_temperature_figure(result.title, result.temperature, stage_marks(result))
+
+
+def profile_temperature_figure(title: str, temperature: np.ndarray, marks: Sequence[tuple[int, str]],
+                               what: str = "stage temperatures") -> Figure:
+    """Temperature (K, shown in °C) against stage number (1 = top), with ``marks`` ((stage,
+    kind) as :func:`stage_marks` gives them) drawn across."""
+    count = len(temperature)
     figure, ax = new_figure((5, 6))
-    ax.plot(result.temperature - 273.15, stages, "o-", color="tab:red", markersize=3, label="temperature")
+    ax.plot(np.asarray(temperature) - 273.15, np.arange(1, count + 1), "o-", color="tab:red", markersize=3, label="temperature")
     ax.set_xlabel("temperature / °C")
-    stage_axis(ax, result.stage_count)
-    _mark_stages(ax, result)
+    stage_axis(ax, count)
+    _mark_stages(ax, marks)
     ax.legend(loc="best", fontsize=8)
-    _title(figure, result.title, "stage temperatures")
+    _title(figure, title, what)
     return figure
 
 
@@ -137,7 +148,7 @@ def flow_figure(result: Result) -> Figure:
     ax.plot(result.vapor_flow[inner] * to_kmol_h, stages[inner], "s-", markersize=3, label="vapor V")
     ax.set_xlabel("flow leaving the stage / kmol/h")
     stage_axis(ax, result.stage_count)
-    _mark_stages(ax, result)
+    _mark_stages(ax, stage_marks(result))
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "internal flows (rigorous)")
     return figure
@@ -146,24 +157,33 @@ def flow_figure(result: Result) -> Figure:
 def composition_figure(result: Result) -> Figure:
     """Liquid mole fractions against stage number, on a linear scale and on a log scale (where
     key impurities of 1e-4 and below can be read); feeds and side streams marked."""
-    stages = np.arange(1, result.stage_count + 1)
+    return profile_composition_figure(result.title, result.components, result.x, stage_marks(result))
+
+
+def profile_composition_figure(title: str, components: Sequence[str], x: np.ndarray, marks: Sequence[tuple[int, str]],
+                               what: str = "liquid compositions") -> Figure:
+    """Liquid mole fractions ``x`` (stages, components) against stage number, linear and log
+    scale side by side, with ``marks`` drawn across (see :func:`profile_temperature_figure`)."""
+    x = np.asarray(x)
+    count = len(x)
+    stages = np.arange(1, count + 1)
     figure = Figure(figsize=(9, 6))
     linear, logarithmic = figure.subplots(1, 2, sharey=True)
-    for i, name in enumerate(result.components):
-        line, = linear.plot(result.x[:, i], stages, "-", label=f"x {name}")
-        logarithmic.plot(np.clip(result.x[:, i], 1e-300, None), stages, "-", color=line.get_color())
+    for i, name in enumerate(components):
+        line, = linear.plot(x[:, i], stages, "-", label=f"x {name}")
+        logarithmic.plot(np.clip(x[:, i], 1e-300, None), stages, "-", color=line.get_color())
     linear.set_xlabel("liquid mole fraction")
     linear.set_xlim(-0.02, 1.02)
     logarithmic.set_xscale("log")
     logarithmic.set_xlabel("liquid mole fraction (log scale)")
-    smallest = float(np.min(result.x[result.x > 0])) if np.any(result.x > 0) else 1e-12
+    smallest = float(np.min(x[x > 0])) if np.any(x > 0) else 1e-12
     logarithmic.set_xlim(max(smallest, 1e-15) / 2, 1.5)
     for ax in (linear, logarithmic):
-        stage_axis(ax, result.stage_count)
-        _mark_stages(ax, result)
+        stage_axis(ax, count)
+        _mark_stages(ax, marks)
     logarithmic.set_ylabel("")
     linear.legend(loc="best", fontsize=8)
-    _title(figure, result.title, "liquid compositions")
+    _title(figure, title, what)
     return figure
 
 
@@ -360,7 +380,7 @@ def cmo_flow_figure(result: Result, liquid_cmo: np.ndarray, vapor_cmo: np.ndarra
             linewidth=1.0, label="vapor V, CMO")
     ax.set_xlabel("flow leaving the stage / kmol/h")
     stage_axis(ax, result.stage_count)
-    _mark_stages(ax, result)
+    _mark_stages(ax, stage_marks(result))
     ax.legend(loc="best", fontsize=8)
     _title(figure, result.title, "internal flows: rigorous against constant molar overflow")
     return figure

@@ -25,7 +25,7 @@ import os
 import tempfile
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, Mapping, Protocol
+from typing import Any, Mapping, Protocol, Sequence
 
 import numpy as np
 
@@ -39,6 +39,7 @@ __all__ = [
     "Result",
     "ResultSection",
     "json_safe",
+    "stages_csv_text",
     "write_atomic",
     "write_result_json",
     "write_stages_csv",
@@ -366,20 +367,7 @@ class Result:
         return json.dumps(self.to_dict(), indent=2, allow_nan=False)
 
     def stages_csv(self) -> str:
-        buffer = io.StringIO()
-        writer = csv.writer(buffer, lineterminator="\n")
-        header = ["stage", "role", "T_K", "P_Pa", "L_mol_s", "V_mol_s", "liquid_draw_mol_s", "vapor_draw_mol_s", "duty_W", "h_L_J_mol", "h_V_J_mol"]
-        header += [f"x_{name}" for name in self.components] + [f"y_{name}" for name in self.components]
-        header += [f"K_{name}" for name in self.components]
-        writer.writerow(header)
-        for record in self.stage_records():
-            writer.writerow(
-                [record["number"], record["role"], f"{record['T']:.6f}", f"{record['P']:.3f}", f"{record['L']:.9g}",
-                 f"{record['V']:.9g}", f"{record['liquid_draw']:.9g}", f"{record['vapor_draw']:.9g}",
-                 f"{record['duty']:.9g}", f"{record['h_L']:.9g}", f"{record['h_V']:.9g}"]
-                + [f"{value:.9g}" for value in record["x"] + record["y"] + record["K"]]
-            )
-        return buffer.getvalue()
+        return stages_csv_text(self.stage_records(), self.components)
 
     def with_extra(self, **sections: ResultSection) -> "Result":
         """This result with ``sections`` attached to ``extra`` (by key)."""
@@ -443,6 +431,28 @@ def write_atomic(path: str | os.PathLike, text: str | bytes) -> Path:
             pass
         raise
     return target
+
+
+def stages_csv_text(records: Sequence[Mapping[str, Any]], components: Sequence[str], *, leading: Sequence[str] = (),
+                    trailing: Sequence[str] = ()) -> str:
+    """The stage table as CSV: one row per stage record (see ``stage_records``), SI units in
+    the headers; ``leading`` record keys come first (e.g. the column of a network's stage),
+    ``trailing`` ones (flows, mol/s) after the draws."""
+    buffer = io.StringIO()
+    writer = csv.writer(buffer, lineterminator="\n")
+    header = [*leading, "stage", "role", "T_K", "P_Pa", "L_mol_s", "V_mol_s", "liquid_draw_mol_s", "vapor_draw_mol_s",
+              *[f"{key}_mol_s" for key in trailing], "duty_W", "h_L_J_mol", "h_V_J_mol"]
+    header += [f"x_{name}" for name in components] + [f"y_{name}" for name in components]
+    header += [f"K_{name}" for name in components]
+    writer.writerow(header)
+    for record in records:
+        writer.writerow(
+            [*[record[key] for key in leading], record["number"], record["role"], f"{record['T']:.6f}", f"{record['P']:.3f}",
+             f"{record['L']:.9g}", f"{record['V']:.9g}", f"{record['liquid_draw']:.9g}", f"{record['vapor_draw']:.9g}",
+             *[f"{record[key]:.9g}" for key in trailing], f"{record['duty']:.9g}", f"{record['h_L']:.9g}", f"{record['h_V']:.9g}"]
+            + [f"{value:.9g}" for value in record["x"] + record["y"] + record["K"]]
+        )
+    return buffer.getvalue()
 
 
 def write_result_json(result: Result, path: str | os.PathLike) -> Path:

@@ -43,8 +43,8 @@ from .case import parse_case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError, TraystackError
 from .plots import sweep_plot
 from .results import write_atomic
-from .engine import stage_profile
-from .warm_starts import SolvedPoint, nearest_profile, solve_warm
+from .network_results import NetworkResult
+from .warm_starts import SolvedPoint, nearest_profile, solve_warm, starting_point
 
 __all__ = [
     "Variation",
@@ -131,6 +131,7 @@ class PointOutcome:
     seconds: float = 0.0
     diameters: Mapping[str, float] | None = None  # section -> diameter (m), when the case has [sizing]
     warm_start: bool = False  # solved from a neighbour's profile (a warm sweep)
+    duties: Mapping[str, float] | None = None  # a network's exchangers by name (W); None for one column
     profile: Any = None  # the converged StageProfile, on its way from a worker to the next point's start
 
     @property
@@ -160,13 +161,30 @@ class SweepResult:
     def failed(self) -> tuple[PointOutcome, ...]:
         return tuple(outcome for outcome in self.outcomes if not outcome.converged)
 
+    @property
+    def network(self) -> bool:
+        """Whether the points are column networks (their duties by name)."""
+        return any(outcome.duties is not None for outcome in self.outcomes)
+
+    def end_products(self) -> tuple[str, str]:
+        """The products whose purities the study shows: the distillate and the bottoms, of a
+        network the first column's that has each."""
+        if not self.network:
+            return "distillate", "bottoms"
+        names = [name for outcome in self.outcomes for name in (outcome.products or {})]
+        top = next((name for name in names if name.endswith(".distillate")), names[0] if names else "")
+        bottom = next((name for name in names if name.endswith(".bottoms")), names[-1] if names else "")
+        return top, bottom
+
     def key_components(self) -> tuple[int, int] | None:
         """Indices of the component the distillate is richest in (against the bottoms) and of
-        the one the bottoms is richest in, from the first converged point; None if none did."""
+        the one the bottoms is richest in (:meth:`end_products`), from the first converged
+        point; None if none did."""
+        top, bottom = self.end_products()
         for outcome in self.outcomes:
             if outcome.converged:
-                distillate = np.asarray(outcome.products["distillate"][1])
-                bottoms = np.asarray(outcome.products["bottoms"][1])
+                distillate = np.asarray(outcome.products[top][1])
+                bottoms = np.asarray(outcome.products[bottom][1])
                 return int(np.argmax(distillate - bottoms)), int(np.argmax(bottoms - distillate))
         return None
 
@@ -350,14 +368,24 @@ def solve_point(index: int, document: Mapping, assignments, source_file: str = "
     outcome = point_outcome(index, values, case, found.result, time.perf_counter() - started)
     if not found.result.converged:
         return outcome
-    return dataclasses.replace(outcome, warm_start=found.warm, profile=stage_profile(found.result))
+    return dataclasses.replace(outcome, warm_start=found.warm, profile=starting_point(found.result))
 
 
 def point_outcome(index: int, values: tuple, case, result, seconds: float) -> PointOutcome:
-    """The outcome of one solved point (its numbers only if it converged)."""
+    """The outcome of one solved point (its numbers only if it converged). For a network: the
+    condenser and reboiler duties summed over its columns, every exchanger's duty by name, no
+    reflux or boilup ratio (each column has its own; a spec of the case or its duties give them)."""
     if not result.converged:  # the numbers of an unconverged iterate are not results
         return PointOutcome(index, values, "not converged", result.message, result.iterations, result.residual_norm,
                             seconds=seconds)
+    if isinstance(result, NetworkResult):
+        def total(kind: str) -> float | None:
+            found = [duty for name, duty in result.duties.items() if name.endswith(kind)]
+            return float(sum(found)) if found else None
+        return PointOutcome(index=index, values=values, status="converged", iterations=result.iterations,
+                            residual_norm=result.residual_norm, condenser_duty=total(".condenser"),
+                            reboiler_duty=total(".reboiler"), seconds=seconds, duties=dict(result.duties),
+                            products={name: (p["flow"], tuple(p["composition"])) for name, p in result.products.items()})
     return PointOutcome(
         index=index,
         values=values,
@@ -493,7 +521,7 @@ def _coordinates(variations: Sequence[Variation], values: Sequence[Any]) -> tupl
 
 
 def _product_names(result: SweepResult) -> list[str]:
-    names = ["distillate", "bottoms"]
+    names = [] if result.network else ["distillate", "bottoms"]
     for outcome in result.outcomes:
         names += [name for name in (outcome.products or {}) if name not in names]
     return names
@@ -509,14 +537,17 @@ def _cell(value: Any) -> str:
 
 def sweep_csv(result: SweepResult) -> str:
     """One row per point: the varied values (in their units), status, iterations, duties [W],
-    reflux and boilup ratios, product flows [mol/s] and compositions, time, message, and
-    whether the study is complete or partial (interrupted)."""
+    reflux and boilup ratios, product flows [mol/s] and compositions, (for a network: the
+    condenser and reboiler duties summed over its columns, then every exchanger's duty by name)
+    time, message, and whether the study is complete or partial (interrupted)."""
     products = _product_names(result)
     sections = list(dict.fromkeys(name for o in result.outcomes for name in (o.diameters or {})))
+    exchangers = list(dict.fromkeys(name for o in result.outcomes for name in (o.duties or {})))
     header = ["point", *[variation.label for variation in result.variations], "status", "converged", "iterations",
               "residual_norm", "condenser_duty_W", "reboiler_duty_W", "reflux_ratio", "boilup_ratio"]
     for product in products:
         header += [f"{product}_flow_mol_s", *[f"x_{product}_{name}" for name in result.components]]
+    header += [f"duty_{name}_W" for name in exchangers]
     header += [f"diameter_{name.replace(' ', '_')}_m" for name in sections] + ["seconds", "message", "study"]
     buffer = io.StringIO()
     writer = csv.writer(buffer, lineterminator="\n")
@@ -530,6 +561,7 @@ def sweep_csv(result: SweepResult) -> str:
         for product in products:
             flow, composition = (outcome.products or {}).get(product, (None, (None,) * len(result.components)))
             row += [_cell(flow), *[_cell(x) for x in composition]]
+        row += [_cell((outcome.duties or {}).get(name)) for name in exchangers]
         row += [_cell((outcome.diameters or {}).get(name)) for name in sections]
         row += [f"{outcome.seconds:.3f}", outcome.message, result.study]
         writer.writerow(row)
@@ -543,6 +575,7 @@ def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = 
     if keys is None:
         return None
     light, heavy = keys
+    top, bottom = result.end_products()
     primary = result.variations[0]
     groups: dict[str, dict[str, np.ndarray]] = {}
     second = result.variations[1] if len(result.variations) > 1 else None
@@ -559,15 +592,15 @@ def write_sweep_plot(result: SweepResult, path: str | os.PathLike, title: str = 
                 continue
             columns["reboiler"][i] = (outcome.reboiler_duty or np.nan) / 1e3
             columns["condenser"][i] = abs(outcome.condenser_duty or np.nan) / 1e3
-            columns["light"][i] = outcome.products["distillate"][1][light]
-            columns["heavy"][i] = outcome.products["bottoms"][1][heavy]
+            columns["light"][i] = outcome.products[top][1][light]
+            columns["heavy"][i] = outcome.products[bottom][1][heavy]
         groups[label] = columns
     failed = len(result.failed)
     note = f"{failed} of {len(result.outcomes)} points failed (see sweep.csv)" if failed else f"{len(result.outcomes)} points"
     panels = [
         ("duty / kW", [("reboiler", "reboiler duty"), ("condenser", "condenser duty (magnitude)")]),
-        ("mole fraction", [("light", f"distillate {result.components[light]}"),
-                           ("heavy", f"bottoms {result.components[heavy]}")]),
+        ("mole fraction", [("light", f"{top} {result.components[light]}"),
+                           ("heavy", f"{bottom} {result.components[heavy]}")]),
     ]
     return sweep_plot(np.asarray(primary.magnitudes), primary.label, groups, panels, Path(path),
                       f"{title} — {note}" if title else note, failed_x)

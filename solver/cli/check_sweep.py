@@ -157,11 +157,12 @@ def command_sweep(args: argparse.Namespace) -> int:
 
     table = Table(title=f"sweep: {base.title or case_path.name}", header_style="bold")
     keys = result.key_components()
-    purities = [] if keys is None else [("distillate", keys[0]), ("bottoms", keys[1])]
+    purities = [] if keys is None else list(zip(result.end_products(), keys))
     for variation in variations:
         table.add_column(variation.label, justify="right", no_wrap=True)
     table.add_column("status", no_wrap=True)
-    for column in ("iterations", "reboiler duty / kW", "condenser duty / kW",
+    every = " (all columns)" if result.network else ""
+    for column in ("iterations", f"reboiler duty{every} / kW", f"condenser duty{every} / kW",
                    *[f"x {result.components[i]} {product}" for product, i in purities]):
         table.add_column(column, justify="right")
     for outcome in result.outcomes:

@@ -21,7 +21,7 @@ __all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "add_scheduler_option", "finish_run
 #: run does not converge, so that an old figure is never read as the new result.
 PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 #: The commands that solve a network case (the others refuse one with exit 2).
-NETWORK_COMMANDS = ("run", "audit")
+NETWORK_COMMANDS = ("run", "audit", "shortcut", "sweep", "size")
 
 
 class _Screen(Console):

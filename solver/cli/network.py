@@ -7,14 +7,18 @@ from __future__ import annotations
 
 import argparse
 import dataclasses
+import os
 from pathlib import Path
+from typing import Sequence
 
 from rich.console import Console
 
 from ..audit.network_vmin import network_vmin_audit
 from ..case import Case
 from ..network_engine import simulate_network
-from ..network_results import NetworkResult, write_network_result_json
+from ..network_graph import check_network
+from ..network_results import NetworkResult, write_network_result_json, write_network_stages_csv
+from ..network_specs import resolve_specs
 from ..newton import NewtonOptions
 from ..reports import display_units
 from ..reports.display import screen_table
@@ -24,22 +28,39 @@ from ..thermo.package import ThermoPackage
 __all__ = ["audit_network", "run_network"]
 
 
+def network_outputs(result: NetworkResult, case: Case, out: Path, units, *, pictures: Sequence[Path] = (),
+                    sections: Sequence[str] = (), stale: Sequence[str] = ()) -> list[Path]:
+    """The files of a network run in ``out``: result.json, stages.csv (one file, each row led
+    by its column), and when converged the picture of the network (network.png) and each
+    column's temperature and composition profiles (and ``pictures`` already written); summary.md
+    last, naming the pictures, with ``sections`` (Markdown lines) added. The pictures of an
+    earlier run (and the files ``stale``) are removed when this one did not converge."""
+    from ..network_plot import column_profile_files, column_profiles, network_figure  # matplotlib
+    from ..reports.network_summary import write_network_summary
+
+    written = [write_network_result_json(result, out / "result.json"), write_network_stages_csv(result, out / "stages.csv")]
+    plots: list[Path] = []
+    if result.converged:
+        plots = [network_figure(result, out / "network.png"), *column_profiles(result, out), *pictures]
+    else:
+        for name in ("network.png", *[f for files in column_profile_files(result).values() for f in files], *stale):
+            (out / name).unlink(missing_ok=True)
+    written.append(write_network_summary(result, out / "summary.md", units, resolve_specs(case, check_network(case)),
+                                         [path.name for path in plots], sections))
+    return written + plots
+
+
 def run_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> tuple[list[Path], NetworkResult]:
-    """``run``: result.json, the picture of the network (network.png, when converged) and the
-    tables per column on screen. Returns (files written, result)."""
+    """``run``: result.json, stages.csv, summary.md, the picture of the network (network.png)
+    and each column's profiles (when converged) and the tables per column on screen. Returns
+    (files written, result)."""
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     result = simulate_network(case, options=options)
-    written = [write_network_result_json(result, out / "result.json")]
-    if result.converged:
-        from ..network_plot import network_figure  # matplotlib only when there is a picture to draw
-
-        written.append(network_figure(result, out / "network.png"))
-    else:
-        (out / "network.png").unlink(missing_ok=True)
+    written = network_outputs(result, case, out, units)
     if args.json:
         print(result.to_json())
-    for table in network_tables(result, units):
+    for table in network_tables(result, units, resolve_specs(case, check_network(case))):
         console.print(table)
     return written, result
 
@@ -66,3 +87,103 @@ def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Cons
         ]
         console.print(screen_table(f"{result.title}: rigorous vapor beside the minimum vapor", ("quantity", "value"), rows))
     return [write_network_result_json(result, out / "result.json")], result
+
+
+def shortcut_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> int:
+    """``shortcut``: for a thermally coupled arrangement, Underwood's minimum vapor from the Vmin
+    diagram (every adjacent split's peak, the Petlyuk minimum, the direct and indirect
+    sequences) on screen and in shortcut.json; for any other arrangement exit 2 naming why no
+    shortcut applies (:func:`solver.shortcut.network_shortcut.network_shortcut`)."""
+    import json
+
+    from ..caution import CAUTION
+    from ..results import UNITS, case_summary, json_safe, write_atomic
+    from ..shortcut.network_shortcut import network_shortcut
+    from .shortcut_audit import SHORTCUT_SCHEMA
+
+    found = network_shortcut(case)
+    units = display_units(case.display, args.units)
+    flow = lambda value: f"{units.F(value):.5g} {units.flow}"  # noqa: E731
+    d = found.diagram
+    rows = [(f"peak of the split {found.split_name(p.light, p.heavy)}", flow(p.vapor_top)) for p in d.peaks]
+    rows += [
+        ("Petlyuk / divided-wall minimum vapor", flow(d.petlyuk_minimum_vapor)),
+        ("Petlyuk / divided-wall minimum boilup", flow(found.petlyuk_minimum_boilup)),
+        ("direct sequence minimum vapor (sum of its columns)", flow(d.direct_sequence_minimum_vapor)),
+        ("indirect sequence minimum vapor (sum of its columns)", flow(d.indirect_sequence_minimum_vapor)),
+        ("saving claimed over the better sequence", f"{100 * found.claimed_saving:.1f} %"),
+    ]
+    console.print(screen_table(f"{case.title}: Underwood minimum vapor (coupled: {', '.join(found.coupled)}; feed q = {d.q:.3f})",
+                               ("quantity", "value"), rows))
+    console.print("relative volatilities (to the heaviest): "
+                  + ", ".join(f"{name} {alpha:.4g}" for name, alpha in zip(found.components, d.relative_volatility)))
+    document = {"schema": SHORTCUT_SCHEMA, "title": case.title, "case": case_summary(case),
+                "components": list(case.component_names), "units": dict(UNITS), "minimum_vapor": found.as_json()}
+    written = write_atomic(out / "shortcut.json", json.dumps(json_safe(document), indent=2, allow_nan=False) + "\n")
+    console.print(f"files written to {out}{os.sep}: {written.name}")
+    console.print(f"Caution: {CAUTION}", style="dim")
+    return 0
+
+
+class ColumnSizings:
+    """The sizing of each column of a network (``result.json``'s ``sizing``: column name ->
+    its sizing, or the reason it has none)."""
+
+    def __init__(self, sizings: dict, reasons: dict) -> None:
+        self.sizings, self.reasons = sizings, reasons
+
+    def as_json(self) -> dict:
+        return {**{name: sizing.as_json() for name, sizing in self.sizings.items()},
+                **{name: {"not_sized": reason} for name, reason in self.reasons.items()}}
+
+
+def size_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> int:
+    """``size``: the network solved, then each column seen alone
+    (:meth:`~solver.network_results.NetworkResult.column_result`: connections in are feeds,
+    connections out side draws) sized from its own rigorous traffic; its tables on screen,
+    flood_COLUMN.png, and in result.json and summary.md the sizing of every column (a column
+    without trays, or one the sizing cannot treat, says why)."""
+    import sys
+
+    from ..caution import CAUTION
+    from ..errors import SpecError
+    from ..network_plot import file_stem
+    from ..reports.sizing_tables import print_sizing, sizing_markdown
+    from ..sizing import size_column, sizing_inputs
+    from ..sizing.figure import flood_profile
+    from .common import fail_on, styled
+
+    units = display_units(case.display, args.units)
+    thermo, liquids = sizing_inputs(case)  # a property nobody gives is bad input, before the solve
+    result = simulate_network(case, thermo=thermo)
+    flood_files = {c["name"]: f"flood_{file_stem(c['name'])}.png" for c in result.columns}
+    if not result.converged:
+        network_outputs(result, case, out, units, stale=list(flood_files.values()))
+        print(f"traystack: not converged: {result.message}; nothing to size. The result is written to "
+              f"{out / 'result.json'} marked converged: false", file=sys.stderr)
+        return 3
+    sizings, reasons, pictures, sections, flags = {}, {}, [], [], []
+    for column in result.columns:
+        name = column["name"]
+        alone = result.column_result(name)
+        try:
+            sizing = size_column(case, alone, thermo, liquids)
+        except SpecError as exc:
+            reasons[name] = str(exc)
+            console.print(styled((f"column {name}: no sizing:", "yellow"), f" {exc}"))
+            (out / flood_files[name]).unlink(missing_ok=True)
+            continue
+        sizings[name] = sizing
+        flags += list(sizing.flags)
+        sized = alone.with_extra(sizing=sizing)
+        console.print(styled((f"column {name}", "bold")))
+        print_sizing(sized, console)
+        pictures.append(flood_profile(sizing, alone.stage_count, out / flood_files[name], f"% of flood: {alone.title}"))
+        sections += [f"## Sizing of column {name}", ""] + [line.replace("## ", "### ", 1) if line.startswith("## ") else line
+                                                            for line in sizing_markdown(sized)]
+    result = dataclasses.replace(result, extra={**result.extra, "sizing": ColumnSizings(sizings, reasons)})
+    written = network_outputs(result, case, out, units, pictures=pictures, sections=sections)
+    console.print(f"files written to {out}{os.sep}: {', '.join(path.name for path in written)}")
+    console.print(f"Caution: {CAUTION}", style="dim")
+    return fail_on(args.fail_on, flags, "sizing")
+

@@ -24,6 +24,10 @@ def command_shortcut(args: argparse.Namespace) -> int:
     import json
 
     case_path, case = read_case(args.case, "shortcut")  # a bad case is refused before the engine is imported
+    if case.network is not None:
+        from .network import shortcut_network
+
+        return shortcut_network(args, case, output_folder(args.out, case_path, "_shortcut"), console_for(args.quiet))
     from ..audit import shortcut_case
     from ..audit.flags import two_liquids
     from ..engine import case_summary

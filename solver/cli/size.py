@@ -14,6 +14,10 @@ __all__ = ["add_size_command", "command_size"]
 
 def command_size(args: argparse.Namespace) -> int:
     case_path, case = read_case(args.case, "size")  # a bad case is refused before the engine is imported
+    if case.network is not None:
+        from .network import size_network
+
+        return size_network(args, case, output_folder(args.out, case_path, "_size"), console_for(args.quiet))
     from ..engine import simulate
     from ..reports import display_units, write_summary
     from ..results import write_result_json, write_stages_csv

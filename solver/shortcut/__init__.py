@@ -18,6 +18,10 @@ Multicomponent:
   distributing non-keys) and :mod:`.gilliland_kirkbride` (Gilliland 1940 in the form of
   Molokanov et al. 1972; Kirkbride 1944).
 
+Networks: :mod:`.vmin_diagram` -- the minimum-vapor diagram of Halvorsen & Skogestad (2003) for
+a multicomponent feed; :mod:`.network_shortcut` -- what applies to a column network (that
+diagram for a thermally coupled arrangement, or why nothing does).
+
 :mod:`.simple_column` holds what every design takes from a case first (one feed, a simple
 column, q). Each method works on given data (curves, relative volatilities, q) for textbook
 checks; the ``design_*`` functions take them from a case.

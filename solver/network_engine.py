@@ -6,7 +6,8 @@ resolved -> one Newton system over every stage of every column (:mod:`solver.net
 post-check -> NetworkResult. As for one column, a result is converged only when Newton met its
 tolerance, the post-check (every stage's balances and equilibrium relations recomputed from the
 reported streams with freshly evaluated properties) passed, no product or internal flow
-vanished and every temperature lies within the property models' range.
+vanished and every temperature lies within the property models' range. A converged network's
+liquids are tested for a split into two liquid phases (``extra["liquid_stability"]``).
 """
 
 from __future__ import annotations
@@ -28,6 +29,7 @@ from .network_start import network_initial_estimate
 from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
 from .thermo.homotopy import HomotopyThermo
+from .thermo.liquid_split import check_liquids
 from .thermo.package import ThermoPackage
 
 __all__ = ["FIRST_START_ITERATIONS", "NETWORK_FALLBACK_CHAIN", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
@@ -43,7 +45,8 @@ def build_network_system(case: Case, thermo: ThermoPackage | None = None) -> Net
     graph = check_network(case)
     feeds = flash_feed_list(case.feeds, thermo, [float(p) for p in graph.pressures[graph.feed_stages]],
                             source_file=case.source_file)
-    return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names)
+    return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names,
+                         free_feeds=tuple(feed.name for feed in case.feeds if feed.free))
 
 
 #: Newton iterations the first start gets before the second is tried (the first is continued
@@ -131,7 +134,8 @@ def _network_homotopy(system: NetworkSystem, options: NewtonOptions) -> tuple[Ne
         if t >= 1.0:
             return system
         return NetworkSystem(system.graph, HomotopyThermo(base, t), blended_feeds(system.feeds, base.cmo_latent_heat, t),
-                             system.specs, system.component_names, flow_scale=system.flow_scale, energy_scale=system.energy_scale)
+                             system.specs, system.component_names, flow_scale=system.flow_scale, energy_scale=system.energy_scale,
+                             free_feeds=system.free_feeds)
 
     try:
         path = trace_path(system_at, network_initial_estimate, options)
@@ -180,7 +184,9 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
         col = section.column
         columns.append({"name": section.name, "stages": col.stages, "condenser": col.condenser, "reboiler": col.reboiler, "first": first})
         first += col.stages
-    feeds_at = [tuple(f for f, g in zip(system.feeds, system.feed_stage_index) if g == j) for j in range(system.N)]
+    solved = {name: float(extras[k] * fs) for name, k in zip(system.free_feeds, system.free_feed_extra)}
+    feeds = [dataclasses.replace(f, flow=solved[f.name]) if f.name in solved else f for f in system.feeds]
+    feeds_at = [tuple(f for f, g in zip(feeds, system.feed_stage_index) if g == j) for j in range(system.N)]
     return NetworkResult(
         title=case.title, case=case_summary(case), converged=bool(newton.converged), iterations=newton.iterations,
         residual_norm=newton.residual_norm, message=newton.message, components=tuple(case.component_names),
@@ -260,13 +266,13 @@ def _heat_links_against_temperature(result: NetworkResult, system: NetworkSystem
     liquid)."""
     found = []
     graph = system.graph
-    for condenser, reboiler, label in system.heat_links:
-        hot_column, cold_column = condenser.rsplit(".", 1)[0], reboiler.rsplit(".", 1)[0]
-        hot = result.temperature[graph.index[(hot_column, 1)]]
-        cold_stage = graph.network.section(cold_column).column.stages
-        cold = result.temperature[graph.index[(cold_column, cold_stage)]]
+    for link in graph.network.heat_links:
+        hot = result.temperature[graph.index[(link.from_column, 1)]]
+        cold_stage = graph.network.section(link.to_column).column.stages
+        cold = result.temperature[graph.index[(link.to_column, cold_stage)]]
         if not hot > cold:
-            found.append(f"heat link {label}: {condenser} at {hot - 273.15:.1f} degC would heat {reboiler} at {cold - 273.15:.1f} degC")
+            found.append(f"heat link {link.name!r}: {link.from_column}.condenser at {hot - 273.15:.1f} degC would heat "
+                         f"{link.to_column}.reboiler at {cold - 273.15:.1f} degC")
     return found
 
 
@@ -294,4 +300,9 @@ def _judged(result: NetworkResult, system: NetworkSystem) -> NetworkResult:
         if problem is not None:
             converged = False
             message = f"solution outside the property models' range: {problem}"
-    return dataclasses.replace(result, converged=converged, message=message, post_check=check)
+    extra = dict(result.extra)
+    if converged:
+        # every stage's liquid tested for a split into two liquids, as for one column
+        labels = [f"{column} {number}" for column, number in zip(result.stage_column, result.stage_number)]
+        extra["liquid_stability"] = check_liquids(system.thermo.activity, result.temperature, result.x, labels, result.components)
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check, extra=extra)

@@ -6,14 +6,17 @@ which the default start solves easily) to ``t = 1`` (the real model), see
 previous one; the step in ``t`` grows by half after a success and is halved after a failure
 (natural-parameter continuation with step control, e.g. Allgower & Georg, *Numerical
 Continuation Methods*, 1990, ch. 1). The path, with the Newton iterations of every point, is
-returned for the record.
+returned for the record. :func:`trace_path` is the same continuation for any Newton system
+(a column network's too).
 """
 
 from __future__ import annotations
 
 import dataclasses
 from dataclasses import dataclass, field
+from typing import Any, Callable
 
+import numpy as np
 
 from .initial import initial_estimate
 from .mesh import MeshSystem
@@ -21,7 +24,7 @@ from .newton import NewtonOptions, NewtonResult, solve_system
 from .streams import FlashedFeed
 from .thermo.homotopy import HomotopyThermo
 
-__all__ = ["MIN_STEP", "ContinuationResult", "PathPoint", "blended_feeds", "continue_to_real_model"]
+__all__ = ["MIN_STEP", "ContinuationResult", "PathPoint", "blended_feeds", "continue_to_real_model", "trace_path"]
 
 MIN_STEP = 1.0 / 256.0
 
@@ -80,9 +83,22 @@ def continue_to_real_model(
             energy_scale=real_system.energy_scale,
         )
 
+    return trace_path(system_at, initial_estimate, options, first_step, max_points)
+
+
+def trace_path(
+    system_at: Callable[[float], Any],
+    first_start: Callable[[Any], np.ndarray],
+    options: NewtonOptions,
+    first_step: float = 0.25,
+    max_points: int = 60,
+) -> ContinuationResult:
+    """Natural-parameter continuation of any Newton system along ``t`` from 0 to 1:
+    ``system_at(t)`` builds the system at ``t`` (the real one at 1), ``first_start(system)``
+    its start at ``t = 0``; each later point starts from the last solution."""
     path: list[PathPoint] = []
     start_system = system_at(0.0)
-    result = solve_system(start_system, initial_estimate(start_system), options)
+    result = solve_system(start_system, first_start(start_system), options)
     path.append(PathPoint(0.0, result.converged, result.iterations, result.residual_norm))
     if not result.converged:
         return ContinuationResult(None, tuple(path), 0.0)

@@ -6,7 +6,8 @@ resolved -> one Newton system over every stage of every column (:mod:`solver.net
 post-check -> NetworkResult. As for one column, a result is converged only when Newton met its
 tolerance, the post-check (every stage's balances and equilibrium relations recomputed from the
 reported streams with freshly evaluated properties) passed, no product or internal flow
-vanished and every temperature lies within the property models' range.
+vanished and every temperature lies within the property models' range. A converged network's
+liquids are tested for a split into two liquid phases (``extra["liquid_stability"]``).
 """
 
 from __future__ import annotations
@@ -17,6 +18,8 @@ from typing import Any
 import numpy as np
 
 from .case import Case
+from .continuation import blended_feeds, trace_path
+from .errors import ConvergenceError, ThermoError
 from .feed_flash import flash_feed_list
 from .network_graph import check_network
 from .network_mesh import NetworkSystem
@@ -25,9 +28,11 @@ from .network_specs import network_products, resolve_specs
 from .network_start import network_initial_estimate
 from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
+from .thermo.homotopy import HomotopyThermo
+from .thermo.liquid_split import check_liquids
 from .thermo.package import ThermoPackage
 
-__all__ = ["FIRST_START_ITERATIONS", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
+__all__ = ["FIRST_START_ITERATIONS", "NETWORK_FALLBACK_CHAIN", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
 
 NETWORK_POST_CHECK_TOLERANCE = 1e-7
 _VANISHING_FLOW = 1e-6  # of the total feed
@@ -40,24 +45,35 @@ def build_network_system(case: Case, thermo: ThermoPackage | None = None) -> Net
     graph = check_network(case)
     feeds = flash_feed_list(case.feeds, thermo, [float(p) for p in graph.pressures[graph.feed_stages]],
                             source_file=case.source_file)
-    return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names)
+    return NetworkSystem(graph, thermo, feeds, resolve_specs(case, graph), case.component_names,
+                         free_feeds=tuple(feed.name for feed in case.feeds if feed.free))
 
 
 #: Newton iterations the first start gets before the second is tried (the first is continued
 #: afterwards with the full budget if the second fails too).
 FIRST_START_ITERATIONS = 20
 
+#: The rungs in order, as recorded in ``NetworkResult.strategy["chain"]``.
+NETWORK_FALLBACK_CHAIN = (
+    f"damped Newton (line search, dogleg) from the network start with energy passes for {FIRST_START_ITERATIONS} "
+    "iterations; then from the CMO start; then the first continued; then homotopy from ideal K-values and CMO "
+    "enthalpies"
+)
+
 
 def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None,
-                     start: np.ndarray | None = None) -> NetworkResult:
+                     start: np.ndarray | None = None, continuation: bool = True) -> NetworkResult:
     """Solve the network of ``case`` (or a single-column case as a network of one) from the
     default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
     ``converged`` says whether it may be used.
 
-    The chain without ``start``: Newton from the network start with its energy passes
-    (:func:`solver.network_start.network_initial_estimate`) for at most
+    The chain without ``start`` (:data:`NETWORK_FALLBACK_CHAIN`): Newton from the network start
+    with its energy passes (:func:`solver.network_start.network_initial_estimate`) for at most
     :data:`FIRST_START_ITERATIONS`; then from the start of CMO flows alone ("second start");
-    then the first again, continued with the full budget."""
+    then the first again, continued with the full budget; then (unless not ``continuation``)
+    homotopy continuation from ideal K-values and CMO enthalpies to the real model over the
+    whole network (:func:`solver.continuation.trace_path`). ``strategy["rung"]`` names the rung
+    that solved it; when none did, the message says what each tried."""
     system = build_network_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:
@@ -77,9 +93,55 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
             newton = continued
             if continued.converged:
                 strategy["rung"] = "continued"
-    strategy["chain"] = ("damped Newton (line search, dogleg) from the network start with energy passes for "
-                         f"{FIRST_START_ITERATIONS} iterations; then from the CMO start; then the first continued")
-    return _judged(network_result(case, system, newton, strategy), system)
+    if not newton.converged and continuation:
+        found, record = _network_homotopy(system, options)
+        strategy.update(record)
+        if found is not None and found.converged:
+            newton, strategy["rung"] = found, "homotopy"
+    strategy["chain"] = NETWORK_FALLBACK_CHAIN
+    result = network_result(case, system, newton, strategy)
+    if not newton.converged:
+        result = dataclasses.replace(result, message=f"{result.message}; {_what_was_tried(strategy)}")
+    return _judged(result, system)
+
+
+def _what_was_tried(strategy: dict[str, Any]) -> str:
+    """One sentence on every rung of the chain that failed, for the message of an unsolved network."""
+    tried = [f"the network start ({strategy['newton_iterations']} Newton iterations)"]
+    if "second_start" in strategy:
+        tried.append(f"the CMO start ({strategy['second_start']['newton_iterations']})")
+    if "continued" in strategy:
+        tried.append(f"the first continued ({strategy['continued']['newton_iterations']})")
+    if "homotopy_path" in strategy:
+        tried.append(f"homotopy from ideal K-values, which reached t = {strategy['homotopy_reached']:.3g} of 1")
+    elif "homotopy_failed" in strategy:
+        tried.append(f"homotopy, stopped by: {strategy['homotopy_failed']}")
+    elif "homotopy" in strategy:
+        tried.append(f"homotopy ({strategy['homotopy']})")
+    return "the fallback chain failed on every rung: " + ", ".join(tried)
+
+
+def _network_homotopy(system: NetworkSystem, options: NewtonOptions) -> tuple[NewtonResult | None, dict[str, Any]]:
+    """Continuation from ideal K-values and CMO enthalpies (:mod:`solver.thermo.homotopy`) to
+    the network's real model, each point by Newton from the last; at ``t = 0`` from the
+    network start. Not applied with an equation of state (its easy end has no activity
+    coefficients to scale)."""
+    if system.thermo.vapor_dependent:
+        return None, {"homotopy": "not applied: the path from ideal K-values does not lead to an equation of state"}
+    base = system.thermo
+
+    def system_at(t: float) -> NetworkSystem:
+        if t >= 1.0:
+            return system
+        return NetworkSystem(system.graph, HomotopyThermo(base, t), blended_feeds(system.feeds, base.cmo_latent_heat, t),
+                             system.specs, system.component_names, flow_scale=system.flow_scale, energy_scale=system.energy_scale,
+                             free_feeds=system.free_feeds)
+
+    try:
+        path = trace_path(system_at, network_initial_estimate, options)
+    except (ThermoError, ConvergenceError) as exc:  # e.g. a bubble point above the critical point on the way
+        return None, {"homotopy_failed": str(exc)}
+    return path.newton, {"homotopy_path": [point.as_dict() for point in path.path], "homotopy_reached": path.reached}
 
 
 def _record(newton: NewtonResult, name: str) -> dict[str, Any]:
@@ -122,7 +184,9 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
         col = section.column
         columns.append({"name": section.name, "stages": col.stages, "condenser": col.condenser, "reboiler": col.reboiler, "first": first})
         first += col.stages
-    feeds_at = [tuple(f for f, g in zip(system.feeds, system.feed_stage_index) if g == j) for j in range(system.N)]
+    solved = {name: float(extras[k] * fs) for name, k in zip(system.free_feeds, system.free_feed_extra)}
+    feeds = [dataclasses.replace(f, flow=solved[f.name]) if f.name in solved else f for f in system.feeds]
+    feeds_at = [tuple(f for f, g in zip(feeds, system.feed_stage_index) if g == j) for j in range(system.N)]
     return NetworkResult(
         title=case.title, case=case_summary(case), converged=bool(newton.converged), iterations=newton.iterations,
         residual_norm=newton.residual_norm, message=newton.message, components=tuple(case.component_names),
@@ -196,6 +260,22 @@ def _vanishing(result: NetworkResult) -> list[str]:
     return found
 
 
+def _heat_links_against_temperature(result: NetworkResult, system: NetworkSystem) -> list[str]:
+    """Every heat link whose condenser is not warmer than the reboiler it heats (the second law:
+    a linked pair needs the high-pressure column's condensing vapor above the other's boiling
+    liquid)."""
+    found = []
+    graph = system.graph
+    for link in graph.network.heat_links:
+        hot = result.temperature[graph.index[(link.from_column, 1)]]
+        cold_stage = graph.network.section(link.to_column).column.stages
+        cold = result.temperature[graph.index[(link.to_column, cold_stage)]]
+        if not hot > cold:
+            found.append(f"heat link {link.name!r}: {link.from_column}.condenser at {hot - 273.15:.1f} degC would heat "
+                         f"{link.to_column}.reboiler at {cold - 273.15:.1f} degC")
+    return found
+
+
 def _judged(result: NetworkResult, system: NetworkSystem) -> NetworkResult:
     check = network_post_check(result, system)
     converged, message = result.converged, result.message
@@ -211,8 +291,18 @@ def _judged(result: NetworkResult, system: NetworkSystem) -> NetworkResult:
             message = ("the equations are met only by a network that carries (almost) no " + " and no ".join(vanished)
                        + "; the specifications cannot be met by these columns")
     if converged:
+        backwards = _heat_links_against_temperature(result, system)
+        if backwards:
+            converged = False
+            message = "the equations are met, but heat would flow from cold to hot: " + "; ".join(backwards)
+    if converged:
         problem = system.thermo.range_problem(result.temperature, result.pressure, result.x, result.y)
         if problem is not None:
             converged = False
             message = f"solution outside the property models' range: {problem}"
-    return dataclasses.replace(result, converged=converged, message=message, post_check=check)
+    extra = dict(result.extra)
+    if converged:
+        # every stage's liquid tested for a split into two liquids, as for one column
+        labels = [f"{column} {number}" for column, number in zip(result.stage_column, result.stage_number)]
+        extra["liquid_stability"] = check_liquids(system.thermo.activity, result.temperature, result.x, labels, result.components)
+    return dataclasses.replace(result, converged=converged, message=message, post_check=check, extra=extra)

@@ -20,7 +20,8 @@ this is the index of :mod:`solver.network`, whose matrices the ones here equal e
 
 Degrees of freedom (feeds, pressures, stage counts, efficiencies, side-draw rates and fixed
 connection rates and fractions given): one per condenser, one per reboiler, one per connection
-whose flow is "free", one per cooler or heater on a connection whose duty is "free"; one less
+whose flow is "free", one per feed whose flow is "free" (a make-up), one per cooler or heater
+on a connection whose duty is "free"; one less
 per heat link (the linked condenser's duty fixes the reboiler's: the ``to`` column loses its
 reboiler's freedom). Each spec belongs to one piece of equipment (a column, for its own specs,
 products, condenser, reboiler and stages; a connection, for its rate, fraction and exchanger).
@@ -224,9 +225,9 @@ def _arrays(graph: nx.MultiDiGraph, network: Network, feeds) -> NetworkGraph:
     )
 
 
-def _degrees_of_freedom(network: Network) -> tuple[DegreeOfFreedom, ...]:
+def _degrees_of_freedom(network: Network, free_feeds: tuple[str, ...] = ()) -> tuple[DegreeOfFreedom, ...]:
     linked = {link.to_column for link in network.heat_links}
-    found = []
+    found = [DegreeOfFreedom(name, "free rate") for name in free_feeds]
     for section in network.columns:
         if section.column.condenser != "none":
             found.append(DegreeOfFreedom(section.name, "condenser"))
@@ -249,7 +250,9 @@ def _spec_owners(network: Network) -> list[tuple[str, str, str]]:
     return owners
 
 
-def _equipment_words(network: Network, name: str) -> str:
+def _equipment_words(network: Network, name: str, free_feeds: tuple[str, ...] = ()) -> str:
+    if name in free_feeds:
+        return f"feed {name!r} (its flow is free)"
     return f"column {name!r}" if any(s.name == name for s in network.columns) else f"connection {name!r}"
 
 
@@ -271,9 +274,9 @@ def _check_fixed_connections(network: Network, where: str) -> None:
                             f"fixed ({connection.key}.{connection.exchanger.kind}); it has two specs (write duty = \"free\" there)")
 
 
-def count_degrees_of_freedom(network: Network, source_file: str = "") -> tuple[DegreeOfFreedom, ...]:
-    """The degrees of freedom of ``network`` (see the module docstring), checked against its
-    specs; raises :class:`SpecError` naming each piece of equipment that lacks a spec or has
+def count_degrees_of_freedom(network: Network, source_file: str = "", free_feeds: tuple[str, ...] = ()) -> tuple[DegreeOfFreedom, ...]:
+    """The degrees of freedom of ``network`` (see the module docstring; ``free_feeds`` the names
+    of the feeds whose flow is free), checked against its specs; raises :class:`SpecError` naming each piece of equipment that lacks a spec or has
     one too many when the two counts differ, or a spec on a duty a heat link fixes."""
     where = f"{source_file or '<case>'}: "
     heat_linked = {link.to_column: link.name for link in network.heat_links}
@@ -287,20 +290,20 @@ def count_degrees_of_freedom(network: Network, source_file: str = "") -> tuple[D
             raise SpecError(f"{where}{spec.key}: the reboiler of {spec.column!r} is heated by heat link "
                             f"{heat_linked[spec.column]!r}, which sets its duty; it has two specs")
     _check_fixed_connections(network, where)
-    freedoms = _degrees_of_freedom(network)
+    freedoms = _degrees_of_freedom(network, free_feeds)
     owners = _spec_owners(network)
     if len(owners) == len(freedoms):
         return freedoms
-    names = [s.name for s in network.columns] + [c.name for c in network.connections]
+    names = [s.name for s in network.columns] + [c.name for c in network.connections] + list(free_feeds)
     problems = []
     for name in names:
         own = [f.what for f in freedoms if f.equipment == name]
         specs = [key for owner, _, key in owners if owner == name]
         if len(specs) < len(own) and len(owners) < len(freedoms):
-            problems.append(f"{_equipment_words(network, name)} lacks {len(own) - len(specs)} spec(s) "
+            problems.append(f"{_equipment_words(network, name, free_feeds)} lacks {len(own) - len(specs)} spec(s) "
                             f"(its {', '.join(own)}; specs on it: {', '.join(specs) or 'none'})")
         elif len(specs) > len(own) and len(owners) > len(freedoms):
-            problems.append(f"{_equipment_words(network, name)} has {len(specs) - len(own)} spec(s) too many "
+            problems.append(f"{_equipment_words(network, name, free_feeds)} has {len(specs) - len(own)} spec(s) too many "
                             f"({len(own)} degree(s) of freedom{': ' + ', '.join(own) if own else ''}; specs: {', '.join(specs)})")
     few = len(owners) < len(freedoms)
     raise SpecError(
@@ -313,7 +316,7 @@ def check_network(case: Case) -> NetworkGraph:
     """The network graph of ``case`` (a single column as a network of one), with its degrees of
     freedom checked against its specs."""
     network = network_of_case(case)
-    count_degrees_of_freedom(network, case.source_file)
+    count_degrees_of_freedom(network, case.source_file, tuple(feed.name for feed in case.feeds if feed.free))
     return build_network_graph(network, case.feeds)
 
 

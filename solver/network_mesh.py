@@ -4,9 +4,11 @@ Jacobian.
 Unknowns: per stage of every column (global order of :mod:`solver.network_graph`) the
 temperature and the liquid and vapor component flows leaving it for its neighbours (2c+1,
 scaled as in :mod:`solver.mesh`); then the *extra* unknowns: the duty of every condenser and
-reboiler, the rate of every connection whose flow is "free", and the duty of every cooler or
-heater on a connection that a spec or a return temperature sets (duties scaled by
-``flow_scale * energy_scale``, rates by ``flow_scale``).
+reboiler, the rate of every connection whose flow is "free", the duty of every cooler or
+heater on a connection that a spec or a return temperature sets, and the rate of every feed
+whose flow is "free" (a make-up: its composition and molar enthalpy are fixed, its rate enters
+its stage's balances linearly) (duties scaled by ``flow_scale * energy_scale``, rates by
+``flow_scale``).
 
 Rows: per stage the c component balances, c Murphree relations and the enthalpy balance (with
 the stage's duties, fixed or unknown); a total condenser's equilibrium rows as for one column
@@ -58,7 +60,8 @@ class NetworkSystem:
     (:func:`solver.newton.solve_system`)."""
 
     def __init__(self, graph: NetworkGraph, thermo, feeds: Sequence[FlashedFeed], specs: Sequence[SpecRow],
-                 component_names: Sequence[str], *, flow_scale: float | None = None, energy_scale: float | None = None) -> None:
+                 component_names: Sequence[str], *, flow_scale: float | None = None, energy_scale: float | None = None,
+                 free_feeds: Sequence[str] = ()) -> None:
         network = graph.network
         self.graph, self.thermo = graph, thermo
         self.feeds, self.specs = tuple(feeds), tuple(specs)
@@ -77,6 +80,12 @@ class NetworkSystem:
         self.feed_flows = self.feed_component_flows / self.flow_scale
         self.feed_enthalpy = self.feed_enthalpy_flows / fe
         self.total_feed_by_component = self.feed_flows.sum(axis=0)
+        self.free_feeds = tuple(free_feeds)
+        free = [k for k, feed in enumerate(self.feeds) if feed.name in self.free_feeds]
+        self.free_feed_stage = np.asarray(graph.feed_stages, dtype=int)[free]
+        self.free_feed_z = np.array([self.feeds[k].z for k in free], dtype=float).reshape(-1, c)
+        self.free_feed_h = np.array([self.feeds[k].h for k in free], dtype=float) / self.energy_scale  # per scaled rate
+        self.free_feed_q = np.array([self.feeds[k].q for k in free], dtype=float)
         self.side_liquid_draws = graph.liquid_draws / self.flow_scale
         self.side_vapor_draws = graph.vapor_draws / self.flow_scale
         has_vapor_in = np.asarray(graph.vapor_inflow.sum(axis=1)).ravel() > 0
@@ -148,6 +157,9 @@ class NetworkSystem:
             if exchanger.return_temperature is not None:
                 internal.append(SpecRow("return_temperature", exchanger.return_temperature, f"{c.key}.{exchanger.kind}.return_temperature",
                                         extra=f"{c.name}.duty", phase=c.phase))
+        for name in self.free_feeds:
+            names.append(f"{name}.feed_rate")
+            duty_stage.append(-1)
         self.extra_names = tuple(names)
         self._extra_position = {name: k for k, name in enumerate(names)}
         self.extra_duty_stage = np.array(duty_stage, dtype=int)
@@ -155,6 +167,7 @@ class NetworkSystem:
         self.internal_rows = tuple(internal)
         free = [f"{name}.rate" for name in g.transfer_names]
         self.transfer_extra = np.array([self._extra_position.get(name, -1) for name in free], dtype=int)
+        self.free_feed_extra = np.array([self._extra_position[f"{name}.feed_rate"] for name in self.free_feeds], dtype=int)
         rows = len(self.specs) + len(self.heat_links) + len(self.internal_rows)
         if rows != len(names):
             raise ValueError(f"{rows} spec and link rows for {len(names)} extra unknowns: the degrees of freedom were not checked")
@@ -218,6 +231,8 @@ class NetworkSystem:
     def variable_name(self, index: int) -> str:
         if index >= self.stage_size:
             name = self.extra_names[index - self.stage_size]
+            if name.endswith(".feed_rate"):
+                return f"rate of feed {name.rsplit('.', 1)[0]!r}"
             return f"{'rate' if name.endswith('.rate') else 'duty'} of {name.rsplit('.', 1)[0] if name.endswith(('.rate', '.duty')) else name}"
         g, offset = divmod(int(index), self.width)
         if offset == 0:
@@ -239,6 +254,12 @@ class NetworkSystem:
         return f"enthalpy balance of {self.stage_name(g)}"
 
     # ------------------------------------------------------------------ flows of the connections
+    def feed_flows_at(self, extras: np.ndarray) -> np.ndarray:
+        """(N, c) scaled component flows of every feed, the free ones at their rates in ``extras``."""
+        flows = self.feed_flows.copy()
+        np.add.at(flows, self.free_feed_stage, extras[self.free_feed_extra][:, None] * self.free_feed_z)
+        return flows
+
     def transfer_rates(self, extras: np.ndarray) -> np.ndarray:
         rates = self.transfer_fixed.copy()
         free = self.transfer_extra >= 0
@@ -342,6 +363,9 @@ class NetworkSystem:
         component_in, energy_in = self._transfer_inflows(s, rates)
         balance -= component_in
         energy -= energy_in / self.energy_scale
+        free_rates = extras[self.free_feed_extra]
+        np.add.at(balance, self.free_feed_stage, -free_rates[:, None] * self.free_feed_z)
+        np.add.at(energy, self.free_feed_stage, -free_rates * self.free_feed_h)
         bubble = self._total_condenser_rows(s, equilibrium)
         extra_values, extra_entries = [], []
         for k, row in enumerate(self.specs + self.internal_rows):
@@ -411,6 +435,11 @@ class NetworkSystem:
                 rows.append((stage[:, None] * w + local[None, :]).ravel())
                 cols.append(column)
                 vals.append(sign * per_row.ravel())
+        if len(self.free_feeds):  # a free feed's rate in its stage's component and enthalpy balances
+            local = np.r_[np.arange(c), 2 * c]
+            rows.append((self.free_feed_stage[:, None] * w + local[None, :]).ravel())
+            cols.append(np.repeat(self.stage_size + self.free_feed_extra, c + 1))
+            vals.append(-np.concatenate([self.free_feed_z, self.free_feed_h[:, None]], axis=1).ravel())
         for k, (entry_cols, entry_vals) in enumerate(extra_entries):
             rows.append(np.full(len(entry_cols), self.stage_size + k))
             cols.append(np.asarray(entry_cols, dtype=int))

@@ -100,6 +100,11 @@ def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, 
     for k, stage in enumerate(system.extra_duty_stage):
         if stage >= 0:
             A[N + stage, 2 * N + k] = -1.0
+    # a free feed (make-up) brings its rate and, by CMO its vapor fraction, else its enthalpy
+    feed_h = np.clip(1.0 - system.free_feed_q, -1.0, 2.0) if enthalpies is None else system.free_feed_h
+    for k, stage, h in zip(system.free_feed_extra, system.free_feed_stage, feed_h):
+        A[stage, 2 * N + k] -= 1.0
+        A[N + stage, 2 * N + k] -= h
     for m, (src, dst) in enumerate(zip(system.transfer_source, system.transfer_destination)):
         k = system.transfer_extra[m]
         h = h_L[src] if system.transfer_liquid[m] else h_V[src]
@@ -264,7 +269,7 @@ def network_sweeps(system: NetworkSystem, L, V, extras, T, x, max_sweeps: int = 
     thermo, N, c = system.thermo, system.N, system.c
     rates = system.transfer_rates(extras)
     U, W = system.draws(rates)
-    rhs = system.feed_flows.T.ravel()
+    rhs = system.feed_flows_at(extras).T.ravel()
     y = None
     tops = system.total_condensers
     for _ in range(max_sweeps):

@@ -40,6 +40,10 @@ def _heat_link(data):
     data["heat_links"] = [{"name": "integration", "from": "main.condenser", "to": "stripper.reboiler"}]
     data["columns"][1].pop("specs")
     data["columns"][0]["specs"] = {"reflux_ratio": 1.2, "distillate_rate": "39 kmol/h"}
+    # the main column at 4 bar, so that its condenser is warmer than the stripper's reboiler (a
+    # heat link the other way round is refused; the stripper's vapor would need a compressor to
+    # return, which the equations do not model)
+    data["columns"][0]["pressure"] = {"top": "4 bar", "drop_per_stage": "0.7 kPa"}
 
 
 def _vapor_rate(data):
@@ -54,6 +58,14 @@ def _side_draw(data):
 
 def _partial_condenser(data):
     data["columns"][0]["condenser"] = "partial"
+
+
+def _free_feed(data):
+    # a make-up whose rate is an unknown: the main column's bottoms rate sets it
+    data["feeds"].append({"name": "make-up", "column": "main", "stage": 14, "flow": "free",
+                          "composition": {"toluene": 0.5, "o-xylene": 0.5}, "temperature": "90 degC"})
+    data["specs"].append({"on": "main.bottoms", "flow": "36 kmol/h"})
+    data["columns"][0]["specs"] = {"reflux_ratio": 2.5, "distillate_rate": "39 kmol/h"}
 
 
 def _compose(*changes):
@@ -82,6 +94,7 @@ VARIANTS = {
     "vapor rate connection": _vapor_rate,
     "side draw recovery": _side_draw,
     "partial condenser": _partial_condenser,
+    "free feed rate (a make-up)": _free_feed,
     "subcooled reflux": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_subcooling="5 K"),
     "reflux temperature": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_temperature="70 degC"),
 }

@@ -47,7 +47,7 @@ Keys accepted (a plain number takes the default unit: K, Pa, mol/s, W, J/mol, kg
   ``[columns.specs]`` in the [specs] vocabulary), ``[[connections]]`` {name, from = {column,
   stage, phase}, to = {column, stage}, flow (a rate or "free") or fraction, cooling or heating =
   {duty (or "free") or return_temperature}}, ``[[heat_links]]`` {name, from = "A.condenser", to =
-  "B.reboiler"}, feeds with ``column``, and a top-level ``[[specs]]`` list {on, stage, one of
+  "B.reboiler"}, feeds with ``column`` (a make-ups ``flow`` may be "free": a spec sets it), and a top-level ``[[specs]]`` list {on, stage, one of
   flow, fraction, duty, return_temperature, temperature, mole_fraction, recovery, reflux_ratio,
   boilup_ratio}; read into :class:`Network` on ``Case.network`` (``Case.column`` is then None).
 - ``[check]`` ``tolerances`` = {duty_rel, composition_abs, temperature_abs, flow_rel};

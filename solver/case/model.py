@@ -149,6 +149,7 @@ class Feed:
     vapor_fraction: float | None = None  # molar, 0 = saturated liquid, 1 = saturated vapor
     pressure: float | None = None  # Pa; None = the stage pressure
     name: str = ""
+    free: bool = False  # network cases: the rate is an unknown that a spec sets (flow 0 until solved)
 
 
 @dataclass(frozen=True)

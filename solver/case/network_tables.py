@@ -1,6 +1,7 @@
 """The tables of a column network: ``[[columns]]`` (each a chain of stages with its own
 ``[columns.specs]``), ``[[connections]]`` between stages, ``[[heat_links]]`` (one column's
-condenser heating another's reboiler), ``[[feeds]]`` that name their column and the top-level
+condenser heating another's reboiler), ``[[feeds]]`` that name their column (a make-up's flow
+may be "free": its rate is then an unknown that a spec sets) and the top-level
 ``[[specs]]`` list of specs on connections, products, exchangers and stages anywhere in the
 network. Read into a frozen :class:`~solver.case.model.Network` (SI units); every error names
 the file, the dotted key and the value.
@@ -238,7 +239,12 @@ def _read_network_feeds(value: Any, names: tuple[str, ...], component_data: Mapp
             entry_at.child("column").fail("missing: in a network each feed names its column", expected="one of: " + ", ".join(columns))
         column = _column_name(table["column"], columns, entry_at.child("column"))
         rest = {k: v for k, v in table.items() if k != "column"}
+        free = rest.get("flow") == "free"  # a make-up: its rate is left to a spec
+        if free:
+            rest["flow"] = "1 mol/s"
         feed = _read_feed(rest, index, names, component_data, columns[column].column, entry_at)
+        if free:
+            feed = replace(feed, flow=0.0, free=True)
         if any(f.name == feed.name for f in feeds):
             entry_at.child("name").fail("another feed has this name", feed.name, "a unique name")
         feeds.append(feed)

@@ -1,8 +1,14 @@
 """The network part of the hard-case suite: column networks that must converge from the
-network's default start. Every case is a scenario of our own invention; the liquids are ideal
-(Raoult's law with CoolProp vapor pressures: aromatics and n-alkanes, common practice)."""
+network's default start. Every case is a scenario of our own invention. The ones written here
+have ideal liquids (Raoult's law with CoolProp vapor pressures: aromatics and n-alkanes, common
+practice); the shipped network cases of cases/ join them as they are and in variants (their
+thermo models, with sources, are in the case files)."""
 
 from __future__ import annotations
+
+from pathlib import Path
+
+SHIPPED = Path(__file__).resolve().parent.parent.parent / "cases"
 
 AROMATICS = '["benzene", "toluene", "o-xylene"]'
 PARAFFINS = '["n-Pentane", "n-Hexane", "n-Heptane", "n-Octane"]'
@@ -33,6 +39,16 @@ def _feed(column: str, stage: int, composition: str, flow: str = "100 kmol/h", c
 
 def _spec(on: str, quantity: str) -> str:
     return f'[[specs]]\non = "{on}"\n{quantity}\n'
+
+
+def shipped(name: str, *changes: tuple[str, str]) -> str:
+    """The text of the shipped case ``cases/NAME.toml`` with each (old, new) text replaced."""
+    text = (SHIPPED / f"{name}.toml").read_text()
+    for old, new in changes:
+        if old not in text:
+            raise ValueError(f"{name}: {old!r} is not in the case file")
+        text = text.replace(old, new)
+    return text
 
 
 def petlyuk(title: str, main: int, prefractionator: int, specs: str, *, liquid: float = 0.35, vapor: str = "fraction = 0.4",
@@ -91,9 +107,27 @@ NETWORK_HARD_CASES: dict[str, str] = {
                         + _column("second", 30, "total", "partial", "1.15 bar", 'reflux_ratio = 2.5\nbottoms = { o-xylene = 0.97 }')
                         + _connection("first-bottoms", "first", 30, "liquid", "second", 15)
                         + _feed("first", 15, BTX_FEED)),
+    # the low column under vacuum, so that it boils below the high column's condensing benzene
     "heat_integrated_pair": (_header("Two aromatics splitters at two pressures, one condenser boiling the other's reboiler", AROMATICS)
                              + _column("high", 30, "total", "partial", "3 bar", 'reflux_ratio = 2.0\ndistillate = { benzene = 0.97 }')
-                             + _column("low", 30, "total", "partial", "1.1 bar", 'distillate = { benzene = 0.97 }')
+                             + _column("low", 30, "total", "partial", "0.6 bar", 'distillate = { benzene = 0.97 }')
                              + '[[heat_links]]\nname = "integration"\nfrom = "high.condenser"\nto = "low.reboiler"\n'
                              + _feed("high", 15, BTX_FEED, name="high feed") + _feed("low", 15, BTX_FEED, name="low feed")),
+    # the shipped cases and variants: side strippers (one steam-stripped), a side rectifier, a
+    # heat-integrated pair, extractive distillation with its solvent recycle and a free make-up
+    "crude_side_strippers": shipped("crude_like_side_strippers"),
+    "crude_more_steam": shipped("crude_like_side_strippers", ('flow = "2 kmol/h"', 'flow = "4 kmol/h"')),
+    "crude_steam_stripper_purity": shipped("crude_like_side_strippers", (
+        'on = "steam-stripper.bottoms"\nflow = "27 kmol/h"', 'on = "steam-stripper.bottoms"\nmole_fraction = { n-Octane = 0.96 }')),
+    "side_rectifier": shipped("aromatics_side_rectifier"),
+    "side_rectifier_purity": shipped("aromatics_side_rectifier", (
+        'reflux_ratio = 3.0\ndistillate_rate = "33 kmol/h"\n\n[[connections]]', 'reflux_ratio = 3.0\ndistillate = { toluene = 0.99 }\n\n[[connections]]')),
+    "side_rectifier_lower_draw": shipped("aromatics_side_rectifier", ('stage = 21, phase = "vapor"', 'stage = 22, phase = "vapor"'),
+                                         ('to = { column = "main", stage = 21 }', 'to = { column = "main", stage = 22 }')),
+    "methanol_pressure_pair": shipped("methanol_water_pressure_pair"),
+    "methanol_pressure_pair_bottoms_spec": shipped("methanol_water_pressure_pair", (
+        '[columns.specs]\ndistillate = { methanol = 0.995 }', '[columns.specs]\nbottoms = { water = 0.995 }')),
+    "extractive_with_recycle": shipped("acetone_methanol_extractive"),
+    "extractive_more_reflux": shipped("acetone_methanol_extractive", ('reflux_ratio = 4.0', 'reflux_ratio = 5.0')),
+    "extractive_more_solvent": shipped("acetone_methanol_extractive", ('flow = "200 kmol/h"', 'flow = "250 kmol/h"')),
 }

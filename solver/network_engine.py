@@ -22,7 +22,7 @@ from .network_graph import check_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
 from .network_specs import network_products, resolve_specs
-from .network_start import network_initial_estimate
+from .network_start import network_starts
 from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
 from .thermo.package import ThermoPackage
@@ -54,21 +54,21 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
     default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
     ``converged`` says whether it may be used.
 
-    The chain without ``start``: Newton from the network start with its energy passes
-    (:func:`solver.network_start.network_initial_estimate`) for at most
-    :data:`FIRST_START_ITERATIONS`; then from the start of CMO flows alone ("second start");
-    then the first again, continued with the full budget."""
+    The chain without ``start``: Newton from the better of the network's two starts
+    (:func:`solver.network_start.network_starts`) for at most :data:`FIRST_START_ITERATIONS`;
+    then from the other ("second start"); then the first again, continued with the full budget."""
     system = build_network_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:
         newton = solve_system(system, start, options)
         return _judged(network_result(case, system, newton, _record(newton, "newton")), system)
     first_budget = dataclasses.replace(options, max_iterations=min(options.max_iterations, FIRST_START_ITERATIONS))
-    newton = solve_system(system, network_initial_estimate(system), first_budget)
-    strategy = _record(newton, "newton")
+    first_start, second_start = network_starts(system)
+    newton = solve_system(system, first_start.X, first_budget)
+    strategy = {**_record(newton, "newton"), "start": first_start.name}
     if not newton.converged:
-        second = solve_system(system, network_initial_estimate(system, energy_passes=0), options)
-        strategy["second_start"] = {"converged": bool(second.converged), "newton_iterations": second.iterations}
+        second = solve_system(system, second_start.X, options)
+        strategy["second_start"] = {"start": second_start.name, "converged": bool(second.converged), "newton_iterations": second.iterations}
         if second.converged:
             newton, strategy["rung"] = second, "second start"
         elif options.max_iterations > first_budget.max_iterations:
@@ -77,8 +77,8 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
             newton = continued
             if continued.converged:
                 strategy["rung"] = "continued"
-    strategy["chain"] = ("damped Newton (line search, dogleg) from the network start with energy passes for "
-                         f"{FIRST_START_ITERATIONS} iterations; then from the CMO start; then the first continued")
+    strategy["chain"] = ("damped Newton (line search, dogleg) from the better of the network's two starts (smaller natural level) "
+                         f"for {FIRST_START_ITERATIONS} iterations; then from the other; then the first continued")
     return _judged(network_result(case, system, newton, strategy), system)
 
 

@@ -12,7 +12,7 @@
    Processing 45(8):155) at those flows over the whole graph: the component balances of all
    stages of all columns at ``v = S l`` are one sparse linear system per component; the
    temperatures move to the bubble points of the new liquids.
-3. Twice more: the flows from the same balances with the stages' own enthalpies at the sweeps'
+3. Passes: the flows from the same balances with the stages' own enthalpies at the sweeps'
    profile (the energy-balance step of the bubble-point method; a return temperature's duty
    from its stream's enthalpy change), then the sweeps again.
 4. Each product rate guessed for a composition spec is moved (secant method, each on its own
@@ -20,9 +20,9 @@
    overhead rate.
 5. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
    balances hold at the start.
-6. The same from the flows of step 1 without step 3 gives a second start; the default start is
-   the one of the two whose full Newton correction is the smaller (Deuflhard's natural level),
-   the other is the engine's second start.
+6. Starts are taken after 2, 5 and 10 passes of step 3 and without step 3 (from the CMO flows
+   alone); the default start is the one whose full Newton correction is the smallest
+   (Deuflhard's natural level), the engine's second start the best of the other kind.
 """
 
 from __future__ import annotations
@@ -41,7 +41,9 @@ from .thermo.flash import bubble_temperature
 __all__ = ["NetworkStart", "cmo_network_flows", "natural_level", "network_initial_estimate", "network_starts", "network_sweeps"]
 
 _SWEEPS = 40  # at most; the sweeps stop when no temperature moves by 1e-3 K
-_ENERGY_PASSES = 2  # flows from the stages' own enthalpies, then the sweeps again
+_CANDIDATE_PASSES = (2, 5, 10)  # energy passes (flows from the stages' own enthalpies, then the sweeps) after which a start is a candidate
+_SETTLED_FLOWS = 1e-4  # of the total feed: a pass that moves no flow by more has settled (no more passes)
+_GOOD_ENOUGH_LEVEL = 1e-3  # a natural level below which no more passes are made (Newton's first step moves 0.01 K)
 _SPEC_ROUNDS = 8  # at most, of moving guessed product rates to meet composition specs
 
 
@@ -376,26 +378,38 @@ def natural_level(system: NetworkSystem, X: np.ndarray) -> float:
 
 
 def network_starts(system: NetworkSystem) -> tuple[NetworkStart, NetworkStart]:
-    """The network's two default starts, the one with the smaller natural level first: the start
-    with the energy passes (the module docstring's steps 1 to 5) and the start from the CMO
-    flows alone (steps 1, 2, 4 and 5). A profile swept at CMO flows and one swept at
-    energy-balanced flows can differ widely where the answer is sensitive to the flows (a
-    distillate rate close to the light components' feed puts the front between the light and the
-    heavier components anywhere in a long section); Newton's own model of the equations says
-    which is nearer."""
+    """The network's default start and its second start. The candidates: the start from the
+    CMO flows alone (the module docstring's steps 1, 2, 4 and 5) and the starts after
+    :data:`_CANDIDATE_PASSES` energy passes of the bubble-point method (steps 1 to 5), each with
+    its natural level; the passes stop early once they settle (no flow moves by
+    :data:`_SETTLED_FLOWS` of the feed: the last candidate stands for the rest) or a start's
+    level is below :data:`_GOOD_ENOUGH_LEVEL`. The default start is the candidate of least level; the second
+    start the best of the other kind (CMO flows against energy passes), as unlike the first as
+    the candidates allow.
+
+    Why several: a profile swept at CMO flows and one swept at energy-balanced flows can differ
+    widely where the answer is sensitive to the flows (a distillate rate close to the light
+    components' feed puts the front between the light and the heavier components anywhere in a
+    long section), and the bubble-point passes need not settle (their profiles may swing from
+    one pass to the next); Newton's own model of the equations says which is nearest."""
     ln_K = _volatility_order(system)
     L, V, extras, guessed = cmo_network_flows(system, ln_K)
     z = system.total_feed_by_component / system.total_feed_by_component.sum()
     x = np.tile(z, (system.N, 1))
     T, _ = bubble_temperature(system.thermo, system.pressures, x)
     state = (L, V, extras, *network_sweeps(system, L, V, extras, T, x))
-    starts = [_finished_start(system, ln_K, guessed, state, "start from CMO flows")]
-    for _ in range(_ENERGY_PASSES):
+    cmo = _finished_start(system, ln_K, guessed, state, "start from CMO flows")
+    passed: list[NetworkStart] = []
+    for done in range(1, max(_CANDIDATE_PASSES) + 1):
         L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, *state[3:]), guessed)
+        settled = max(np.max(np.abs(L - state[0])), np.max(np.abs(V - state[1]))) < _SETTLED_FLOWS
         state = (L, V, extras, *network_sweeps(system, L, V, extras, *state[3:5]))
-    starts.append(_finished_start(system, ln_K, guessed, state, "start with energy passes"))
-    better, other = sorted(starts, key=lambda start: start.level)
-    return better, other
+        if done in _CANDIDATE_PASSES:
+            passed.append(_finished_start(system, ln_K, guessed, state, f"start with {done} energy passes"))
+        if passed and (settled or passed[-1].level < _GOOD_ENOUGH_LEVEL):
+            break
+    energy = min(passed, key=lambda start: start.level)
+    return (cmo, energy) if cmo.level < energy.level else (energy, cmo)
 
 
 def network_initial_estimate(system: NetworkSystem) -> np.ndarray:

@@ -25,7 +25,7 @@ from .network_graph import check_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
 from .network_specs import network_products, resolve_specs
-from .network_start import network_initial_estimate
+from .network_start import network_starts
 from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
 from .thermo.homotopy import HomotopyThermo
@@ -55,9 +55,9 @@ FIRST_START_ITERATIONS = 20
 
 #: The rungs in order, as recorded in ``NetworkResult.strategy["chain"]``.
 NETWORK_FALLBACK_CHAIN = (
-    f"damped Newton (line search, dogleg) from the network start with energy passes for {FIRST_START_ITERATIONS} "
-    "iterations; then from the CMO start; then the first continued; then homotopy from ideal K-values and CMO "
-    "enthalpies"
+    "damped Newton (line search, dogleg) from the better of the network's two starts (smaller natural level) "
+    f"for {FIRST_START_ITERATIONS} iterations; then from the other; then the first continued; then homotopy from "
+    "ideal K-values and CMO enthalpies"
 )
 
 
@@ -67,24 +67,26 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
     default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
     ``converged`` says whether it may be used.
 
-    The chain without ``start`` (:data:`NETWORK_FALLBACK_CHAIN`): Newton from the network start
-    with its energy passes (:func:`solver.network_start.network_initial_estimate`) for at most
-    :data:`FIRST_START_ITERATIONS`; then from the start of CMO flows alone ("second start");
-    then the first again, continued with the full budget; then (unless not ``continuation``)
-    homotopy continuation from ideal K-values and CMO enthalpies to the real model over the
-    whole network (:func:`solver.continuation.trace_path`). ``strategy["rung"]`` names the rung
-    that solved it; when none did, the message says what each tried."""
+    The chain without ``start`` (:data:`NETWORK_FALLBACK_CHAIN`): Newton from the better of the
+    network's two starts (:func:`solver.network_start.network_starts`: CMO flows alone, or after
+    energy passes; the one with the smaller natural level first) for at most
+    :data:`FIRST_START_ITERATIONS`; then from the other ("second start"); then the first again,
+    continued with the full budget; then (unless not ``continuation``) homotopy continuation
+    from ideal K-values and CMO enthalpies to the real model over the whole network
+    (:func:`solver.continuation.trace_path`). ``strategy["rung"]`` names the rung that solved
+    it; when none did, the message says what each tried."""
     system = build_network_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:
         newton = solve_system(system, start, options)
         return _judged(network_result(case, system, newton, _record(newton, "newton")), system)
     first_budget = dataclasses.replace(options, max_iterations=min(options.max_iterations, FIRST_START_ITERATIONS))
-    newton = solve_system(system, network_initial_estimate(system), first_budget)
-    strategy = _record(newton, "newton")
+    first_start, second_start = network_starts(system)
+    newton = solve_system(system, first_start.X, first_budget)
+    strategy = {**_record(newton, "newton"), "start": first_start.name}
     if not newton.converged:
-        second = solve_system(system, network_initial_estimate(system, energy_passes=0), options)
-        strategy["second_start"] = {"converged": bool(second.converged), "newton_iterations": second.iterations}
+        second = solve_system(system, second_start.X, options)
+        strategy["second_start"] = {"start": second_start.name, "converged": bool(second.converged), "newton_iterations": second.iterations}
         if second.converged:
             newton, strategy["rung"] = second, "second start"
         elif options.max_iterations > first_budget.max_iterations:
@@ -107,9 +109,9 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
 
 def _what_was_tried(strategy: dict[str, Any]) -> str:
     """One sentence on every rung of the chain that failed, for the message of an unsolved network."""
-    tried = [f"the network start ({strategy['newton_iterations']} Newton iterations)"]
+    tried = [f"the {strategy.get('start', 'network start')} ({strategy['newton_iterations']} Newton iterations)"]
     if "second_start" in strategy:
-        tried.append(f"the CMO start ({strategy['second_start']['newton_iterations']})")
+        tried.append(f"the {strategy['second_start']['start']} ({strategy['second_start']['newton_iterations']})")
     if "continued" in strategy:
         tried.append(f"the first continued ({strategy['continued']['newton_iterations']})")
     if "homotopy_path" in strategy:

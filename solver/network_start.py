@@ -12,7 +12,7 @@
    Processing 45(8):155) at those flows over the whole graph: the component balances of all
    stages of all columns at ``v = S l`` are one sparse linear system per component; the
    temperatures move to the bubble points of the new liquids.
-3. Twice more: the flows from the same balances with the stages' own enthalpies at the sweeps'
+3. Passes: the flows from the same balances with the stages' own enthalpies at the sweeps'
    profile (the energy-balance step of the bubble-point method; a return temperature's duty
    from its stream's enthalpy change), then the sweeps again.
 4. Each product rate guessed for a composition spec is moved (secant method, each on its own
@@ -20,22 +20,30 @@
    overhead rate.
 5. The duties of condensers and reboilers that no spec fixes are set so that their enthalpy
    balances hold at the start.
+6. Starts are taken after 2, 5 and 10 passes of step 3 and without step 3 (from the CMO flows
+   alone); the default start is the one whose full Newton correction is the smallest
+   (Deuflhard's natural level), the engine's second start the best of the other kind.
 """
 
 from __future__ import annotations
+
+from dataclasses import dataclass
 
 import numpy as np
 import scipy.sparse as sp
 
 from .initial import bubble_point_step
 from .network_mesh import NetworkSystem
-from .sparse_solve import sparse_solve
+from .newton import NewtonOptions
+from .sparse_solve import lu_solve, sparse_solve
 from .thermo.flash import bubble_temperature
 
-__all__ = ["cmo_network_flows", "network_initial_estimate", "network_sweeps"]
+__all__ = ["NetworkStart", "cmo_network_flows", "natural_level", "network_initial_estimate", "network_starts", "network_sweeps"]
 
 _SWEEPS = 40  # at most; the sweeps stop when no temperature moves by 1e-3 K
-_ENERGY_PASSES = 2  # flows from the stages' own enthalpies, then the sweeps again
+_CANDIDATE_PASSES = (2, 5, 10)  # energy passes (flows from the stages' own enthalpies, then the sweeps) after which a start is a candidate
+_SETTLED_FLOWS = 1e-4  # of the total feed: a pass that moves no flow by more has settled (no more passes)
+_GOOD_ENOUGH_LEVEL = 1e-3  # a natural level below which no more passes are made (Newton's first step moves 0.01 K)
 _SPEC_ROUNDS = 8  # at most, of moving guessed product rates to meet composition specs
 
 
@@ -350,19 +358,77 @@ def _meet_composition_specs(system: NetworkSystem, ln_K, guessed: dict[int, floa
     return L, V, extras, T, x, y
 
 
-def network_initial_estimate(system: NetworkSystem, energy_passes: int = _ENERGY_PASSES) -> np.ndarray:
-    """The default start of the network (the module docstring's steps) as scaled unknowns."""
+@dataclass(frozen=True)
+class NetworkStart:
+    """One default start: its ``name``, the scaled unknowns ``X`` and its natural level."""
+
+    name: str
+    X: np.ndarray
+    level: float
+
+
+def natural_level(system: NetworkSystem, X: np.ndarray) -> float:
+    """Deuflhard's natural level of ``X``: the size of the full Newton correction
+    ``||D J(X)^-1 F(X)||_inf`` (Deuflhard, *Newton Methods for Nonlinear Problems*, Springer 2004,
+    sec. 3.3), with the temperatures over Newton's own temperature scale (10 K)
+    (infinite when the Jacobian is singular). Small where Newton's model of the equations holds:
+    of two starts the one with the smaller level is the one Newton converges from with fewer
+    damped steps."""
+    evaluation = system.evaluate(X, jacobian=True)
+    step, _ = lu_solve(evaluation.jacobian, -evaluation.residuals)
+    if step is None:
+        return float("inf")
+    step[system.temperature_index()] /= NewtonOptions.temperature_scale
+    return float(np.max(np.abs(step)))
+
+
+def network_starts(system: NetworkSystem) -> tuple[NetworkStart, NetworkStart]:
+    """The network's default start and its second start. The candidates: the start from the
+    CMO flows alone (the module docstring's steps 1, 2, 4 and 5) and the starts after
+    :data:`_CANDIDATE_PASSES` energy passes of the bubble-point method (steps 1 to 5), each with
+    its natural level; the passes stop early once they settle (no flow moves by
+    :data:`_SETTLED_FLOWS` of the feed: the last candidate stands for the rest) or a start's
+    level is below :data:`_GOOD_ENOUGH_LEVEL`. The default start is the candidate of least level; the second
+    start the best of the other kind (CMO flows against energy passes), as unlike the first as
+    the candidates allow.
+
+    Why several: a profile swept at CMO flows and one swept at energy-balanced flows can differ
+    widely where the answer is sensitive to the flows (a distillate rate close to the light
+    components' feed puts the front between the light and the heavier components anywhere in a
+    long section), and the bubble-point passes need not settle (their profiles may swing from
+    one pass to the next); Newton's own model of the equations says which is nearest."""
     ln_K = _volatility_order(system)
     L, V, extras, guessed = cmo_network_flows(system, ln_K)
     z = system.total_feed_by_component / system.total_feed_by_component.sum()
     x = np.tile(z, (system.N, 1))
     T, _ = bubble_temperature(system.thermo, system.pressures, x)
-    T, x, y = network_sweeps(system, L, V, extras, T, x)
-    for _ in range(energy_passes):
-        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, T, x, y), guessed)
-        T, x, y = network_sweeps(system, L, V, extras, T, x)
+    state = (L, V, extras, *network_sweeps(system, L, V, extras, T, x))
+    cmo = _finished_start(system, ln_K, guessed, state, "start from CMO flows")
+    passed: list[NetworkStart] = []
+    for done in range(1, max(_CANDIDATE_PASSES) + 1):
+        L, V, extras, _ = cmo_network_flows(system, ln_K, _stage_enthalpies(system, *state[3:]), guessed)
+        settled = max(np.max(np.abs(L - state[0])), np.max(np.abs(V - state[1]))) < _SETTLED_FLOWS
+        state = (L, V, extras, *network_sweeps(system, L, V, extras, *state[3:5]))
+        if done in _CANDIDATE_PASSES:
+            passed.append(_finished_start(system, ln_K, guessed, state, f"start with {done} energy passes"))
+        if passed and (settled or passed[-1].level < _GOOD_ENOUGH_LEVEL):
+            break
+    energy = min(passed, key=lambda start: start.level)
+    return (cmo, energy) if cmo.level < energy.level else (energy, cmo)
+
+
+def network_initial_estimate(system: NetworkSystem) -> np.ndarray:
+    """The default start of the network: the better of :func:`network_starts`."""
+    return network_starts(system)[0].X
+
+
+def _finished_start(system: NetworkSystem, ln_K, guessed: dict[int, float], state, name: str) -> NetworkStart:
+    """The start from a swept profile: composition specs met by moving their guessed product
+    rates, the total condensers' slots filled, free condenser and reboiler duties set to meet
+    their enthalpy balances."""
+    L, V, extras, T, x, y = state
     if guessed:
-        L, V, extras, T, x, y = _meet_composition_specs(system, ln_K, guessed, (L, V, extras, T, x, y))
+        L, V, extras, T, x, y = _meet_composition_specs(system, ln_K, guessed, state)
     y = y.copy()
     tops = system.total_condensers
     y[tops] = x[tops]
@@ -370,11 +436,10 @@ def network_initial_estimate(system: NetworkSystem, energy_passes: int = _ENERGY
     fixed = ~np.isnan(system.reflux_temperature)
     T[tops] = np.where(fixed, system.reflux_temperature, T[tops] - system.reflux_shift)
     X = system.pack(T, L[:, None] * x, V[:, None] * y, extras)
-    # condenser and reboiler duties that no spec fixes: their enthalpy balances met at the start
     set_by_spec = {row.extra for row in system.specs if row.kind == "duty"}
     energy_rows = np.arange(system.N) * system.width + 2 * system.c
     residuals = system.evaluate(X, jacobian=False).residuals[energy_rows]
-    for k, name in enumerate(system.extra_names):
-        if name.endswith((".condenser", ".reboiler")) and name not in set_by_spec:
+    for k, name_ in enumerate(system.extra_names):
+        if name_.endswith((".condenser", ".reboiler")) and name_ not in set_by_spec:
             X[system.stage_size + k] += residuals[system.extra_duty_stage[k]]
-    return X
+    return NetworkStart(name, X, natural_level(system, X))

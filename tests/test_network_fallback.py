@@ -3,7 +3,8 @@ network starts fails, homotopy continuation from ideal K-values and CMO enthalpi
 network; when every rung fails, the message names each rung and how far it got; and a heat link
 whose condenser ends colder than the reboiler it heats is refused."""
 
-from __future__ import annotations
+from __future__ import re
+import annotations
 
 from pathlib import Path
 
@@ -43,7 +44,7 @@ def test_a_network_unsolved_by_every_rung_says_what_was_tried():
     assert not result.converged
     assert result.strategy["rung"] is None
     assert "the fallback chain failed on every rung" in result.message
-    assert "the CMO start (3)" in result.message and "homotopy from ideal K-values, which reached t = " in result.message
+    assert re.search(r"the start from CMO flows \(\d+", result.message) and "homotopy from ideal K-values, which reached t = " in result.message
 
 
 def test_a_heat_link_from_a_colder_condenser_is_refused():

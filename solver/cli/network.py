@@ -65,9 +65,27 @@ def run_network(args: argparse.Namespace, case: Case, out: Path, console: Consol
     return written, result
 
 
+def _sequence_rows(audit, units, flow) -> list[tuple[str, str]]:
+    """The rows of the conventional sequences solved rigorously and the rigorous saving."""
+    duty = lambda value: f"{units.Q(value):.5g} {units.duty}"  # noqa: E731
+    rows = []
+    for run in audit.sequences:
+        columns = " + ".join(f"{column.stages}" for column in run.columns)
+        state = "" if run.converged else " (did not converge)"
+        rows.append((f"{run.name} sequence ({columns} stages), rigorous boilup", flow(run.boilup) + state))
+        rows.append((f"{run.name} sequence, rigorous reboiler duty", duty(run.reboiler_duty) + state))
+    best = audit.best_sequence
+    if best is not None:
+        rows.append(("rigorous reboiler duty of this network", duty(audit.rigorous_reboiler_duty)))
+        rows.append((f"rigorous saving against the {best.name} sequence (boilup)", f"{100 * audit.rigorous_saving:.1f} %"))
+        rows.append((f"rigorous saving against the {best.name} sequence (reboiler duty)", f"{100 * audit.rigorous_duty_saving:.1f} %"))
+    return rows
+
+
 def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> tuple[list[Path], NetworkResult]:
     """``audit``: the rigorous solution's vapor beside Underwood's minimum vapor of the Petlyuk
-    arrangement and of the direct and indirect sequences (one feed, three or more components);
+    arrangement and of the direct and indirect sequences (one feed, three or more components),
+    and beside the direct and indirect sequences solved rigorously, with the rigorous saving;
     result.json with its ``audit`` section. Returns (files written, result)."""
     units = display_units(case.display, args.units)
     thermo = ThermoPackage.from_case(case)
@@ -84,8 +102,11 @@ def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Cons
             ("saving claimed by the short method", f"{100 * audit.claimed_saving:.1f} %"),
             ("rigorous boilup (all reboilers)", flow(audit.rigorous_boilup)),
             ("rigorous boilup / Petlyuk minimum", f"{audit.boilup_over_minimum:.3f}"),
+            *_sequence_rows(audit, units, flow),
         ]
         console.print(screen_table(f"{result.title}: rigorous vapor beside the minimum vapor", ("quantity", "value"), rows))
+        if audit.sequence_note:
+            console.print(f"no conventional sequences: {audit.sequence_note}")
     return [write_network_result_json(result, out / "result.json")], result
 
 

@@ -25,7 +25,7 @@ from .network_graph import check_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
 from .network_specs import network_products, resolve_specs
-from .network_start import network_starts
+from .network_start import network_initial_estimate, network_starts
 from .newton import NewtonOptions, NewtonResult, solve_system
 from .results import case_summary
 from .thermo.homotopy import HomotopyThermo

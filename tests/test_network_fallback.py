@@ -3,9 +3,9 @@ network starts fails, homotopy continuation from ideal K-values and CMO enthalpi
 network; when every rung fails, the message names each rung and how far it got; and a heat link
 whose condenser ends colder than the reboiler it heats is refused."""
 
-from __future__ import re
-import annotations
+from __future__ import annotations
 
+import re
 from pathlib import Path
 
 from solver.case import load_case, loads_case

@@ -40,6 +40,7 @@ from .network_specs import network_products, resolve_specs
 from .sensitivity import RELATIVE_STEP, OutputQuantity, Sensitivities
 from .sensitivity_inputs import InputParameter, choose_inputs
 from .thermo.package import ThermoPackage
+from .warm_starts import network_start, scaled_start
 
 __all__ = ["NetworkSensitivityStudy", "network_inputs", "network_output_values", "network_sensitivities",
            "network_system_of", "network_unknowns"]
@@ -185,16 +186,7 @@ def network_system_of(case: Case, thermo: ThermoPackage, nominal: NetworkSystem 
 
 def network_unknowns(system: NetworkSystem, result: NetworkResult) -> np.ndarray:
     """The scaled unknowns ``X`` of a solved ``result`` of ``system``."""
-    fs, fe = system.flow_scale, system.flow_scale * system.energy_scale
-    l = result.liquid_flow[:, None] * result.x / fs
-    v = result.vapor_flow[:, None] * result.y / fs
-    extras = np.empty(len(system.extra_names))
-    for k, name in enumerate(system.extra_names):
-        if name.endswith(".rate"):
-            extras[k] = result.connections[name[: -len(".rate")]]["flow"] / fs
-        else:
-            extras[k] = result.duties[name[: -len(".duty")] if name.endswith(".duty") else name] / fe
-    return system.pack(result.temperature, l, v, extras)
+    return scaled_start(system, network_start(result))
 
 
 def _moved_system(case: Case, thermo: ThermoPackage, nominal: NetworkSystem, item: InputParameter, value: float) -> NetworkSystem:

@@ -8,9 +8,7 @@ from __future__ import annotations
 import dataclasses
 from pathlib import Path
 
-import numpy as np
-
-from .sensitivity import DRIVERS_SHOWN
+from .sensitivity import driver_row
 
 __all__ = ["network_headline_outputs", "network_sensitivity_table", "run_network_sensitivities"]
 
@@ -33,13 +31,7 @@ def network_sensitivity_table(view):
     elasticities."""
     from ..reports.display import screen_table
 
-    rows = []
-    for key in network_headline_outputs(view):
-        output = view.outputs[view.output_index(key)]
-        drivers = [f"{item.key} {elasticity:+.3g}" for item, elasticity, _ in view.largest_drivers(key, DRIVERS_SHOWN)
-                   if np.isfinite(elasticity) and abs(elasticity) > 1e-9]
-        unit = "" if output.unit == "1" else f" {output.unit}"
-        rows.append([output.label, f"{output.value:.6g}{unit}", "\n".join(drivers) or "-"])
+    rows = [driver_row(view, key) for key in network_headline_outputs(view)]
     return screen_table("Sensitivities, specs held (elasticities: % change per % change of the input)",
                         ["output", "value (SI)", "largest drivers (elasticity)"], rows)
 

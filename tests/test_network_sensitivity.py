@@ -82,6 +82,17 @@ def test_side_stripper_derivatives_match_resolves(side_stripper):
         assert found.derivatives[k, m] == pytest.approx(resolved[k], rel=1e-4), key
 
 
+def test_petlyuk_connection_fraction_matches_resolves():
+    """A connection's fraction moves the weights of the inflow matrices (the graph is built
+    again), not a residual's value."""
+    case, thermo, result, found = _solved("aromatics_petlyuk.toml")
+    m = [item.key for item in found.inputs].index("connections[0].fraction")
+    resolved = _resolved_derivative(case, thermo, result, found.inputs[m])
+    for key in ("stage.main.9.temperature", "duty.main.reboiler", "main.bottoms.mole_fraction.o-xylene"):
+        k = found.output_index(key)
+        assert found.derivatives[k, m] == pytest.approx(resolved[k], rel=1e-4), key
+
+
 def test_inputs_and_outputs_of_the_pumparound(pumparound):
     case, _, _, found = pumparound
     assert [item.key for item in network_inputs(case)] == [

@@ -53,7 +53,4 @@ def run_network_sensitivities(case, result, out: Path, console):
     path = write_atomic(Path(out) / "sensitivity.csv", study.csv())
     console.print(f"sensitivities of {len(view.outputs)} outputs to {len(view.inputs)} inputs in {view.seconds:.2f} s; "
                   f"all of them in result.json (sensitivity) and {path.name}")
-    if case.uncertainties:
-        console.print("the stated uncertainties are propagated for a single column only; not for this network",
-                      style="yellow")
     return dataclasses.replace(result, extra={**result.extra, "sensitivity": study})

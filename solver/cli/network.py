@@ -52,11 +52,16 @@ def network_outputs(result: NetworkResult, case: Case, out: Path, units, *, pict
 
 def run_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> tuple[list[Path], NetworkResult]:
     """``run``: result.json, stages.csv, summary.md, the picture of the network (network.png)
-    and each column's profiles (when converged) and the tables per column on screen. Returns
-    (files written, result)."""
+    and each column's profiles (when converged) and the tables per column on screen; with
+    ``--sensitivity`` also the sensitivities (:mod:`solver.cli.network_sensitivity`).
+    Returns (files written, result)."""
     units = display_units(case.display, args.units)
     options = NewtonOptions(max_iterations=args.max_iterations) if args.max_iterations else None
     result = simulate_network(case, options=options)
+    if getattr(args, "sensitivity", False):
+        from .network_sensitivity import run_network_sensitivities
+
+        result = run_network_sensitivities(case, result, out, console)
     written = network_outputs(result, case, out, units)
     if args.json:
         print(result.to_json())

@@ -10,7 +10,7 @@ from pathlib import Path
 
 import numpy as np
 
-__all__ = ["DRIVERS_SHOWN", "headline_outputs", "run_sensitivities", "sensitivity_tables"]
+__all__ = ["DRIVERS_SHOWN", "driver_row", "headline_outputs", "run_sensitivities", "sensitivity_tables"]
 
 #: How many drivers the screen shows per output.
 DRIVERS_SHOWN = 3
@@ -28,6 +28,16 @@ def headline_outputs(view) -> list[str]:
     return keys
 
 
+def driver_row(view, key: str) -> list[str]:
+    """One screen row: the output ``key``'s label, its value and its largest drivers with
+    their elasticities, one a line."""
+    output = view.outputs[view.output_index(key)]
+    drivers = [f"{item.key} {elasticity:+.3g}" for item, elasticity, _ in view.largest_drivers(key, DRIVERS_SHOWN)
+               if np.isfinite(elasticity) and abs(elasticity) > 1e-9]
+    unit = "" if output.unit == "1" else f" {output.unit}"
+    return [output.label, f"{output.value:.6g}{unit}", "\n".join(drivers) or "-"]
+
+
 def sensitivity_tables(study) -> list:
     """One screen table per view: each headline output, its value and its largest drivers with
     their elasticities."""
@@ -37,13 +47,7 @@ def sensitivity_tables(study) -> list:
               "as_operated": "Sensitivities, reflux and boilup ratios held"}
     tables = []
     for name, view in study.views():
-        rows = []
-        for key in headline_outputs(view):
-            output = view.outputs[view.output_index(key)]
-            drivers = [f"{item.key} {elasticity:+.3g}" for item, elasticity, _ in view.largest_drivers(key, DRIVERS_SHOWN)
-                       if np.isfinite(elasticity) and abs(elasticity) > 1e-9]
-            unit = "" if output.unit == "1" else f" {output.unit}"
-            rows.append([output.label, f"{output.value:.6g}{unit}", "\n".join(drivers) or "-"])
+        rows = [driver_row(view, key) for key in headline_outputs(view)]
         tables.append(screen_table(titles[name], ["output", "value (SI)", "largest drivers (elasticity)"], rows))
     return tables
 

@@ -136,7 +136,9 @@ def test_stage_search_finds_the_smallest_feasible_count(boundary, decay, feed_po
     assert found.complete and found.stages == truth
     assert found.largest_infeasible in (None, truth - 1)
     assert evaluate(found.stages, found.feed_stage) <= 1.0 + 1e-7
-    assert len(calls) <= 30
+    # 33 is the most measured over 140,000 random draws of these ranges; a search that walked
+    # stage by stage would need 60 or more
+    assert len(calls) <= 36
 
 
 def test_warm_start_of_the_same_column_is_the_solution_itself():

@@ -13,6 +13,7 @@ from typing import Sequence
 
 from rich.console import Console
 
+from ..audit.flags import two_liquids
 from ..audit.network_vmin import network_vmin_audit
 from ..case import Case
 from ..network_engine import simulate_network
@@ -21,7 +22,7 @@ from ..network_results import NetworkResult, write_network_result_json, write_ne
 from ..network_specs import resolve_specs
 from ..newton import NewtonOptions
 from ..reports import display_units
-from ..reports.display import screen_table
+from ..reports.display import screen_table, styled
 from ..reports.network_tables import network_tables
 from ..thermo.package import ThermoPackage
 
@@ -67,7 +68,16 @@ def run_network(args: argparse.Namespace, case: Case, out: Path, console: Consol
         print(result.to_json())
     for table in network_tables(result, units, resolve_specs(case, check_network(case))):
         console.print(table)
+    print_liquid_flag(result, console)
     return written, result
+
+
+def print_liquid_flag(result: NetworkResult, console: Console) -> None:
+    """The TWO_LIQUIDS flag of a converged network whose stage liquids the activity model says
+    would split (the test the network engine ran, ``extra["liquid_stability"]``)."""
+    flag = two_liquids(result.extra.get("liquid_stability"), "stage")
+    if flag is not None:
+        console.print(styled((f"[{flag.severity}] {flag.code}:", "red"), f" {flag.message}"))
 
 
 def _sequence_rows(audit, units, flow) -> list[tuple[str, str]]:
@@ -112,7 +122,8 @@ def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Cons
         console.print(screen_table(f"{result.title}: rigorous vapor beside the minimum vapor", ("quantity", "value"), rows))
         if audit.sequence_note:
             console.print(f"no conventional sequences: {audit.sequence_note}")
-    return [write_network_result_json(result, out / "result.json")], result
+    print_liquid_flag(result, console)
+    return network_outputs(result, case, out, units), result
 
 
 def shortcut_network(args: argparse.Namespace, case: Case, out: Path, console: Console) -> int:

@@ -14,7 +14,11 @@
    compositions. Sweeps that have not settled after their number (they can cycle where the
    K-values hang on the compositions through strongly nonideal activity coefficients) go on
    under-relaxed, each taking the compositions halfway (in their logarithms) to the new ones
-   (successive under-relaxation of a fixed-point iteration, common practice).
+   (successive under-relaxation of a fixed-point iteration, common practice). In a pinched
+   binary column even these may never settle: the composition front runs to and fro along
+   the pinch, and the start is then the last sweep or the mean of the relaxed sweeps'
+   compositions (a front smeared over the stages it visited), whichever leaves the smaller
+   MESH residuals.
    A subcooled reflux raises the internal reflux below the top stage (see
    :func:`subcooled_reflux_factor`).
 
@@ -28,6 +32,9 @@ follow a different Newton path from a start that differs by so little.
 """
 
 from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Callable
 
 import numpy as np
 import scipy.sparse as sp
@@ -48,6 +55,7 @@ __all__ = [
     "fenske_split",
     "initial_estimate",
     "subcooled_reflux_factor",
+    "Sweeps",
     "theta_correction",
     "theta_correction_applies",
     "wang_henke_sweeps",
@@ -55,6 +63,7 @@ __all__ = [
 
 _COMPOSITION_SPECS = ("mole_fraction", "recovery")
 _PROFILE_SPECS = ("mole_fraction", "recovery", "stage_temperature")  # met by moving D on the CMO profile
+_FIRST_WALK_STEP = 0.05  # of the start, in the root walking
 _WANG_HENKE_SWEEPS = 60  # plain sweeps at most (then as many relaxed); they stop when no temperature moves by 1e-3 K
 
 
@@ -243,8 +252,21 @@ def initial_estimate(system: MeshSystem, *, correct_split: bool = True) -> np.nd
     profiles = _CmoProfiles(system, top_vapor, feed_totals, q_values, T, x, correct_split)
     if adjustable:
         D = _meet_profile_specs(system, profiles, D)
-    L, V, T, x, l, stripping = profiles.at(D)
-    liquid, vapor = _start_component_flows(L, V, x, l, stripping)
+    # the mean of cycling sweeps is tried on binaries only: on a five-component column of
+    # 200 stages (tests/hard) the mean of several fronts cycling out of step was the worse start
+    L, V, sweeps = profiles.at(D, cycle_mean=system.c == 2)
+    start = _packed_start(system, L, V, sweeps)
+    if sweeps.cycle_mean is None:
+        return start
+    smeared = _packed_start(system, L, V, sweeps.cycle_mean)
+    return smeared if _residual_norm(system, smeared) < _residual_norm(system, start) else start
+
+
+def _packed_start(system: MeshSystem, L: np.ndarray, V: np.ndarray, sweeps: "Sweeps") -> np.ndarray:
+    """The scaled unknowns of the start on the CMO flows ``L``, ``V`` and the profile of
+    ``sweeps``, with a total condenser's reflux at its set temperature."""
+    liquid, vapor = _start_component_flows(L, V, sweeps.x, sweeps.liquid, sweeps.stripping)
+    T = sweeps.temperature.copy()
     if system.total_condenser:
         t = system.top
         setting = system.condenser_setting
@@ -253,6 +275,11 @@ def initial_estimate(system: MeshSystem, *, correct_split: bool = True) -> np.nd
         elif setting.reflux_subcooling:
             T[t] = T[t] - setting.reflux_subcooling
     return system.pack(T, liquid, vapor)
+
+
+def _residual_norm(system: MeshSystem, X: np.ndarray) -> float:
+    norm = float(np.linalg.norm(system.evaluate(X, jacobian=False).residuals))
+    return norm if np.isfinite(norm) else float("inf")
 
 
 def _feed_volatilities(system: MeshSystem) -> np.ndarray:
@@ -295,6 +322,7 @@ class _CmoProfiles:
         self.T, self.x = T, x
         self.internal_reflux_factor = subcooled_reflux_factor(system, float(T[system.top]), x[system.top])
         self.reflux_factor: float | None = None  # V_top / D = R + 1, once moved to meet a second spec
+        self.settled: list[bool] = []  # whether each trial's sweeps settled
         self.stage_feed_totals = np.zeros(system.N)
         stage_vapor = np.zeros(system.N)
         feed_stages = system.graph.feed_stages
@@ -309,13 +337,18 @@ class _CmoProfiles:
             return self.reflux_factor * D
         return self.top_vapor(D)
 
-    def at(self, D: float, V_top: float | None = None):
-        """(L, V, T, x, l, S) of the sweeps on the CMO flows for D (and V_top, if given)."""
+    def at(self, D: float, V_top: float | None = None, *, cycle_mean: bool = False):
+        """(L, V, :class:`Sweeps`) of the sweeps on the CMO flows for D (and V_top, if given)."""
         L, V = cmo_flows(self.system, D, self.vapor_for(D) if V_top is None else V_top, self.stage_feed_totals, self.stage_q,
                          self.internal_reflux_factor)
-        T, x, l, stripping = wang_henke_sweeps(self.system, L, V, self.T, self.x, correct_split=self.correct_split)
-        self.T, self.x = T, x
-        return L, V, T, x, l, stripping
+        sweeps = wang_henke_sweeps(self.system, L, V, self.T, self.x, correct_split=self.correct_split,
+                                   cycle_mean=cycle_mean)
+        self.T, self.x = sweeps.temperature, sweeps.x
+        self.settled.append(sweeps.settled)
+        return L, V, sweeps
+
+    def last_two_settled(self) -> bool:
+        return len(self.settled) >= 2 and all(self.settled[-2:])
 
 
 def _meet_profile_specs(system: MeshSystem, profiles: _CmoProfiles, D: float) -> float:
@@ -329,13 +362,15 @@ def _meet_profile_specs(system: MeshSystem, profiles: _CmoProfiles, D: float) ->
     second = profile_specs[1] if len(profile_specs) > 1 and system.graph.condenser != "none" else None
     for _ in range(2 if second is not None else 1):
         D = _root_by_walking(
-            lambda trial: _profile_spec_error(system, first, profiles.at(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-5 * F_net
+            lambda trial: _profile_spec_error(system, first, profiles.at(trial)), D, 0.01 * F_net, 0.99 * F_net, 1e-5 * F_net,
+            smooth=profiles.last_two_settled,
         )
         if second is None:
             break
         factor = profiles.vapor_for(D) / D  # V_top / D = R + 1
         factor = _root_by_walking(
-            lambda trial: _profile_spec_error(system, second, profiles.at(D, trial * D)), factor, 1.05, 200.0, 1e-4
+            lambda trial: _profile_spec_error(system, second, profiles.at(D, trial * D)), factor, 1.05, 200.0, 1e-4,
+            smooth=profiles.last_two_settled,
         )
         profiles.reflux_factor = factor
     return D
@@ -387,11 +422,12 @@ def wang_henke_sweeps(
     tolerance: float = 1e-3,
     max_sweeps: int = _WANG_HENKE_SWEEPS,
     correct_split: bool = True,
-):
+    cycle_mean: bool = False,
+) -> "Sweeps":
     """Bubble-point sweeps at fixed total flows until no temperature moves by ``tolerance`` K
     (at most ``max_sweeps`` plain sweeps, then at most as many under-relaxed ones); with ``correct_split`` (and two products) Holland's theta correction holds the overhead
-    total at ``V[top]``. Returns (T, x, component liquid flows l, stripping factors S with
-    v = S l)."""
+    total at ``V[top]``. With ``cycle_mean``, sweeps that never settle also give the profile
+    at the mean composition of their relaxed sweeps (:attr:`Sweeps.cycle_mean`)."""
     thermo = system.thermo
     N, c = system.N, system.c
     t = system.top
@@ -409,6 +445,8 @@ def wang_henke_sweeps(
     two_products = correct_split and theta_correction_applies(system)
     y = None
     raw = None
+    settled = False
+    relaxed_x, relaxed_flows, relaxed = np.zeros_like(x), np.zeros_like(x), 0
     for sweep in range(2 * max_sweeps):
         stripping = stripping_factors(T, x, y)
         # natural ordering keeps the elimination in stage order, where the column-wise
@@ -431,15 +469,40 @@ def wang_henke_sweeps(
             x = np.sqrt(np.maximum(x, 1e-300) * x_new)
             x = x / x.sum(axis=1, keepdims=True)
             raw = x * raw.sum(axis=1, keepdims=True)  # the start's flows keep the relaxed compositions
+            relaxed_x += x
+            relaxed_flows += raw
+            relaxed += 1
         step = bubble_point_step(thermo, system.pressures, x, T, y)
         if step is None:
             break
         T, y, moved = step
         if moved < tolerance:
+            settled = True
             break
     if raw is None:  # not one sweep solved: the flows of the given compositions
         raw = L[:, None] * x
-    return T, x, raw, stripping_factors(T, x, y)
+    mean = None
+    if cycle_mean and not settled and relaxed:
+        x_mean = relaxed_x / relaxed
+        step = bubble_point_step(thermo, system.pressures, x_mean, T, y)
+        if step is not None:
+            mean = Sweeps(step[0], x_mean, relaxed_flows / relaxed, stripping_factors(step[0], x_mean, step[1]), False)
+    return Sweeps(T, x, raw, stripping_factors(T, x, y), settled, mean)
+
+
+@dataclass(frozen=True)
+class Sweeps:
+    """The profile the bubble-point sweeps leave: temperatures (K), liquid compositions,
+    component liquid flows (scaled) and stripping factors S with v = S l, per stage; whether
+    the sweeps settled; and, when they did not and it was asked for, the profile at the mean
+    composition of the relaxed sweeps."""
+
+    temperature: np.ndarray
+    x: np.ndarray
+    liquid: np.ndarray
+    stripping: np.ndarray
+    settled: bool
+    cycle_mean: "Sweeps | None" = None
 
 
 def bubble_point_step(thermo, pressures: np.ndarray, x: np.ndarray, T: np.ndarray, y: np.ndarray | None):
@@ -479,16 +542,20 @@ def theta_correction(l: np.ndarray, top: np.ndarray, bottom: np.ndarray, feed: n
 
 def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float:
     """How far a CMO profile is from meeting a composition, recovery or temperature spec."""
-    L, V, T, x, l, stripping = profile_result
+    _, _, sweeps = profile_result
     if spec.kind == "stage_temperature":
-        return float(T[spec.stage - 1] - spec.value) / TEMPERATURE_SCALE
-    top = stripping[system.top] * l[system.top]
-    bottom = l[system.bottom]
+        return float(sweeps.temperature[spec.stage - 1] - spec.value) / TEMPERATURE_SCALE
+    top = sweeps.stripping[system.top] * sweeps.liquid[system.top]
+    bottom = sweeps.liquid[system.bottom]
     return _spec_error(spec, top, bottom, system.total_feed_by_component, system.component_names)
 
 
-def _root_by_walking(error, start: float, low: float, high: float, tolerance: float) -> float:
-    """A root of ``error`` near ``start`` in [low, high]: step out (widening the step) first in
+def _root_by_walking(
+    error, start: float, low: float, high: float, tolerance: float, smooth: Callable[[], bool] = lambda: False,
+) -> float:
+    """A root of ``error`` near ``start`` in [low, high]: when ``smooth()`` says the errors at
+    the start and a probe beside it may be extrapolated, first the secant step through them if
+    it lands within the first step of the walk; then step out (widening the step) first in
     the direction in which |error| shrinks, then in the other one (the error need not be
     monotone), and finish with Brent's method (Brent 1973) on the bracket. Returns ``start``
     when no sign change is found."""
@@ -499,10 +566,18 @@ def _root_by_walking(error, start: float, low: float, high: float, tolerance: fl
     probe_value = error(probe)
     if np.isfinite(probe_value) and np.sign(probe_value) != np.sign(value):
         return _bracketed(error, start, probe, tolerance, start)
+    if np.isfinite(probe_value) and probe_value != value and smooth():
+        # a root just past the probe can lie closer than the walk's first step, and the walk
+        # can overshoot it into a range where the error turns back (near an azeotrope)
+        secant = start - value * (probe - start) / (probe_value - value)
+        if abs(secant - start) <= _FIRST_WALK_STEP * start and low <= secant <= high:
+            secant_value = error(secant)
+            if np.isfinite(secant_value) and np.sign(secant_value) != np.sign(value):
+                return _bracketed(error, start, secant, tolerance, start)
     first = 1.0 if np.isfinite(probe_value) and abs(probe_value) < abs(value) else -1.0
     for direction in (first, -first):
         a, fa = start, value
-        step = 0.05 * start
+        step = _FIRST_WALK_STEP * start
         for _ in range(14):
             b = float(np.clip(a + direction * step, low, high))
             fb = error(b)

@@ -68,3 +68,15 @@ def test_a_free_feed_without_its_spec_is_named():
     text = text.replace('[[specs]]\non = "recovery.bottoms"\nflow = "0.5 kmol/h"\n', "")
     with pytest.raises(SpecError, match="feed 'water make-up' \\(its flow is free\\) lacks 1 spec"):
         simulate_network(loads_case(text, source_file="<no purge spec>"))
+
+
+def test_run_shows_the_two_liquid_flag_and_audit_writes_the_run_files(tmp_path, capsys):
+    from solver.cli import main
+
+    assert main(["run", str(CASES / "crude_like_side_strippers.toml"), "--out", str(tmp_path / "run")]) == 0
+    screen = capsys.readouterr().out
+    assert "[serious] TWO_LIQUIDS" in screen and "main 1" in screen  # the condenser's liquid, as the case says
+    assert main(["audit", str(CASES / "aromatics_side_rectifier.toml"), "--out", str(tmp_path / "audit")]) == 0
+    written = {path.name for path in (tmp_path / "audit").iterdir()}
+    assert {"result.json", "stages.csv", "summary.md", "network.png"} <= written
+    assert "TWO_LIQUIDS" not in capsys.readouterr().out

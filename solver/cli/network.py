@@ -18,13 +18,18 @@ from ..audit.network_vmin import network_vmin_audit
 from ..case import Case
 from ..network_engine import simulate_network
 from ..network_graph import check_network
-from ..network_results import NetworkResult, write_network_result_json, write_network_stages_csv
+from ..network_results import (
+    NetworkResult,
+    write_network_result_json,
+    write_network_stages_csv,
+)
 from ..network_specs import resolve_specs
 from ..newton import NewtonOptions
 from ..reports import display_units
-from ..reports.display import screen_table, styled
+from ..reports.display import screen_table
 from ..reports.network_tables import network_tables
 from ..thermo.package import ThermoPackage
+from .common import styled
 
 __all__ = ["audit_network", "run_network"]
 
@@ -36,7 +41,11 @@ def network_outputs(result: NetworkResult, case: Case, out: Path, units, *, pict
     column's temperature and composition profiles (and ``pictures`` already written); summary.md
     last, naming the pictures, with ``sections`` (Markdown lines) added. The pictures of an
     earlier run (and the files ``stale``) are removed when this one did not converge."""
-    from ..network_plot import column_profile_files, column_profiles, network_figure  # matplotlib
+    from ..network_plot import (  # matplotlib
+        column_profile_files,
+        column_profiles,
+        network_figure,
+    )
     from ..reports.network_summary import write_network_summary
 
     written = [write_network_result_json(result, out / "result.json"), write_network_stages_csv(result, out / "stages.csv")]
@@ -188,7 +197,7 @@ def size_network(args: argparse.Namespace, case: Case, out: Path, console: Conso
     from ..reports.sizing_tables import print_sizing, sizing_markdown
     from ..sizing import size_column, sizing_inputs
     from ..sizing.figure import flood_profile
-    from .common import fail_on, styled
+    from .common import fail_on
 
     units = display_units(case.display, args.units)
     thermo, liquids = sizing_inputs(case)  # a property nobody gives is bad input, before the solve

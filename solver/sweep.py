@@ -44,7 +44,7 @@ from .errors import CaseError, ConvergenceError, SpecError, ThermoError, Traysta
 from .plots import sweep_plot
 from .results import write_atomic
 from .engine import stage_profile
-from .warm_starts import SolvedPoint, nearest_profile, solve_warm
+from .warm_starts import SolvedPoint, solve_warm, stage_layout, warm_start
 
 __all__ = [
     "Variation",
@@ -441,7 +441,7 @@ def _solve_points(points, variations, document, executor, source_file, progress,
             continue
         if not components:
             components.extend(case.component_names)
-        valid.append((index, assignments, _coordinates(variations, values)))
+        valid.append((index, assignments, _coordinates(variations, values), stage_layout(case)))
     if not valid:
         first = outcomes[0]
         raise CaseError(f"no point of the sweep is a valid case; the first: {first.message}", key="--vary")
@@ -452,8 +452,8 @@ def _solve_points(points, variations, document, executor, source_file, progress,
     solved: list = []  # converged points of a warm sweep: where they lie and their profiles
 
     def submit(k: int) -> None:
-        index, assignments, coordinates = valid[k]
-        start = nearest_profile(coordinates, solved) if chains else None
+        index, assignments, coordinates, layout = valid[k]
+        start = warm_start(coordinates, layout, solved) if chains else None
         futures[executor.submit(solve_point, index, document, assignments, source_file, start)] = k
 
     for k in ([run.pop(0) for run in runs] if chains else range(len(valid))):
@@ -468,7 +468,7 @@ def _solve_points(points, variations, document, executor, source_file, progress,
             except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
                 outcome = failed_point(index, tuple(points[index]), exc, 0.0)
             if outcome.profile is not None:
-                solved.append(SolvedPoint(valid[k][2], outcome.profile))
+                solved.append(SolvedPoint(valid[k][2], outcome.profile, valid[k][3]))
             outcomes[index] = dataclasses.replace(outcome, profile=None)
             if progress is not None:
                 progress(outcomes[index])

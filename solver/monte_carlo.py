@@ -32,6 +32,7 @@ from .engine import build_system, stage_profile
 from .results import json_safe
 from .sensitivity import OutputQuantity, output_values
 from .sensitivity_inputs import choose_inputs
+from .study_log import StudyLog, fingerprint
 from .streams import StageProfile
 from .thermo.package import ThermoPackage
 from .uncertainty import UncertainInput
@@ -266,62 +267,35 @@ class MonteCarloStudy:
 def study_fingerprint(document: Mapping, inputs: Sequence[UncertainInput], seed: int) -> str:
     """What a sample's outcome depends on besides its index: the case as read, the stated
     inputs and the seed (a SHA-256 of them)."""
-    import hashlib
-    import json
-
-    text = json.dumps({"case": json_safe(document), "seed": seed,
-                       "inputs": [[i.parameter.key, i.deviation] for i in inputs]}, sort_keys=True)
-    return hashlib.sha256(text.encode()).hexdigest()
+    return fingerprint({"case": document, "seed": seed, "inputs": [[i.parameter.key, i.deviation] for i in inputs]})
 
 
 class SampleLog:
-    """The samples of a study written as they finish, one JSON line each after a line with the
-    study's fingerprint, so that a study run again into the same folder solves only the samples
-    the log lacks (:func:`run_samples` ``done``). A log of another study is started afresh; a
-    line cut short by an interrupt, or whose values differ from the sample drawn, is ignored."""
+    """The samples of a study written as they finish (:class:`~solver.study_log.StudyLog`), so
+    that a study run again into the same folder solves only the samples the log lacks
+    (:func:`run_samples` ``done``). A line whose values differ from the sample drawn is ignored."""
 
     def __init__(self, path, fingerprint: str, samples: np.ndarray) -> None:
-        import json
-        from pathlib import Path
-
-        self.path = Path(path)
-        self.done: dict[int, SampleOutcome] = {}
-        lines = self.path.read_text().splitlines() if self.path.exists() else []
-        if lines and lines[0] == json.dumps({"fingerprint": fingerprint}):
-            for line in lines[1:]:
-                try:
-                    record = json.loads(line)
-                    index = int(record["sample"])
-                    if index < len(samples) and np.array_equal(np.array(record["values"]), samples[index]):
-                        self.done[index] = SampleOutcome(
-                            index, tuple(record["statuses"]), tuple(record["messages"]),
-                            tuple(tuple(float(x) for x in view) for view in record["outputs"]),
-                            tuple(record["ratios"]), float(record["seconds"]))
-                except (ValueError, KeyError, TypeError, IndexError):
-                    continue
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        kept = [json.dumps({"fingerprint": fingerprint})] + [
-            self._line(o, samples[i]) for i, o in sorted(self.done.items())]
-        from .results import write_atomic
-
-        write_atomic(self.path, "\n".join(kept) + "\n")
         self._samples = samples
-        self._handle = open(self.path, "a", encoding="utf-8")
 
-    @staticmethod
-    def _line(outcome: SampleOutcome, values: np.ndarray) -> str:
-        import json
+        def read(record: dict) -> tuple[int, SampleOutcome] | None:
+            index = int(record["sample"])
+            if not (0 <= index < len(samples) and np.array_equal(np.array(record["values"]), samples[index])):
+                return None
+            return index, SampleOutcome(
+                index, tuple(record["statuses"]), tuple(record["messages"]),
+                tuple(tuple(float(x) for x in view) for view in record["outputs"]),
+                tuple(record["ratios"]), float(record["seconds"]))
 
-        return json.dumps({"sample": outcome.index, "values": [float(v) for v in values],
-                           "statuses": list(outcome.statuses), "messages": list(outcome.messages),
-                           "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
-                           "seconds": outcome.seconds})
+        self._log = StudyLog(path, fingerprint, read)
+        self.path, self.done = self._log.path, self._log.done
 
     def append(self, outcome: SampleOutcome) -> None:
-        if outcome.index in self.done:
-            return
-        self._handle.write(self._line(outcome, self._samples[outcome.index]) + "\n")
-        self._handle.flush()
+        self._log.append(outcome.index, {
+            "sample": outcome.index, "values": [float(v) for v in self._samples[outcome.index]],
+            "statuses": list(outcome.statuses), "messages": list(outcome.messages),
+            "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
+            "seconds": outcome.seconds})
 
     def close(self) -> None:
-        self._handle.close()
+        self._log.close()

@@ -70,18 +70,27 @@ def test_samples_are_reproducible_and_clipped_into_range():
     assert first.max() == 1.0 and 150 < clipped < 250  # about half of 400 (binomial sd 10)
 
 
-def test_unconverged_samples_are_counted_listed_and_left_out(monkeypatch):
-    from solver import monte_carlo
-    from solver.engine import simulate, stage_profile
+def uncertain_study(count: int, seed: int):
+    """The demo case with stated uncertainties, its nominal solution, the linear propagation
+    and ``count`` samples drawn with ``seed``."""
+    from solver.engine import simulate
     from solver.sensitivity import sensitivity_study
-    from solver.sweep import load_document
     from solver.uncertainty import linear_uncertainty
 
     path = CASES / "methanol_water_uncertain.toml"
     case = load_case(path)
     nominal = simulate(case)
     linear = linear_uncertainty(case, sensitivity_study(case, nominal))
-    samples, clipped = draw_samples(linear.inputs, 4, seed=5)
+    samples, clipped = draw_samples(linear.inputs, count, seed=seed)
+    return path, case, nominal, linear, samples, clipped
+
+
+def test_unconverged_samples_are_counted_listed_and_left_out(monkeypatch):
+    from solver import monte_carlo
+    from solver.engine import stage_profile
+    from solver.sweep import load_document
+
+    path, case, nominal, linear, samples, clipped = uncertain_study(4, seed=5)
     real = monte_carlo.solve_warm
 
     def failing_second(case, start, options=None, *, thermo=None):  # sample 1 as operated does not converge
@@ -118,16 +127,10 @@ def test_reflux_needed_to_meet_the_product_spec():
     from solver import monte_carlo
     from solver.case import Spec
     from solver.engine import simulate, stage_profile
-    from solver.sensitivity import sensitivity_study
     from solver.sweep import load_document
     from solver.thermo.package import ThermoPackage
-    from solver.uncertainty import linear_uncertainty
 
-    path = CASES / "methanol_water_uncertain.toml"
-    case = load_case(path)
-    nominal = simulate(case)
-    linear = linear_uncertainty(case, sensitivity_study(case, nominal))
-    samples, clipped = draw_samples(linear.inputs, 3, seed=11)
+    path, case, nominal, linear, samples, clipped = uncertain_study(3, seed=11)
     D = nominal.distillate_flow
     outcomes = monte_carlo.run_samples(load_document(path), str(path), linear.inputs, samples, stage_profile(nominal),
                                        (nominal.reflux_ratio, nominal.boilup_ratio), ThreadPoolExecutor(1),

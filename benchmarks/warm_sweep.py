@@ -1,7 +1,10 @@
 """Warm-started sweeps against cold ones: the same study solved with every point from the
-default start (``--cold``) and with each point from its nearest solved neighbour. Figures:
-Newton iterations and seconds per point (the first point, cold in both, left out of the
-per-point figures), and the ratios cold / warm. Writes benchmarks/results/warm_sweep.json."""
+default start (``--cold``) and with each point from its nearest solved neighbour of the same
+stage layout (extrapolated along the sweep line from a second one where there is one; see
+:mod:`solver.warm_starts`). Figures:
+Newton iterations and seconds of the points after the first (cold in both), and the ratios
+cold / warm; and per point: the cold sweep's points after the first against the warm sweep's
+warm-started points (a point with no neighbour of its stage layout starts cold in both). Writes benchmarks/results/warm_sweep.json."""
 
 from __future__ import annotations
 
@@ -22,7 +25,11 @@ def measure(document, variations, warm: bool) -> dict:
     with ThreadPoolExecutor(max_workers=1) as executor:
         result = run_sweep(document, variations, executor, warm=warm, chains=1)
     later = result.outcomes[1:]
+    solved = [o for o in later if o.converged and (o.warm_start or not warm)]  # warm: the warm-started ones
     return {
+        "points_per_point_figures": len(solved),
+        "iterations_per_point": sum(o.iterations for o in solved) / max(len(solved), 1),
+        "seconds_per_point": sum(o.seconds for o in solved) / max(len(solved), 1),
         "converged": sum(o.converged for o in result.outcomes),
         "points": len(result.outcomes),
         "iterations_after_first": sum(o.iterations or 0 for o in later),
@@ -42,10 +49,14 @@ def main() -> None:
             "cold": cold, "warm": warm,
             "iteration_ratio_cold_over_warm": cold["iterations_after_first"] / max(warm["iterations_after_first"], 1),
             "seconds_ratio_cold_over_warm": cold["seconds_after_first"] / warm["seconds_after_first"],
+            "per_point_iteration_ratio_cold_over_warm_started": cold["iterations_per_point"] / warm["iterations_per_point"],
+            "per_point_seconds_ratio_cold_over_warm_started": cold["seconds_per_point"] / warm["seconds_per_point"],
         }
         print(f"{name}: iterations {cold['iterations_after_first']} cold / {warm['iterations_after_first']} warm, "
               f"seconds {cold['seconds_after_first']:.2f} / {warm['seconds_after_first']:.2f} "
-              f"({figures[name]['seconds_ratio_cold_over_warm']:.1f}x)")
+              f"({figures[name]['seconds_ratio_cold_over_warm']:.1f}x); per warm-started point against per cold point: "
+              f"iterations {figures[name]['per_point_iteration_ratio_cold_over_warm_started']:.2f}x, "
+              f"seconds {figures[name]['per_point_seconds_ratio_cold_over_warm_started']:.1f}x")
     figures["goal"] = "warm points at least 3x cheaper than cold ones"
     save("warm_sweep", figures)
 

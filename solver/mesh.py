@@ -274,11 +274,12 @@ class MeshSystem:
         self._replaced_rows = np.array(replaced, dtype=int)
 
     # ------------------------------------------------------------------ evaluation
-    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
+    def evaluate(self, X: np.ndarray, jacobian: bool = True, state: StageState | None = None) -> Evaluation:
         """Scaled residuals at the unknowns ``X`` (stage-major: c component balances, c
         equilibrium relations, then the enthalpy balance or the spec that replaces it), and
-        with ``jacobian`` their sparse analytic Jacobian."""
-        state = self._stage_state(X)
+        with ``jacobian`` their sparse analytic Jacobian. ``state``: the :meth:`stage_state` of
+        ``X`` if already known (also from a system of the same thermo, pressures and draws)."""
+        state = state if state is not None else self._stage_state(X)
         balance, equilibrium, energy = self._mesh_residuals(state)
         reflux_bubble_point = self._total_condenser_rows(state, equilibrium) if self.total_condenser else None
         residual_blocks = np.concatenate([balance, equilibrium, energy[:, None]], axis=1)
@@ -289,6 +290,10 @@ class MeshSystem:
         if not jacobian:
             return Evaluation(residuals, None)
         return Evaluation(residuals, self._jacobian(state, reflux_bubble_point, spec_entries))
+
+    def stage_state(self, X: np.ndarray) -> StageState:
+        """Flows, compositions and properties of every stage at the unknowns ``X``."""
+        return self._stage_state(X)
 
     def _stage_state(self, X: np.ndarray) -> StageState:
         T, l, v = self.unpack(X)
@@ -344,6 +349,23 @@ class MeshSystem:
             vals = np.concatenate([vals, spec_vals])
         keep = vals != 0.0
         return sp.csc_matrix((vals[keep], (rows[keep], cols[keep])), shape=(self.size, self.size))
+
+    def enthalpy_balance_jacobian(self, s: StageState) -> sp.csr_matrix:
+        """(N, size): the derivatives of every stage's scaled enthalpy balance (as
+        :meth:`stage_duties` has it, before a spec replaces the row) in the unknowns, at the
+        state ``s``."""
+        gLx = np.einsum("nk,nk->n", s.x, s.dh_L_dx)
+        gVy = np.einsum("nk,nk->n", s.y, s.dh_V_dx)
+        row = 2 * self.c
+        liquid_edge_blocks, vapor_edge_blocks = self._edge_blocks(s, gLx, gVy)
+        w, stages, local = self.width, np.arange(self.N), np.arange(self.width)
+        le, ve = self.graph.liquid_edges, self.graph.vapor_edges
+        rows = np.concatenate([np.repeat(stages, w), np.repeat(le[:, 1], w), np.repeat(ve[:, 1], w)])
+        cols = np.concatenate([(stages[:, None] * w + local).ravel(), (le[:, 0][:, None] * w + local).ravel(),
+                               (ve[:, 0][:, None] * w + local).ravel()])
+        vals = np.concatenate([self._stage_blocks(s, gLx, gVy)[:, row, :].ravel(),
+                               liquid_edge_blocks[:, row, :].ravel(), vapor_edge_blocks[:, row, :].ravel()])
+        return sp.csr_matrix((vals, (rows, cols)), shape=(self.N, self.size))
 
     def _stage_blocks(self, s: StageState, gLx: np.ndarray, gVy: np.ndarray) -> np.ndarray:
         """(N, w, w): derivatives of each stage's rows with respect to its own unknowns."""
@@ -451,12 +473,12 @@ class MeshSystem:
         h[t], dh_dT[t], g[t] = distillate.molar[0], distillate.d_dT[0], distillate.d_dx[0]
         return h, dh_dT, g
 
-    def stage_duties(self, X: np.ndarray) -> np.ndarray:
+    def stage_duties(self, X: np.ndarray, state: StageState | None = None) -> np.ndarray:
         """Heat added to each stage (W) from its enthalpy balance; on stages other than the
-        condenser and reboiler it equals the fixed side duty."""
+        condenser and reboiler it equals the fixed side duty. ``state`` as in :meth:`evaluate`."""
         T, l, v = self.unpack(X)
         L, V = l.sum(axis=1), v.sum(axis=1)
-        hL, hV = self.stage_enthalpies(X)
+        hL, hV = self.stage_enthalpies(X) if state is None else (state.h_L, state.h_V)
         A_L, A_V = self.graph.liquid_inflow, self.graph.vapor_inflow
         out = (L + self.liquid_draws) * hL + (V + self.vapor_draws) * hV
         net = out - A_L @ (L * hL) - A_V @ (V * hV) - self.feed_enthalpy * self.energy_scale

@@ -3,7 +3,10 @@
 views (as :mod:`solver.sensitivity` has them): *as specified*, the case's own specs held (what
 the design needs: duties, flows, the reflux or boilup it takes), and *as operated*, the
 nominal solution's reflux ratio and boilup ratio held (what the products become in a column run
-as designed; the chance that each product spec is met).
+as designed; the chance that each product spec is met). And for each product spec (a mole
+fraction or a recovery) of a column with a condenser and a reboiler, the reflux ratio needed to
+meet it: the sample solved with that spec and the design's distillate rate held, the reflux
+free (:data:`REFLUX_NEEDED`).
 
 Samples go through any :class:`concurrent.futures.Executor` (local worker processes, or the
 executor of a Dask ``Client``); what goes to a worker is plain data (the case's TOML document,
@@ -32,17 +35,21 @@ from .engine import build_system, stage_profile
 from .results import json_safe
 from .sensitivity import OutputQuantity, output_values
 from .sensitivity_inputs import choose_inputs
+from .study_log import StudyLog, fingerprint
 from .streams import StageProfile
 from .thermo.package import ThermoPackage
 from .uncertainty import UncertainInput
 from .warm_starts import solve_warm
 
-__all__ = ["PERCENTILES", "VIEWS", "MonteCarloStudy", "SampleLog", "SampleOutcome", "SpecChance", "run_samples",
-           "solve_sample", "spec_chances", "study_fingerprint"]
+__all__ = ["PERCENTILES", "REFLUX_NEEDED", "VIEWS", "MonteCarloStudy", "RefluxNeeded", "SampleLog", "SampleOutcome",
+           "SpecChance", "needed_reflux_specs", "product_specs", "run_samples", "solve_sample", "spec_chances",
+           "study_fingerprint"]
 
 #: The percentiles reported of every output.
 PERCENTILES = (2.5, 5.0, 25.0, 50.0, 75.0, 95.0, 97.5)
 VIEWS = ("as_specified", "as_operated")
+#: What the reflux needed to meet a product spec is, in result files and on screen.
+REFLUX_NEEDED = "the reflux ratio of the sample solved with the spec and the design's distillate rate held"
 
 
 @dataclass(frozen=True)
@@ -57,6 +64,8 @@ class SampleOutcome:
     outputs: tuple[tuple[float, ...], tuple[float, ...]]
     ratios: tuple[float | None, float | None] = (None, None)
     seconds: float = 0.0
+    #: per product spec (:func:`product_specs`): (status, message, reflux ratio needed or None)
+    needed: tuple[tuple[str, str, float | None], ...] = ()
 
     @property
     def converged(self) -> bool:
@@ -69,24 +78,54 @@ def _operated(case: Case, ratios: tuple[float | None, float | None]) -> Case:
     return dataclasses.replace(case, specs=tuple(specs))
 
 
-def _solve_view(case: Case, thermo: ThermoPackage, start: StageProfile):
+def _solve_view(case: Case, thermo: ThermoPackage, start: StageProfile, outputs: bool = True):
     try:
         result = solve_warm(case, start, thermo=thermo).result
     except Exception as exc:  # a sample that cannot be solved is one failed sample
         return "failed", f"{type(exc).__name__}: {exc}", (), None
     if not result.converged:
         return "not converged", result.message, (), None
+    if not outputs:
+        return "converged", "", (), result
     system = build_system(case, thermo)
     values = output_values(system, system.unknowns(stage_profile(result)))
     return "converged", "", tuple(float(v) for v in values), result
 
 
+def product_specs(case: Case) -> tuple[Spec, ...]:
+    """The specs of ``case`` on a product's composition: mole fractions and recoveries."""
+    return tuple(spec for spec in case.specs if spec.kind in ("mole_fraction", "recovery"))
+
+
+def needed_reflux_specs(case: Case, distillate_rate: float | None) -> tuple[tuple[Spec, ...], ...]:
+    """For each product spec, the specs under which its sample's reflux is the one needed to
+    meet it: the spec and the distillate rate ``distillate_rate`` (mol/s) held. None for a
+    column without both a condenser and a reboiler or without a distillate rate."""
+    column = case.column
+    if distillate_rate is None or column is None or column.condenser == "none" or column.reboiler == "none":
+        return ()
+    rate = Spec("distillate_rate", distillate_rate, key="design.distillate_rate")
+    return tuple((spec, rate) for spec in product_specs(case))
+
+
+def _reflux_needed(case: Case, thermo: ThermoPackage, start: StageProfile, specs: tuple[Spec, ...],
+                   specified) -> tuple[str, str, float | None]:
+    if {(s.kind, s.value, s.component, s.product) for s in specs} == \
+            {(s.kind, s.value, s.component, s.product) for s in case.specs}:
+        status, message, _, result = specified  # the case's own specs are these: the as-specified solve
+    else:
+        status, message, _, result = _solve_view(dataclasses.replace(case, specs=specs), thermo, start, outputs=False)
+    return status, message, (result.reflux_ratio if result is not None else None)
+
+
 def solve_sample(document: Mapping, source_file: str, index: int, keys: Sequence[str], values: Sequence[float],
-                 start: StageProfile, ratios: tuple[float | None, float | None]) -> SampleOutcome:
+                 start: StageProfile, ratios: tuple[float | None, float | None],
+                 distillate_rate: float | None = None) -> SampleOutcome:
     """Solve sample ``index``: the case of the TOML ``document`` with each input ``keys[m]`` set
     to ``values[m]`` (applied in the order of :func:`~solver.sensitivity_inputs.choose_inputs`),
     from the nominal ``start``, as specified and with the nominal ``ratios`` (reflux, boilup)
-    held. Runs in a worker; never raises."""
+    held; with the design's ``distillate_rate`` (mol/s), also the reflux needed to meet each
+    product spec (:func:`needed_reflux_specs`). Runs in a worker; never raises."""
     started = time.perf_counter()
     try:
         case = parse_case(document, source_file=source_file)
@@ -100,24 +139,28 @@ def solve_sample(document: Mapping, source_file: str, index: int, keys: Sequence
         return SampleOutcome(index, ("failed", "failed"), (message, message), ((), ()), seconds=time.perf_counter() - started)
     specified = _solve_view(case, thermo, start)
     operated = _solve_view(_operated(case, ratios), thermo, start)
+    needed = tuple(_reflux_needed(case, thermo, start, specs, specified)
+                   for specs in needed_reflux_specs(case, distillate_rate))
     result = specified[3]
     return SampleOutcome(
         index, (specified[0], operated[0]), (specified[1], operated[1]), (specified[2], operated[2]),
         (result.reflux_ratio, result.boilup_ratio) if result is not None else (None, None),
-        time.perf_counter() - started,
+        time.perf_counter() - started, needed,
     )
 
 
 def run_samples(document: Mapping, source_file: str, inputs: Sequence[UncertainInput], samples: np.ndarray,
                 start: StageProfile, ratios: tuple[float | None, float | None], executor: Executor, *,
                 progress: Callable[[SampleOutcome], None] | None = None,
-                done: Mapping[int, SampleOutcome] | None = None) -> list[SampleOutcome]:
+                done: Mapping[int, SampleOutcome] | None = None,
+                distillate_rate: float | None = None) -> list[SampleOutcome]:
     """Every sample (a row of ``samples``) solved through ``executor``; the outcomes in sample
-    order. ``done`` holds samples already solved (a resumed study); they are not solved again."""
+    order. ``done`` holds samples already solved (a resumed study); they are not solved again.
+    ``distillate_rate``: the design's (mol/s), for the reflux needed to meet each product spec."""
     keys = [item.parameter.key for item in inputs]
     outcomes: dict[int, SampleOutcome] = dict(done or {})
     futures = {executor.submit(solve_sample, document, source_file, index, keys, tuple(float(v) for v in row), start,
-                               ratios): index
+                               ratios, distillate_rate): index
                for index, row in enumerate(samples) if index not in outcomes}
     try:
         while futures:
@@ -162,19 +205,44 @@ def spec_chances(case: Case, outputs: Sequence[OutputQuantity], operated: np.nda
     keys = [o.key for o in outputs]
     rows = operated[~np.isnan(operated).any(axis=1)] if operated.size else operated
     chances = []
-    for spec in case.specs:
+    for spec in product_specs(case):
         if spec.kind == "mole_fraction":
             output = f"{spec.product}.mole_fraction.{spec.component}"
             largest = max((o for o in outputs if o.key.startswith(f"{spec.product}.mole_fraction.")), key=lambda o: o.value)
             sense = "at least" if largest.key == output else "at most"
-        elif spec.kind == "recovery":
-            output, sense = f"{spec.product}.recovery.{spec.component}", "at least"
         else:
-            continue
+            output, sense = f"{spec.product}.recovery.{spec.component}", "at least"
         column = rows[:, keys.index(output)] if len(rows) else np.array([])
         met = column >= spec.value if sense == "at least" else column <= spec.value
         chances.append(SpecChance(spec.key, output, spec.value, sense, int(np.sum(met)), len(column)))
     return tuple(chances)
+
+
+@dataclass(frozen=True)
+class RefluxNeeded:
+    """The reflux ratio needed to meet one product spec (``key``, ``target``) over the samples:
+    the values of the samples that converged (in sample order) and the others (sample, status,
+    message)."""
+
+    key: str
+    target: float
+    values: tuple[float, ...]
+    unconverged: tuple[tuple[int, str, str], ...]
+
+    def statistics(self) -> dict[str, float]:
+        """Mean, standard deviation (n - 1) and :data:`PERCENTILES` (NaN without values)."""
+        values = np.array(self.values)
+        if not len(values):
+            return {"mean": float("nan"), "standard_deviation": float("nan"),
+                    **{f"p{p:g}": float("nan") for p in PERCENTILES}}
+        return {"mean": float(values.mean()),
+                "standard_deviation": float(values.std(ddof=1)) if len(values) > 1 else 0.0,
+                **{f"p{p:g}": float(np.percentile(values, p)) for p in PERCENTILES}}
+
+    def as_json(self) -> dict[str, Any]:
+        return {"spec": self.key, "target": self.target, "converged": len(self.values), **self.statistics(),
+                "not_converged": [{"sample": i, "status": status, "message": message}
+                                  for i, status, message in self.unconverged]}
 
 
 @dataclass(frozen=True)
@@ -191,6 +259,21 @@ class MonteCarloStudy:
     outcomes: tuple[SampleOutcome, ...]
     chances: tuple[SpecChance, ...]
     seconds: float = 0.0
+    needed_specs: tuple[Spec, ...] = ()  # the product specs whose needed reflux the outcomes hold
+
+    def reflux_needed(self) -> tuple[RefluxNeeded, ...]:
+        """The reflux ratio needed to meet each of :attr:`needed_specs` over the samples."""
+        found = []
+        for k, spec in enumerate(self.needed_specs):
+            values, unconverged = [], []
+            for outcome in self.outcomes:
+                status, message, reflux = outcome.needed[k] if k < len(outcome.needed) else ("failed", "not solved", None)
+                if status == "converged" and reflux is not None:
+                    values.append(float(reflux))
+                else:
+                    unconverged.append((outcome.index, status, message))
+            found.append(RefluxNeeded(spec.key, spec.value, tuple(values), tuple(unconverged)))
+        return tuple(found)
 
     def matrix(self, view: str) -> np.ndarray:
         """Outputs of every sample in ``view`` (rows), NaN where it did not converge."""
@@ -244,6 +327,7 @@ class MonteCarloStudy:
                       "as_operated": "the nominal solution's reflux ratio and boilup ratio held"},
             "spec_chances": [{"spec": c.key, "output": c.output, "target": c.target, "sense": c.sense, "met": c.met,
                               "converged": c.converged, "probability": c.probability} for c in self.chances],
+            "reflux_needed": {"method": REFLUX_NEEDED, "specs": [item.as_json() for item in self.reflux_needed()]},
             **views,
         })
 
@@ -253,12 +337,15 @@ class MonteCarloStudy:
         writer = csv.writer(buffer, lineterminator="\n")
         writer.writerow(["sample", *[i.parameter.key for i in self.inputs], "reflux_ratio", "boilup_ratio",
                          *[f"{view}.status" for view in VIEWS],
-                         *[f"{view}.{o.key}" for view in VIEWS for o in self.outputs]])
+                         *[f"{view}.{o.key}" for view in VIEWS for o in self.outputs],
+                         *[f"reflux_needed.{spec.key}" for spec in self.needed_specs]])
         for outcome, row in zip(self.outcomes, self.samples):
             cells = [outcome.index, *[f"{v:.10g}" for v in row],
                      *["" if r is None else f"{r:.10g}" for r in outcome.ratios], *outcome.statuses]
             for v in range(len(VIEWS)):
                 cells += [f"{x:.10g}" for x in outcome.outputs[v]] or [""] * len(self.outputs)
+            needed = list(outcome.needed) + [("failed", "", None)] * (len(self.needed_specs) - len(outcome.needed))
+            cells += ["" if reflux is None else f"{reflux:.10g}" for _, _, reflux in needed[:len(self.needed_specs)]]
             writer.writerow(cells)
         return buffer.getvalue()
 
@@ -266,62 +353,37 @@ class MonteCarloStudy:
 def study_fingerprint(document: Mapping, inputs: Sequence[UncertainInput], seed: int) -> str:
     """What a sample's outcome depends on besides its index: the case as read, the stated
     inputs and the seed (a SHA-256 of them)."""
-    import hashlib
-    import json
-
-    text = json.dumps({"case": json_safe(document), "seed": seed,
-                       "inputs": [[i.parameter.key, i.deviation] for i in inputs]}, sort_keys=True)
-    return hashlib.sha256(text.encode()).hexdigest()
+    return fingerprint({"case": document, "seed": seed, "inputs": [[i.parameter.key, i.deviation] for i in inputs]})
 
 
 class SampleLog:
-    """The samples of a study written as they finish, one JSON line each after a line with the
-    study's fingerprint, so that a study run again into the same folder solves only the samples
-    the log lacks (:func:`run_samples` ``done``). A log of another study is started afresh; a
-    line cut short by an interrupt, or whose values differ from the sample drawn, is ignored."""
+    """The samples of a study written as they finish (:class:`~solver.study_log.StudyLog`), so
+    that a study run again into the same folder solves only the samples the log lacks
+    (:func:`run_samples` ``done``). A line whose values differ from the sample drawn is ignored."""
 
     def __init__(self, path, fingerprint: str, samples: np.ndarray) -> None:
-        import json
-        from pathlib import Path
-
-        self.path = Path(path)
-        self.done: dict[int, SampleOutcome] = {}
-        lines = self.path.read_text().splitlines() if self.path.exists() else []
-        if lines and lines[0] == json.dumps({"fingerprint": fingerprint}):
-            for line in lines[1:]:
-                try:
-                    record = json.loads(line)
-                    index = int(record["sample"])
-                    if index < len(samples) and np.array_equal(np.array(record["values"]), samples[index]):
-                        self.done[index] = SampleOutcome(
-                            index, tuple(record["statuses"]), tuple(record["messages"]),
-                            tuple(tuple(float(x) for x in view) for view in record["outputs"]),
-                            tuple(record["ratios"]), float(record["seconds"]))
-                except (ValueError, KeyError, TypeError, IndexError):
-                    continue
-        self.path.parent.mkdir(parents=True, exist_ok=True)
-        kept = [json.dumps({"fingerprint": fingerprint})] + [
-            self._line(o, samples[i]) for i, o in sorted(self.done.items())]
-        from .results import write_atomic
-
-        write_atomic(self.path, "\n".join(kept) + "\n")
         self._samples = samples
-        self._handle = open(self.path, "a", encoding="utf-8")
 
-    @staticmethod
-    def _line(outcome: SampleOutcome, values: np.ndarray) -> str:
-        import json
+        def read(record: dict) -> tuple[int, SampleOutcome] | None:
+            index = int(record["sample"])
+            if not (0 <= index < len(samples) and np.array_equal(np.array(record["values"]), samples[index])):
+                return None
+            return index, SampleOutcome(
+                index, tuple(record["statuses"]), tuple(record["messages"]),
+                tuple(tuple(float(x) for x in view) for view in record["outputs"]),
+                tuple(record["ratios"]), float(record["seconds"]),
+                tuple((str(status), str(message), None if reflux is None else float(reflux))
+                      for status, message, reflux in record["needed"]))
 
-        return json.dumps({"sample": outcome.index, "values": [float(v) for v in values],
-                           "statuses": list(outcome.statuses), "messages": list(outcome.messages),
-                           "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
-                           "seconds": outcome.seconds})
+        self._log = StudyLog(path, fingerprint, read)
+        self.path, self.done = self._log.path, self._log.done
 
     def append(self, outcome: SampleOutcome) -> None:
-        if outcome.index in self.done:
-            return
-        self._handle.write(self._line(outcome, self._samples[outcome.index]) + "\n")
-        self._handle.flush()
+        self._log.append(outcome.index, {
+            "sample": outcome.index, "values": [float(v) for v in self._samples[outcome.index]],
+            "statuses": list(outcome.statuses), "messages": list(outcome.messages),
+            "outputs": [list(view) for view in outcome.outputs], "ratios": list(outcome.ratios),
+            "seconds": outcome.seconds, "needed": [list(item) for item in outcome.needed]})
 
     def close(self) -> None:
-        self._handle.close()
+        self._log.close()

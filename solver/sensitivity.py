@@ -6,10 +6,15 @@ the tangent ``dX/dp = -J^-1 dF/dp`` with ``J = dF/dX`` the Jacobian Newton's met
 (e.g. Fiacco, *Introduction to Sensitivity and Stability Analysis in Nonlinear Programming*,
 1983, ch. 3; for staged columns Naphtali & Sandholm, AIChE J. 17 (1971) 148, whose Jacobian
 this is). ``J`` is factored once (sparse LU) and every input costs one back-solve, done for all
-inputs at once. ``dF/dp`` is a central difference of the residuals alone at the converged
-point, with the model moved by a relative step of 1e-6 (the equations are never solved again);
-an output's total derivative ``dy/dp = dy/dX dX/dp + dy/dp|X`` is the central difference of the
-output along the tangent, ``(y(X + h t, p + h) - y(X - h t, p - h)) / 2h``.
+inputs at once. ``dF/dp`` is a forward difference of the residuals alone at the converged
+point, with the model moved by a relative step of 1e-6 (the equations are never solved again).
+An input that leaves the stages' thermodynamic state at ``X`` as it is (a spec, a feed's flow,
+composition or condition, an efficiency) moves only the feed, spec and efficiency terms: the
+moved residuals are formed from the nominal stage state, with no property evaluated again. An
+output's total derivative is ``dy/dp = dy/dX dX/dp + dy/dp|X``, with ``dy/dX`` analytic
+(:func:`output_jacobian`: the product flows and fractions are the top vapor's and the bottom
+liquid's, the duties the condenser's and reboiler's enthalpy balances) and ``dy/dp|X`` the
+forward difference of the outputs at fixed ``X`` (a recovery's in closed form from the feed's).
 
 The scales of the moved systems are the nominal ones, so that the unknowns ``X`` mean the same
 stage profile in every one of them. A feed given by its temperature that is all liquid or all
@@ -41,11 +46,14 @@ from dataclasses import dataclass
 from typing import Any, Sequence
 
 import numpy as np
+import scipy.sparse as sp
+import scipy.sparse.linalg as spla
 
 from .case import Case, Spec
 from .engine import flash_feeds, stage_profile
 from .errors import ConvergenceError, SpecError
 from .mesh import CondenserSetting, MeshSystem
+from .mesh_blocks import StageState
 from .network import StageGraph, build_stage_graph
 from .results import Result, json_safe
 from .sensitivity_inputs import InputParameter, choose_inputs
@@ -60,11 +68,12 @@ __all__ = [
     "SensitivityStudy",
     "column_sensitivities",
     "operated_case",
+    "output_jacobian",
     "output_values",
     "sensitivity_study",
 ]
 
-#: Relative size of the central-difference step of an input on the residuals.
+#: Relative size of the forward-difference step of an input on the residuals.
 RELATIVE_STEP = 1e-6
 
 
@@ -112,7 +121,7 @@ class Sensitivities:
         elasticities = self.elasticities()
         return json_safe({
             "method": "implicit-function theorem on the converged MESH Jacobian (one sparse LU, one back-solve per "
-                      f"input); residual derivatives by central differences of relative step {RELATIVE_STEP:g}",
+                      f"input); residual derivatives by forward differences of relative step {RELATIVE_STEP:g}",
             "seconds": self.seconds,
             "inputs": [{"key": i.key, "label": i.label, "kind": i.kind, "value": i.value, "unit": i.unit,
                         "scale": i.scale} for i in self.inputs],
@@ -157,9 +166,9 @@ def _output_quantities(system: MeshSystem, values: np.ndarray) -> tuple[OutputQu
     return tuple(OutputQuantity(key, label, float(value), unit) for (key, label, unit), value in zip(specs, values))
 
 
-def output_values(system: MeshSystem, X: np.ndarray) -> np.ndarray:
+def output_values(system: MeshSystem, X: np.ndarray, state: StageState | None = None) -> np.ndarray:
     """The outputs (in the order of the module docstring, SI) of the unknowns ``X`` of
-    ``system``."""
+    ``system`` (``state``: their :meth:`~solver.mesh.MeshSystem.stage_state`, if known)."""
     T, l, v = system.unpack(X)
     top, bottom = v[system.top], l[system.bottom]
     distillate, bottoms = float(top.sum()), float(bottoms_total := bottom.sum())
@@ -171,13 +180,47 @@ def output_values(system: MeshSystem, X: np.ndarray) -> np.ndarray:
              top / max(distillate, 1e-300), bottom / max(bottoms, 1e-300), recovery_top, recovery_bottom]
     duties = None
     if system.graph.condenser != "none" or system.graph.has_reboiler:
-        duties = system.stage_duties(X)
+        duties = system.stage_duties(X, state)
     if system.graph.condenser != "none":
         parts.append(duties[[system.top]])
     if system.graph.has_reboiler:
         parts.append(duties[[system.bottom]])
     parts.append(T)
     return np.concatenate(parts)
+
+
+def output_jacobian(system: MeshSystem, X: np.ndarray, state: StageState) -> sp.csr_matrix:
+    """d(outputs)/dX of :func:`output_values` at ``X`` (its stage ``state``), analytic: the
+    flows, fractions and recoveries are those of the top vapor and the bottom liquid, the duties
+    the enthalpy balances of the condenser and the reboiler."""
+    c, w, t, b = system.c, system.width, system.top, system.bottom
+    components = np.arange(c)
+    top_cols, bottom_cols = t * w + 1 + c + components, b * w + 1 + components
+    _, l, v = system.unpack(X)
+    D, B = max(float(v[t].sum()), 1e-300), max(float(l[b].sum()), 1e-300)
+    feed = system.total_feed_by_component
+    recovery = np.where(feed > 0, 1.0 / np.where(feed > 0, feed, 1.0), 0.0)
+    eye = np.eye(c)
+    blocks: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = []  # (rows, cols, values), rows from 0
+
+    def dense(rows: np.ndarray, cols: np.ndarray, values: np.ndarray) -> None:
+        blocks.append((np.repeat(rows, len(cols)), np.tile(cols, len(rows)), np.asarray(values).ravel()))
+
+    dense(np.array([0]), top_cols, np.full(c, system.flow_scale))
+    dense(np.array([1]), bottom_cols, np.full(c, system.flow_scale))
+    dense(2 + components, top_cols, (eye - (v[t] / D)[:, None]) / D)
+    dense(2 + c + components, bottom_cols, (eye - (l[b] / B)[:, None]) / B)
+    blocks.append((2 + 2 * c + components, top_cols, recovery))
+    blocks.append((2 + 3 * c + components, bottom_cols, recovery))
+    row = 2 + 4 * c
+    duty_stages = ([t] if system.graph.condenser != "none" else []) + ([b] if system.graph.has_reboiler else [])
+    if duty_stages:
+        energy = system.enthalpy_balance_jacobian(state)[duty_stages].tocoo()
+        blocks.append((row + energy.row, energy.col, energy.data * (system.flow_scale * system.energy_scale)))
+        row += len(duty_stages)
+    blocks.append((row + np.arange(system.N), system.temperature_index(), np.ones(system.N)))
+    rows, cols, values = (np.concatenate(part) for part in zip(*blocks))
+    return sp.csr_matrix((values, (rows, cols)), shape=(row + system.N, system.size))
 
 
 def _system(case: Case, thermo: ThermoPackage, graph: StageGraph, feeds: Sequence[FlashedFeed],
@@ -224,11 +267,51 @@ def _moved_feeds(case: Case, thermo: ThermoPackage, graph: StageGraph, nominal: 
     return tuple(moved)
 
 
+def _result_feeds(case: Case, result: Result) -> tuple[FlashedFeed, ...] | None:
+    """The flashed feeds the solve of ``case`` used, in the case's order, from ``result``
+    (which lists them stage by stage); None if they are not the case's feeds."""
+    listed = [feed for feeds in result.stage_feeds for feed in feeds]
+    order = sorted(range(len(case.feeds)), key=lambda i: case.feeds[i].stage)
+    if len(listed) != len(order):
+        return None
+    feeds: list = [None] * len(order)
+    for i, flashed in zip(order, listed):
+        feed = case.feeds[i]
+        stated = [(a, b) for a, b in ((flashed.temperature, feed.temperature), (flashed.pressure, feed.pressure),
+                                      (flashed.vapor_fraction, feed.vapor_fraction)) if b is not None]
+        if ((flashed.stage, flashed.flow, flashed.z) != (feed.stage, feed.flow, tuple(float(z) for z in feed.composition))
+                or any(a != b for a, b in stated)):
+            return None
+        feeds[i] = flashed
+    return tuple(feeds)
+
+
 def _moved_system(case: Case, thermo: ThermoPackage, nominal: MeshSystem, item: InputParameter, value: float) -> MeshSystem:
     moved_case, moved_thermo = item.apply(case, thermo, value)
     graph = build_stage_graph(moved_case) if item.changes_column else nominal.graph
     feeds = _moved_feeds(moved_case, moved_thermo, graph, nominal.feeds) if item.changes_feeds else nominal.feeds
     return _system(moved_case, moved_thermo, graph, feeds, nominal)
+
+
+def _same_stage_state(moved: MeshSystem, nominal: MeshSystem) -> bool:
+    """Whether the stages of ``moved`` at given unknowns are in the state of ``nominal``'s (the
+    same thermo, pressures, draws and vapor paths): a spec, a feed or an efficiency moved."""
+    return (moved.thermo is nominal.thermo
+            and all(np.array_equal(a, b) for a, b in (
+                (moved.pressures, nominal.pressures), (moved.liquid_draws, nominal.liquid_draws),
+                (moved.vapor_draws, nominal.vapor_draws), (moved.graph.liquid_edges, nominal.graph.liquid_edges),
+                (moved.graph.vapor_edges, nominal.graph.vapor_edges))))
+
+
+def _recovery_derivatives(nominal: MeshSystem, moved: MeshSystem, recoveries: np.ndarray, h: float) -> np.ndarray:
+    """d(recovery)/d(input) at fixed unknowns, top then bottom: ``-recovery d(feed)/feed``
+    with the feed's derivative a difference of feed flows (linear in every input), so that
+    no step error of ``1/feed`` enters."""
+    feed = nominal.total_feed_by_component
+    change = (moved.total_feed_by_component - feed) / h
+    with np.errstate(divide="ignore", invalid="ignore"):
+        relative = np.where(feed > 0, change / np.where(feed > 0, feed, 1.0), 0.0)
+    return -recoveries * np.tile(relative, 2)
 
 
 def column_sensitivities(
@@ -251,25 +334,27 @@ def column_sensitivities(
     thermo = thermo or ThermoPackage.from_case(case)
     inputs = tuple(choose_inputs(case) if inputs is None else inputs)
     graph = build_stage_graph(case)
-    nominal = _system(case, thermo, graph, flash_feeds(case, thermo, graph), None)
+    flashed = _result_feeds(case, result) or flash_feeds(case, thermo, graph)
+    # the nominal feeds by the same path as the moved ones, so that a difference is the input's alone
+    nominal = _system(case, thermo, graph, _moved_feeds(case, thermo, graph, flashed), None)
     X = nominal.unknowns(stage_profile(result))
-    evaluation = nominal.evaluate(X, True)
-    import scipy.sparse.linalg as spla
-
-    factors = spla.splu(evaluation.jacobian)
+    state = nominal.stage_state(X)
+    evaluation = nominal.evaluate(X, True, state)
+    values = output_values(nominal, X, state)
     steps = np.array([item.step(relative_step) for item in inputs])
-    moved = [(_moved_system(case, thermo, nominal, item, item.value + h),
-              _moved_system(case, thermo, nominal, item, item.value - h)) for item, h in zip(inputs, steps)]
     residual_derivatives = np.empty((nominal.size, len(inputs)))
-    for m, (plus, minus) in enumerate(moved):
-        residual_derivatives[:, m] = (plus.evaluate(X, False).residuals - minus.evaluate(X, False).residuals) / (2 * steps[m])
-    tangents = -factors.solve(residual_derivatives) if len(inputs) else residual_derivatives
-    values = output_values(nominal, X)
-    derivatives = np.empty((len(values), len(inputs)))
-    for m, (plus, minus) in enumerate(moved):
-        h = steps[m]
-        shift = h * tangents[:, m]
-        derivatives[:, m] = (output_values(plus, X + shift) - output_values(minus, X - shift)) / (2 * h)
+    direct = np.empty((len(values), len(inputs)))  # d output / d input at fixed X
+    recoveries = 2 + 2 * nominal.c + np.arange(2 * nominal.c)
+    for m, (item, h) in enumerate(zip(inputs, steps)):
+        moved = _moved_system(case, thermo, nominal, item, item.value + h)
+        moved_state = state if _same_stage_state(moved, nominal) else moved.stage_state(X)
+        residual_derivatives[:, m] = (moved.evaluate(X, False, moved_state).residuals - evaluation.residuals) / h
+        direct[:, m] = (output_values(moved, X, moved_state) - values) / h
+        direct[recoveries, m] = _recovery_derivatives(nominal, moved, values[recoveries], h)
+    derivatives = direct
+    if len(inputs):
+        tangents = -spla.splu(evaluation.jacobian).solve(residual_derivatives)
+        derivatives = output_jacobian(nominal, X, state) @ tangents + direct
     return Sensitivities(inputs, _output_quantities(nominal, values), derivatives, time.perf_counter() - started)
 
 

@@ -23,8 +23,8 @@ already solved, a partial study that ``sweep.csv`` marks as such.
 from __future__ import annotations
 
 import copy
-import dataclasses
 import csv
+import dataclasses
 import io
 import itertools
 import math
@@ -41,10 +41,16 @@ import numpy as np
 
 from .case import parse_case
 from .errors import CaseError, ConvergenceError, SpecError, ThermoError, TraystackError
+from .network_results import NetworkResult
 from .plots import sweep_plot
 from .results import write_atomic
-from .network_results import NetworkResult
-from .warm_starts import SolvedPoint, nearest_profile, solve_warm, starting_point
+from .warm_starts import (
+    SolvedPoint,
+    solve_warm,
+    stage_layout,
+    starting_point,
+    warm_start,
+)
 
 __all__ = [
     "Variation",
@@ -423,6 +429,7 @@ def run_sweep(
     progress: Callable[[PointOutcome], None] | None = None,
     warm: bool = False,
     chains: int = 1,
+    done: Mapping[int, PointOutcome] | None = None,
 ) -> SweepResult:
     """Solve every point of the grid of ``variations`` through ``executor``.
 
@@ -433,7 +440,12 @@ def run_sweep(
 
     With ``warm``, the points go to the executor as ``chains`` runs of neighbouring points, and
     in each run a point starts from its nearest converged neighbour (:mod:`solver.warm_starts`),
-    the default start where there is none or Newton fails from it."""
+    the default start where there is none or Newton fails from it.
+
+    ``done`` holds points already solved (a resumed study, :mod:`solver.sweep_log`), by index:
+    they are not solved again, and their profiles (if they carry them) are neighbours of a warm
+    sweep. ``progress`` gets each outcome with its converged profile (``profile``), the result
+    holds them without."""
     if not variations:
         raise CaseError("nothing to vary", key="--vary", expected="at least one --vary KEY=START:STOP:COUNT")
     if len({variation.path for variation in variations}) != len(variations):
@@ -446,7 +458,7 @@ def run_sweep(
     components: list[str] = []  # filled by the first point that validates
     try:
         _solve_points(points, variations, document, executor, source_file, progress, outcomes, futures, components,
-                      chains if warm else 0)
+                      chains if warm else 0, done or {})
     except KeyboardInterrupt:
         for future in futures:  # the points not started are dropped; the caller stops the workers
             future.cancel()
@@ -456,7 +468,7 @@ def run_sweep(
 
 
 def _solve_points(points, variations, document, executor, source_file, progress, outcomes: list, futures: dict,
-                  components: list, chains: int = 0) -> None:
+                  components: list, chains: int = 0, done: Mapping[int, PointOutcome] = {}) -> None:
     """The body of :func:`run_sweep`: fills ``outcomes``, ``futures`` and ``components`` as it
     goes, so that an interrupt leaves what is done. ``chains`` > 0: warm-started runs."""
     valid = []
@@ -469,22 +481,32 @@ def _solve_points(points, variations, document, executor, source_file, progress,
             continue
         if not components:
             components.extend(case.component_names)
-        valid.append((index, assignments, _coordinates(variations, values)))
+        valid.append((index, assignments, _coordinates(variations, values), stage_layout(case)))
     if not valid:
         first = outcomes[0]
         raise CaseError(f"no point of the sweep is a valid case; the first: {first.message}", key="--vary")
     for outcome in outcomes:
         if outcome is not None and progress is not None:
             progress(outcome)
-    runs = [list(run) for run in np.array_split(np.arange(len(valid)), min(chains, len(valid)))] if chains else []
     solved: list = []  # converged points of a warm sweep: where they lie and their profiles
+    todo = []
+    for k, (index, _, coordinates, layout) in enumerate(valid):
+        if index not in done:
+            todo.append(k)
+            continue
+        outcomes[index] = dataclasses.replace(done[index], profile=None)
+        if done[index].profile is not None:
+            solved.append(SolvedPoint(coordinates, done[index].profile, layout))
+    runs = [[int(k) for k in run] for run in np.array_split(np.array(todo, dtype=int), min(chains, len(todo)))] \
+        if chains and todo else []
+    following = {run[i]: run[i + 1] for run in runs for i in range(len(run) - 1)}
 
     def submit(k: int) -> None:
-        index, assignments, coordinates = valid[k]
-        start = nearest_profile(coordinates, solved) if chains else None
+        index, assignments, coordinates, layout = valid[k]
+        start = warm_start(coordinates, layout, solved) if chains else None
         futures[executor.submit(solve_point, index, document, assignments, source_file, start)] = k
 
-    for k in ([run.pop(0) for run in runs] if chains else range(len(valid))):
+    for k in ([run[0] for run in runs] if chains else todo):
         submit(k)
     while futures:
         done, _ = wait(futures, return_when=FIRST_COMPLETED)
@@ -496,13 +518,12 @@ def _solve_points(points, variations, document, executor, source_file, progress,
             except Exception as exc:  # a worker that died (e.g. killed for memory) is one failed point
                 outcome = failed_point(index, tuple(points[index]), exc, 0.0)
             if outcome.profile is not None:
-                solved.append(SolvedPoint(valid[k][2], outcome.profile))
+                solved.append(SolvedPoint(valid[k][2], outcome.profile, valid[k][3]))
             outcomes[index] = dataclasses.replace(outcome, profile=None)
             if progress is not None:
-                progress(outcomes[index])
-            run = next((run for run in runs if run and run[0] == k + 1), None)
-            if run:
-                submit(run.pop(0))
+                progress(outcome)
+            if k in following:
+                submit(following[k])
 
 
 def _coordinates(variations: Sequence[Variation], values: Sequence[Any]) -> tuple[float, ...]:

@@ -70,18 +70,27 @@ def test_samples_are_reproducible_and_clipped_into_range():
     assert first.max() == 1.0 and 150 < clipped < 250  # about half of 400 (binomial sd 10)
 
 
-def test_unconverged_samples_are_counted_listed_and_left_out(monkeypatch):
-    from solver import monte_carlo
-    from solver.engine import simulate, stage_profile
+def uncertain_study(count: int, seed: int):
+    """The demo case with stated uncertainties, its nominal solution, the linear propagation
+    and ``count`` samples drawn with ``seed``."""
+    from solver.engine import simulate
     from solver.sensitivity import sensitivity_study
-    from solver.sweep import load_document
     from solver.uncertainty import linear_uncertainty
 
     path = CASES / "methanol_water_uncertain.toml"
     case = load_case(path)
     nominal = simulate(case)
     linear = linear_uncertainty(case, sensitivity_study(case, nominal))
-    samples, clipped = draw_samples(linear.inputs, 4, seed=5)
+    samples, clipped = draw_samples(linear.inputs, count, seed=seed)
+    return path, case, nominal, linear, samples, clipped
+
+
+def test_unconverged_samples_are_counted_listed_and_left_out(monkeypatch):
+    from solver import monte_carlo
+    from solver.engine import stage_profile
+    from solver.sweep import load_document
+
+    path, case, nominal, linear, samples, clipped = uncertain_study(4, seed=5)
     real = monte_carlo.solve_warm
 
     def failing_second(case, start, options=None, *, thermo=None):  # sample 1 as operated does not converge
@@ -110,3 +119,47 @@ def test_unconverged_samples_are_counted_listed_and_left_out(monkeypatch):
     rows = list(csv.DictReader(io.StringIO(study.csv())))
     assert [row["as_operated.status"] for row in rows] == ["converged", "not converged", "converged", "converged"]
     assert rows[1]["as_operated.bottoms.mole_fraction.water"] == "" and rows[1]["as_specified.bottoms.flow"] != ""
+
+
+def test_reflux_needed_to_meet_the_product_spec():
+    """Each sample's reflux needed to meet the bottoms spec, checked by solving the sample again
+    at that reflux ratio and the design's distillate rate: the bottoms purity is the spec's."""
+    from solver import monte_carlo
+    from solver.case import Spec
+    from solver.engine import simulate, stage_profile
+    from solver.sweep import load_document
+    from solver.thermo.package import ThermoPackage
+
+    path, case, nominal, linear, samples, clipped = uncertain_study(3, seed=11)
+    D = nominal.distillate_flow
+    outcomes = monte_carlo.run_samples(load_document(path), str(path), linear.inputs, samples, stage_profile(nominal),
+                                       (nominal.reflux_ratio, nominal.boilup_ratio), ThreadPoolExecutor(1),
+                                       distillate_rate=D)
+    needed_specs = tuple(specs[0] for specs in monte_carlo.needed_reflux_specs(case, D))
+    assert [s.key for s in needed_specs] == ["specs.bottoms.water"]
+    study = monte_carlo.MonteCarloStudy(case.title, 11, linear.inputs, samples, clipped, linear.views[0][1].outputs,
+                                        tuple(outcomes), (), 0.0, needed_specs)
+    (needed,) = study.reflux_needed()
+    assert len(needed.values) == 3 and not needed.unconverged
+    assert len(set(needed.values)) == 3  # the samples need different refluxes
+    for m, reflux in enumerate(needed.values):
+        moved, thermo = case, ThermoPackage.from_case(case)
+        for item in linear.inputs:
+            moved, thermo = item.parameter.apply(moved, thermo, float(samples[m, linear.inputs.index(item)]))
+        moved = dataclasses.replace(moved, specs=(Spec("reflux_ratio", reflux), Spec("distillate_rate", D)))
+        again = simulate(moved, thermo=thermo, start=stage_profile(nominal))
+        assert again.converged
+        assert again.bottoms_composition[1] == pytest.approx(0.995, abs=1e-8)
+    stats = needed.statistics()
+    assert stats["p2.5"] <= stats["p50"] <= stats["p97.5"] and stats["p50"] == pytest.approx(np.median(needed.values))
+    data = study.as_json()["reflux_needed"]
+    assert data["specs"][0]["spec"] == "specs.bottoms.water" and data["specs"][0]["converged"] == 3
+    rows = list(csv.DictReader(io.StringIO(study.csv())))
+    assert [float(row["reflux_needed.specs.bottoms.water"]) for row in rows] == pytest.approx(list(needed.values))
+    # a case whose own specs are the spec and a distillate rate: the reflux needed is the as-specified one
+    by_rate = dataclasses.replace(case, specs=(case.specs[1], Spec("distillate_rate", D, key="design.distillate_rate")))
+    found = monte_carlo._reflux_needed(by_rate, ThermoPackage.from_case(by_rate), stage_profile(nominal),
+                                       monte_carlo.needed_reflux_specs(by_rate, D)[0],
+                                       ("converged", "", (), nominal))
+    assert found == ("converged", "", nominal.reflux_ratio)
+    assert monte_carlo.needed_reflux_specs(case, None) == ()

@@ -55,3 +55,65 @@ def dataclasses_replace_temperature(profile, value):
     import dataclasses
 
     return dataclasses.replace(profile, temperature=np.full_like(profile.temperature, value))
+
+
+def test_layouts_map_section_by_section_or_not_at_all():
+    import dataclasses
+
+    from solver.warm_starts import mapped_start, stage_layout
+
+    case = load_case(CASES / "naphtha_side_draw.toml")  # 36 stages, liquid draw on 10, feed on 20
+    layout = stage_layout(case)
+    assert layout.stages == 36 and layout.special == ((10, "liquid draw"), (20, "feed"))
+    profile = stage_profile(simulate(case))
+    assert mapped_start(profile, layout, layout) is profile
+
+    def moved(draw_stage, stages=36):
+        column = dataclasses.replace(case.column, stages=stages, pressures=case.column.pressures[:1] * stages,
+                                     efficiencies=(1.0,) * stages,
+                                     side_draws=(dataclasses.replace(case.column.side_draws[0], stage=draw_stage),))
+        return stage_layout(dataclasses.replace(case, column=column))
+
+    # the draw moved up but still above the feed: each section stretched, special stages kept aligned
+    start = mapped_start(profile, layout, moved(6))
+    assert start.stage_count == 36
+    assert start.temperature[5] == pytest.approx(profile.temperature[9])  # new draw stage 6 = old draw stage 10
+    assert start.temperature[19] == pytest.approx(profile.temperature[19])  # the feed stage stays
+    assert start.temperature[0] == profile.temperature[0] and start.temperature[-1] == profile.temperature[-1]
+    longer = mapped_start(profile, layout, moved(10, 40))
+    assert longer.stage_count == 40 and longer.temperature[9] == pytest.approx(profile.temperature[9])
+    # the draw moved past the feed: no start
+    assert mapped_start(profile, layout, moved(25)) is None
+
+
+def test_secant_predictor_along_the_sweep_line():
+    from solver.warm_starts import StageLayout, extrapolated_profile, warm_start
+
+    case = load_case(CASES / "methanol_water.toml")
+    a = stage_profile(simulate(case))
+    b = dataclasses_replace_temperature(a, 350.0)
+    ahead = extrapolated_profile(a, b, 0.5)
+    np.testing.assert_allclose(ahead.temperature, a.temperature + 0.5 * (a.temperature - 350.0))
+    assert np.all(ahead.liquid_flow > 0) and np.all(ahead.vapor_flow >= 0)
+    layout, other = StageLayout(20, ((10, "feed"),)), StageLayout(20, ((12, "feed"),))
+    solved = [SolvedPoint((0.0,), b, layout), SolvedPoint((0.5,), a, layout)]
+    # on the line beyond the nearest point: the secant predictor from the two
+    start = warm_start((1.0,), layout, solved)
+    np.testing.assert_allclose(start.temperature, a.temperature + (a.temperature - 350.0))
+    # off the line (a second coordinate moved): the nearest profile as it is
+    solved_2d = [SolvedPoint((0.0, 0.0), b, layout), SolvedPoint((0.5, 0.0), a, layout)]
+    assert warm_start((0.5, 1.0), layout, solved_2d) is a
+    # a layout that maps (same order of special stages) only when none of the same layout is solved
+    assert warm_start((1.0,), other, [SolvedPoint((0.5,), a, layout)]).stage_count == 20
+    assert warm_start((1.0,), StageLayout(20, ((5, "liquid draw"), (10, "feed"))), solved) is None
+
+
+def test_warm_points_take_fewer_newton_iterations():
+    document = load_document(CASES / "methanol_water.toml")
+    variations = [parse_variation("specs.reflux_ratio=1.5:2.5:6")]
+    with ThreadPoolExecutor(max_workers=1) as executor:
+        warm = run_sweep(document, variations, executor, warm=True, chains=1)
+        cold = run_sweep(document, variations, executor)
+    assert all(o.converged for o in warm.outcomes + cold.outcomes)
+    # from the third point on, the secant predictor leaves Newton less to do than the default start
+    assert all(w.iterations < c.iterations for w, c in zip(warm.outcomes[3:], cold.outcomes[3:]))

@@ -4,6 +4,7 @@ studies): the commands that run many solves through local workers."""
 from __future__ import annotations
 
 import argparse
+import dataclasses
 import math
 import os
 import sys
@@ -108,6 +109,7 @@ def add_check_command(sub) -> None:
 
 def command_sweep(args: argparse.Namespace) -> int:
     from ..sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from ..sweep_log import LOG_NAME, PointLog
     from ..workers import stop_workers, study_executor
 
     console = console_for()
@@ -120,36 +122,44 @@ def command_sweep(args: argparse.Namespace) -> int:
     total = 1
     for variation in variations:
         total *= len(variation.values)
+    log = PointLog(out / LOG_NAME, document, variations, warm=not args.cold)
+    if log.done:
+        console.print(f"resuming: {len(log.done)} of {total} points already solved in {log.path}")
     executor = study_executor(args.jobs or 1, args.scheduler)
     chains = args.jobs or getattr(executor, "worker_threads", 1)  # warm-started runs in flight
     try:
         with progress_bar(console) as progress:
-            task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total)
+            task = progress.add_task(f"sweep of {base.title or case_path.name}", total=total, completed=len(log.done))
 
-            solved: list = []
+            solved: list = [dataclasses.replace(outcome, profile=None) for outcome in log.done.values()]
             last_write = [-math.inf]
 
             def advance(outcome) -> None:
+                log.append(outcome)
                 progress.advance(task)
                 progress.refresh()
-                solved.append(outcome)  # sweep.csv shows the study so far, marked partial (at most once a second)
+                # sweep.csv shows the study so far, marked partial (at most once a second)
+                solved.append(dataclasses.replace(outcome, profile=None))
                 if time.monotonic() - last_write[0] >= 1.0:
                     done = tuple(sorted(solved, key=lambda o: o.index))
                     write_sweep_csv(SweepResult(tuple(variations), base.component_names, done, total), out / "sweep.csv")
                     last_write[0] = time.monotonic()
 
             result = run_sweep(document, variations, executor, source_file=str(case_path), progress=advance,
-                               warm=not args.cold, chains=chains)
+                               warm=not args.cold, chains=chains, done=log.done)
     except SweepInterrupted as stop:
         stop_workers(executor)
+        log.close()
         written = write_sweep_csv(stop.result, out / "sweep.csv")
-        print(f"traystack: interrupted; the points already solved are written to {written} ({stop.result.study})",
-              file=sys.stderr)
+        print(f"traystack: interrupted; the points already solved are written to {written} ({stop.result.study}) "
+              f"and kept in {log.path}: run the same command again to solve only the others", file=sys.stderr)
         return 130
     except BaseException:
         executor.shutdown(wait=False, cancel_futures=True)
+        log.close()
         raise
     executor.shutdown()
+    log.close()
     files = [write_sweep_csv(result, out / "sweep.csv")]
     figure = write_sweep_plot(result, out / "sweep.png", base.title)
     if figure is not None:

@@ -91,7 +91,8 @@ def command_uncertainty(args: argparse.Namespace) -> int:
         raise CaseError("the case states no uncertainties", file=str(case_path), key="uncertainty",
                         expected="an [uncertainty] table (README.md, \"Case files\")")
     from ..engine import simulate, stage_profile
-    from ..monte_carlo import MonteCarloStudy, SampleLog, run_samples, spec_chances, study_fingerprint
+    from ..monte_carlo import (MonteCarloStudy, SampleLog, needed_reflux_specs, run_samples, spec_chances,
+                               study_fingerprint)
     from ..results import write_atomic
     from ..sensitivity import sensitivity_study
     from ..sweep import load_document
@@ -124,7 +125,7 @@ def command_uncertainty(args: argparse.Namespace) -> int:
 
             outcomes = run_samples(document, str(case_path), linear.inputs, samples, stage_profile(nominal),
                                    (nominal.reflux_ratio, nominal.boilup_ratio), executor, progress=advance,
-                                   done=log.done)
+                                   done=log.done, distillate_rate=nominal.distillate_flow)
     except KeyboardInterrupt:
         stop_workers(executor)
         log.close()
@@ -138,8 +139,9 @@ def command_uncertainty(args: argparse.Namespace) -> int:
     executor.shutdown()
     log.close()
     outputs = linear.views[0][1].outputs
+    needed_specs = tuple(specs[0] for specs in needed_reflux_specs(case, nominal.distillate_flow))
     study = MonteCarloStudy(case.title, args.seed, linear.inputs, samples, clipped, outputs, tuple(outcomes), (),
-                            time.perf_counter() - started)
+                            time.perf_counter() - started, needed_specs)
     study = dataclasses.replace(study, chances=spec_chances(case, outputs, study.matrix("as_operated")))
     record = {**study.as_json(), "linear": linear.as_json()}
     written = [write_atomic(out / "uncertainty.json", json.dumps(record, indent=1) + "\n"),
@@ -151,6 +153,16 @@ def command_uncertainty(args: argparse.Namespace) -> int:
     for chance in study.chances:
         console.print(f"chance that {chance.output} is {chance.sense} {chance.target:g} at the design's reflux and "
                       f"boilup ratios: {chance.probability:.1%} ({chance.met} of {chance.converged} samples)")
+    for needed in study.reflux_needed():
+        stats = needed.statistics()
+        console.print(f"reflux ratio needed to meet {needed.key} = {needed.target:g} (the design's distillate rate "
+                      f"held): median {stats['p50']:.4g}, 2.5-97.5 % {stats['p2.5']:.4g} to {stats['p97.5']:.4g}, "
+                      f"95 % {stats['p95']:.4g} (design {nominal.reflux_ratio:.4g}; {len(needed.values)} of "
+                      f"{len(study.outcomes)} samples)")
+        if needed.unconverged:
+            console.print(f"{len(needed.unconverged)} sample(s) found no reflux meeting {needed.key}: "
+                          + "; ".join(f"sample {i}: {message}" for i, _, message in needed.unconverged[:LISTED])
+                          + (" ..." if len(needed.unconverged) > LISTED else ""))
     for view in ("as_specified", "as_operated"):
         failed = study.unconverged(view)
         if failed:

@@ -94,15 +94,15 @@ def equilibrium_x(y: float) -> float:
     return y / (ALPHA - (ALPHA - 1.0) * y)
 
 
-def smoker_stages(x0: float, xn: float, slope: float, intercept: float) -> float:
-    a2 = slope * (ALPHA - 1.0)
-    a1 = slope + intercept * (ALPHA - 1.0) - ALPHA
+def smoker_stages(x0: float, xn: float, slope: float, intercept: float, alpha: float = ALPHA) -> float:
+    a2 = slope * (alpha - 1.0)
+    a1 = slope + intercept * (alpha - 1.0) - alpha
     roots = np.roots([a2, a1, intercept])
     k = float(next(r.real for r in roots if abs(r.imag) < 1e-12 and -1e-9 < r.real < 1 + 1e-9))
-    c = 1.0 + (ALPHA - 1.0) * k
-    beta = slope * c * (ALPHA - 1.0) / (ALPHA - slope * c**2)
+    c = 1.0 + (alpha - 1.0) * k
+    beta = slope * c * (alpha - 1.0) / (alpha - slope * c**2)
     p0, pn = x0 - k, xn - k
-    return math.log((p0 * (1 - beta * pn)) / (pn * (1 - beta * p0))) / math.log(ALPHA / (slope * c**2))
+    return math.log((p0 * (1 - beta * pn)) / (pn * (1 - beta * p0))) / math.log(alpha / (slope * c**2))
 
 
 SCENARIOS = [

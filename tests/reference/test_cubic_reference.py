@@ -283,7 +283,7 @@ def test_ethylene_propylene_against_measured_vapor_and_critical_pressures():
     low, high = ETHYLENE_PROPYLENE_CRITICAL_PRESSURE_RANGE
     assert critical.min() == pytest.approx(low, rel=0.03)
     assert critical.max() == pytest.approx(high, rel=0.03)
-    tc, pc = par.critical_temperature, par.critical_pressure
+    tc = par.critical_temperature
     kay = []
     for T in ETHYLENE_PROPYLENE_TEMPERATURES:
         x_ethylene = (tc[1] - T) / (tc[1] - tc[0])  # Kay's T_pc = T

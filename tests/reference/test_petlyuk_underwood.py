@@ -124,7 +124,7 @@ def optimal_segment_middle(diagram) -> tuple[float, float]:
     prefractionator, the B/C root theta_B active) until the main column's top section, which
     needs ``alpha_A d_A / (alpha_A - phi)`` with ``phi`` the prefractionator's own top root
     between alpha_B and alpha_A, needs as much vapor as the B/C peak."""
-    (theta_a, theta_b), peak = diagram.roots, diagram.highest_peak.vapor_top
+    (_, theta_b), peak = diagram.roots, diagram.highest_peak.vapor_top
     a, d_a = ALPHA, FEED[0]
     phi = a[0] - a[0] * d_a / peak  # the top root at which the top section needs the peak
     # on the P_AC - P_BC line: V = a_A d_A/(a_A - theta_b) + a_B d_B/(a_B - theta_b), and at the

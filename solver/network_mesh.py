@@ -36,7 +36,7 @@ from .network_graph import NetworkGraph
 from .network_specs import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
 from .streams import FlashedFeed, StageProfile
 
-__all__ = ["ConnectionStream", "NetworkSystem", "SparseAssembly"]
+__all__ = ["ConnectionStream", "DeferredEvaluation", "NetworkSystem", "SparseAssembly"]
 
 
 @dataclass(frozen=True)
@@ -298,21 +298,12 @@ class NetworkSystem:
         return value, cols, vals
 
     # ------------------------------------------------------------------ evaluation
-    def _vapor_slot(self, T, y, vapor):
-        if not len(self.total_condensers):
-            return vapor.molar, vapor.d_dT, vapor.d_dx
-        h, dh_dT, g = vapor.molar.copy(), vapor.d_dT.copy(), vapor.d_dx.copy()
-        t = self.total_condensers
-        liquid = self.thermo.liquid_enthalpy(T[t], y[t], pressure=self.pressures[t])
-        h[t], dh_dT[t], g[t] = liquid.molar, liquid.d_dT, liquid.d_dx
-        return h, dh_dT, g
-
     def state(self, X: np.ndarray) -> tuple[StageState, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """(stage state, extras, transfer rates, U, W) at ``X``."""
         T, l, v, extras = self.unpack(X)
         rates = self.transfer_rates(extras)
         U, W = self.draws(rates)
-        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, self._vapor_slot)
+        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, None, self.total_condensers)
         return s, extras, rates, U, W
 
     def _transfer_inflows(self, s: StageState, rates: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -333,7 +324,8 @@ class NetworkSystem:
 
     def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
         """Scaled residuals at ``X`` (stage rows, then the spec, heat-link and return
-        temperature rows) and with ``jacobian`` their sparse analytic Jacobian."""
+        temperature rows) and with ``jacobian`` their sparse analytic Jacobian, built when it is
+        first read (a line-search trial that is rejected never builds it)."""
         s, extras, rates, U, W = self.state(X)
         duties = self.stage_duties_scaled(extras)
         balance, equilibrium, energy = mesh_residuals(
@@ -359,7 +351,7 @@ class NetworkSystem:
         residuals = np.concatenate([stage_residuals, np.array([extra_values[k] for k in order], dtype=float)])
         if not jacobian:
             return Evaluation(residuals, None)
-        return Evaluation(residuals, self._jacobian(s, extras, rates, U, W, bubble, [extra_entries[k] for k in order]))
+        return DeferredEvaluation(residuals, lambda: self._jacobian(s, extras, rates, U, W, bubble, [extra_entries[k] for k in order]))
 
     def _total_condenser_rows(self, s: StageState, equilibrium: np.ndarray):
         """Overwrite the total condensers' equilibrium rows: ``y_i = x_i`` (i < c) and the
@@ -483,10 +475,30 @@ class SparseAssembly:
         return rows.shape == self.rows.shape and np.array_equal(rows, self.rows) and np.array_equal(cols, self.cols)
 
     def matrix(self, vals: np.ndarray) -> sp.csc_matrix:
+        data = np.bincount(self.position.ravel(), weights=vals, minlength=len(self.template.indices))
+        if np.all(data):  # nothing to drop: the template's layout (copied: a caller may sort or prune in place)
+            template = self.template
+            return sp.csc_matrix((data, template.indices.copy(), template.indptr.copy()), shape=template.shape, copy=False)
         matrix = self.template.copy()
-        matrix.data = np.bincount(self.position.ravel(), weights=vals, minlength=len(matrix.indices))
+        matrix.data = data
         matrix.eliminate_zeros()
         return matrix
+
+
+class DeferredEvaluation:
+    """Residuals at once, the Jacobian built on its first reading (then kept): Newton reads the
+    Jacobian only at the points it accepts."""
+
+    __slots__ = ("residuals", "_build", "_jacobian")
+
+    def __init__(self, residuals: np.ndarray, build) -> None:
+        self.residuals, self._build, self._jacobian = residuals, build, None
+
+    @property
+    def jacobian(self) -> sp.csc_matrix:
+        if self._jacobian is None:
+            self._jacobian, self._build = self._build(), None
+        return self._jacobian
 
 
 def _edges(matrix: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:

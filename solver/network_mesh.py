@@ -30,7 +30,7 @@ from typing import Sequence
 import numpy as np
 import scipy.sparse as sp
 
-from .mesh import Evaluation, feed_sums_by_stage
+from .mesh import feed_sums_by_stage
 from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network_graph import NetworkGraph
 from .network_specs import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
@@ -322,10 +322,11 @@ class NetworkSystem:
         np.add.at(duties, self.extra_duty_stage[on_stage], extras[on_stage])
         return duties
 
-    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
+    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> DeferredEvaluation:
         """Scaled residuals at ``X`` (stage rows, then the spec, heat-link and return
-        temperature rows) and with ``jacobian`` their sparse analytic Jacobian, built when it is
-        first read (a line-search trial that is rejected never builds it)."""
+        temperature rows) and their sparse analytic Jacobian, built when it is first read
+        whatever ``jacobian`` says: a rejected line-search trial never builds it, an accepted
+        one builds it from the state its residuals were computed from."""
         s, extras, rates, U, W = self.state(X)
         duties = self.stage_duties_scaled(extras)
         balance, equilibrium, energy = mesh_residuals(
@@ -349,8 +350,6 @@ class NetworkSystem:
         order += list(range(len(self.specs), len(self.specs) + len(self.internal_rows)))
         stage_residuals = np.concatenate([balance, equilibrium, energy[:, None]], axis=1).ravel()
         residuals = np.concatenate([stage_residuals, np.array([extra_values[k] for k in order], dtype=float)])
-        if not jacobian:
-            return Evaluation(residuals, None)
         return DeferredEvaluation(residuals, lambda: self._jacobian(s, extras, rates, U, W, bubble, [extra_entries[k] for k in order]))
 
     def _total_condenser_rows(self, s: StageState, equilibrium: np.ndarray):
@@ -487,7 +486,7 @@ class SparseAssembly:
 
 class DeferredEvaluation:
     """Residuals at once, the Jacobian built on its first reading (then kept): Newton reads the
-    Jacobian only at the points it accepts."""
+    Jacobian only at the points it accepts. ``has_jacobian`` says whether it was built."""
 
     __slots__ = ("residuals", "_build", "_jacobian")
 
@@ -499,6 +498,10 @@ class DeferredEvaluation:
         if self._jacobian is None:
             self._jacobian, self._build = self._build(), None
         return self._jacobian
+
+    @property
+    def has_jacobian(self) -> bool:
+        return self._jacobian is not None
 
 
 def _edges(matrix: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:

@@ -36,3 +36,36 @@ def test_audit_of_the_petlyuk_case(tmp_path, capsys):
     reboiler = [s for s in data["stages"] if s["role"] == "reboiler"]
     assert len(reboiler) == 1 and audit["rigorous_boilup"] == pytest.approx(reboiler[0]["V"], rel=1e-12)
     assert audit["boilup_over_minimum"] == pytest.approx(audit["rigorous_boilup"] / audit["petlyuk_minimum_boilup"], rel=1e-12)
+
+
+#: an invented component (Antoine constants of our own, boiling near 363 K) with no heat
+#: capacity and no heat of vaporization: only the ``cmo`` enthalpy model can take it
+SOLVENT_A = """
+[components.data.solvent_a]
+molar_mass = "0.08 kg/mol"
+critical_temperature = "560 K"
+critical_pressure = "4.5 MPa"
+vapor_pressure = { form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "500 K" }
+source = "invented for this test"
+"""
+
+
+def test_audit_under_cmo_enthalpies_with_a_component_without_heat_data(tmp_path, capsys):
+    """The diagram's q comes from the feed as the engine flashes it under the case's enthalpy
+    model: a saturated-liquid feed has q = 1 (by definition) without any rigorous enthalpy."""
+    text = PETLYUK.read_text().replace('names = ["benzene", "toluene", "o-xylene"]', 'names = ["solvent_a", "toluene", "o-xylene"]\n' + SOLVENT_A)
+    text = text.replace('enthalpy = "rigorous"', 'enthalpy = "cmo"').replace("benzene = 0.33", "solvent_a = 0.33")
+    path = tmp_path / "petlyuk_cmo.toml"
+    path.write_text(text)
+    assert main(["audit", str(path), "--out", str(tmp_path / "out")]) == 0
+    data = json.loads((tmp_path / "out" / "result.json").read_text())
+    audit = data["audit"]
+    assert data["converged"] and audit["q"] == 1.0
+    assert audit["components"] == ["solvent_a", "toluene", "o-xylene"]
+    case = load_case(path)
+    order = [case.component_names.index(name) for name in audit["components"]]
+    feed = case.feeds[0].flow * np.asarray(case.feeds[0].composition)[order]
+    diagram = minimum_vapor_diagram(np.array(audit["relative_volatility"]), feed, 1.0)
+    assert audit["petlyuk_minimum_vapor"] == pytest.approx(diagram.petlyuk_minimum_vapor, rel=1e-12)
+    # a saturated-liquid feed: the minimum boilup is the minimum vapor (V_bottom = V_top - (1 - q) F)
+    assert audit["petlyuk_minimum_boilup"] == pytest.approx(audit["petlyuk_minimum_vapor"], rel=1e-12)

@@ -12,7 +12,7 @@ import pytest
 sys.path.insert(0, str(Path(__file__).parent))
 from network_hard_cases import NETWORK_HARD_CASES  # noqa: E402
 from solver.case import loads_case
-from solver.network_engine import simulate_network
+from solver.network_engine import FIRST_START_ITERATIONS, simulate_network
 
 
 def test_the_network_suite_has_ten_cases():
@@ -26,9 +26,19 @@ def test_network_hard_case_converges(name):
     assert result.post_check["enthalpy_balance_max"] < 1e-8
     assert result.post_check["component_balance_max"] < 1e-8
     assert result.strategy["rung"] in ("newton", "damped newton", "second start", "continued")
+    # the reported count is the last run's; every run of the chain is listed, with the total
+    steps = result.iterations_by_step
+    assert steps[-1][1] == result.iterations and len(result.iteration_log) == result.iterations + 1
+    assert [name for name, _ in steps] == {"second start": ["newton", "second_start"], "continued": ["newton", "second_start", "continued"]}.get(
+        result.strategy["rung"], ["newton"])
+    assert result.total_iterations == sum(n for _, n in steps) == result.to_dict()["total_iterations"]
 
 
 def test_divided_wall_column_of_120_stages():
     result = simulate_network(loads_case(NETWORK_HARD_CASES["divided_wall_120"], source_file="<divided wall>"))
     assert result.stage_count == 120 and result.converged
     assert result.iterations <= 12, result.strategy
+    if result.strategy["rung"] == "second start":  # the first start's budget ran out before the second start's run
+        assert result.iterations_by_step == (("newton", FIRST_START_ITERATIONS), ("second_start", result.iterations))
+        assert result.to_dict()["iterations_by_step"] == [{"step": "newton", "iterations": FIRST_START_ITERATIONS},
+                                                          {"step": "second_start", "iterations": result.iterations}]

@@ -461,27 +461,32 @@ class SparseAssembly:
     """The CSC layout of a fixed list of (row, column) entries, duplicates summed, found once;
     each later matrix with the same entries only sums its values into place (``np.bincount``)
     instead of sorting the triplets again. Entries that sum to exactly zero are dropped, as a
-    triplet build without zero values drops them."""
+    triplet build without zero values drops them; the layout of the last set of nonzeros is
+    kept, since it seldom changes from one Newton point to the next."""
 
     def __init__(self, rows: np.ndarray, cols: np.ndarray, size: int) -> None:
-        self.rows, self.cols = rows, cols
-        unique, self.position = np.unique(cols.astype(np.int64) * size + rows, return_inverse=True)
-        indptr = np.concatenate([[0], np.cumsum(np.bincount(unique // size, minlength=size))])
-        self.template = sp.csc_matrix((np.zeros(len(unique)), (unique % size).astype(np.int32), indptr.astype(np.int32)),
-                                      shape=(size, size))
+        self.rows, self.cols, self.size = rows, cols, size
+        unique, position = np.unique(cols.astype(np.int64) * size + rows, return_inverse=True)
+        self.position = position.ravel()
+        self.entry_rows = (unique % size).astype(np.int32)
+        self.entry_columns = unique // size
+        self._nonzero_layout: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray] | None = None
 
     def matches(self, rows: np.ndarray, cols: np.ndarray) -> bool:
         return rows.shape == self.rows.shape and np.array_equal(rows, self.rows) and np.array_equal(cols, self.cols)
 
     def matrix(self, vals: np.ndarray) -> sp.csc_matrix:
-        data = np.bincount(self.position.ravel(), weights=vals, minlength=len(self.template.indices))
-        if np.all(data):  # nothing to drop: the template's layout (copied: a caller may sort or prune in place)
-            template = self.template
-            return sp.csc_matrix((data, template.indices.copy(), template.indptr.copy()), shape=template.shape, copy=False)
-        matrix = self.template.copy()
-        matrix.data = data
-        matrix.eliminate_zeros()
-        return matrix
+        data = np.bincount(self.position, weights=vals, minlength=len(self.entry_rows))
+        nonzero = data != 0
+        layout = self._nonzero_layout
+        if layout is None or not np.array_equal(nonzero, layout[0]):
+            kept = np.flatnonzero(nonzero)
+            indptr = np.zeros(self.size + 1, dtype=np.int32)
+            np.cumsum(np.bincount(self.entry_columns[kept], minlength=self.size), out=indptr[1:])
+            layout = self._nonzero_layout = (nonzero, kept, self.entry_rows[kept], indptr)
+        _, kept, indices, indptr = layout
+        # the index arrays copied: a caller may sort or prune the matrix in place
+        return sp.csc_matrix((data[kept], indices.copy(), indptr.copy()), shape=(self.size, self.size), copy=False)
 
 
 class DeferredEvaluation:

@@ -97,6 +97,7 @@ class NetworkSystem:
         self.size = self.stage_size + len(self.extra_names)
         self._build_patterns()
         self._assembly: SparseAssembly | None = None  # the Jacobian's layout, found at its first assembly
+        self._assembly_pieces: list[np.ndarray] = []  # the row and column pieces it was found from
 
     # ------------------------------------------------------------------ structure
     def _build_streams(self, network) -> None:
@@ -406,10 +407,10 @@ class NetworkSystem:
             rows.append(np.full(len(entry_cols), self.stage_size + k))
             cols.append(np.asarray(entry_cols, dtype=int))
             vals.append(np.asarray(entry_vals, dtype=float))
-        rows, cols, vals = np.concatenate(rows), np.concatenate(cols), np.concatenate(vals)
-        if self._assembly is None or not self._assembly.matches(rows, cols):
-            self._assembly = SparseAssembly(rows, cols, self.size)
-        return self._assembly.matrix(vals)
+        if self._assembly is None or not _same_pieces(rows + cols, self._assembly_pieces):
+            self._assembly = SparseAssembly(np.concatenate(rows), np.concatenate(cols), self.size)
+            self._assembly_pieces = rows + cols
+        return self._assembly.matrix(np.concatenate(vals))
 
     def _transfer_blocks(self, s: StageState, rates, gLx, gVy) -> np.ndarray:
         """(M, w, w): derivatives of a rate connection's destination rows with respect to the
@@ -507,6 +508,12 @@ class DeferredEvaluation:
     @property
     def has_jacobian(self) -> bool:
         return self._jacobian is not None
+
+
+def _same_pieces(pieces: list[np.ndarray], known: list[np.ndarray]) -> bool:
+    """Whether two lists of index arrays hold the same entries (the fixed patterns are the same
+    objects each time, the rest short)."""
+    return len(pieces) == len(known) and all(a is b or np.array_equal(a, b) for a, b in zip(pieces, known))
 
 
 def _edges(matrix: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:

@@ -9,6 +9,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from conftest import USER_SOLVENT_A
 from solver.case import load_case
 from solver.cli import main
 from solver.shortcut.vmin_diagram import minimum_vapor_diagram
@@ -38,22 +39,10 @@ def test_audit_of_the_petlyuk_case(tmp_path, capsys):
     assert audit["boilup_over_minimum"] == pytest.approx(audit["rigorous_boilup"] / audit["petlyuk_minimum_boilup"], rel=1e-12)
 
 
-#: an invented component (Antoine constants of our own, boiling near 363 K) with no heat
-#: capacity and no heat of vaporization: only the ``cmo`` enthalpy model can take it
-SOLVENT_A = """
-[components.data.solvent_a]
-molar_mass = "0.08 kg/mol"
-critical_temperature = "560 K"
-critical_pressure = "4.5 MPa"
-vapor_pressure = { form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "500 K" }
-source = "invented for this test"
-"""
-
-
-def test_audit_under_cmo_enthalpies_with_a_component_without_heat_data(tmp_path, capsys):
+def test_audit_under_cmo_enthalpies_with_a_component_without_heat_data(tmp_path):
     """The diagram's q comes from the feed as the engine flashes it under the case's enthalpy
     model: a saturated-liquid feed has q = 1 (by definition) without any rigorous enthalpy."""
-    text = PETLYUK.read_text().replace('names = ["benzene", "toluene", "o-xylene"]', 'names = ["solvent_a", "toluene", "o-xylene"]\n' + SOLVENT_A)
+    text = PETLYUK.read_text().replace('names = ["benzene", "toluene", "o-xylene"]', 'names = ["solvent_a", "toluene", "o-xylene"]\n' + USER_SOLVENT_A.format(t_max="500 K"))
     text = text.replace('enthalpy = "rigorous"', 'enthalpy = "cmo"').replace("benzene = 0.33", "solvent_a = 0.33")
     path = tmp_path / "petlyuk_cmo.toml"
     path.write_text(text)

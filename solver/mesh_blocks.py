@@ -55,29 +55,52 @@ class StageState:
 
 
 def stage_state(thermo, T: np.ndarray, l: np.ndarray, v: np.ndarray, pressures: np.ndarray, vapor_inflow,
-                U: np.ndarray, W: np.ndarray, vapor_slot: Callable) -> StageState:
+                U: np.ndarray, W: np.ndarray, vapor_slot: Callable | None, liquid_slots: np.ndarray | None = None) -> StageState:
     """The state of every stage: ``vapor_slot(T, y, vapor)`` gives (h, dh/dT, dh/dy) of the
     stream in each stage's vapor slot from the vapor's properties (a total condenser's slot
-    holds liquid)."""
+    holds liquid). Or, without ``vapor_slot``, the stages ``liquid_slots`` hold liquid of the
+    vapor's composition in their vapor slots, evaluated in the same call of the thermo package
+    as every stage (one call instead of two)."""
     L = l.sum(axis=1)
     V = v.sum(axis=1)
     L_safe = np.maximum(L, TINY)
     V_safe = np.maximum(V, TINY)
     x = l / L_safe[:, None]
     y = v / V_safe[:, None]
-    props = thermo.stage_properties(T, pressures, x, y)
-    h_V, dh_V_dT, dh_V_dx = vapor_slot(T, y, props.vapor)
+    if vapor_slot is not None:
+        props = thermo.stage_properties(T, pressures, x, y)
+        h_V, dh_V_dT, dh_V_dx = vapor_slot(T, y, props.vapor)
+    else:
+        props, (h_V, dh_V_dT, dh_V_dx) = _with_liquid_slots(thermo, T, pressures, x, y, liquid_slots)
     vapor_in = vapor_inflow @ v
     V_in_safe = np.maximum(vapor_in.sum(axis=1), TINY)
+    n, kv, liquid = len(T), props.k_values, props.liquid  # rows n: are liquid slots' (none with vapor_slot)
     return StageState(
         T=T, l=l, v=v, L=L, V=V, L_safe=L_safe, V_safe=V_safe, x=x, y=y,
-        K=props.k_values.K, dlnK_dT=props.k_values.d_ln_K_dT, dlnK_dx=props.k_values.d_ln_K_dx,
-        dlnK_dy=props.k_values.d_ln_K_dy,
-        h_L=props.liquid.molar, dh_L_dT=props.liquid.d_dT, dh_L_dx=props.liquid.d_dx,
+        K=kv.K[:n], dlnK_dT=kv.d_ln_K_dT[:n], dlnK_dx=kv.d_ln_K_dx[:n],
+        dlnK_dy=None if kv.d_ln_K_dy is None else kv.d_ln_K_dy[:n],
+        h_L=liquid.molar[:n], dh_L_dT=liquid.d_dT[:n], dh_L_dx=liquid.d_dx[:n],
         h_V=h_V, dh_V_dT=dh_V_dT, dh_V_dx=dh_V_dx,
         liquid_draw_ratio=U / L_safe, vapor_draw_ratio=W / V_safe,
         vapor_in=vapor_in, V_in_safe=V_in_safe, y_in=vapor_in / V_in_safe[:, None],
     )
+
+
+def _with_liquid_slots(thermo, T, pressures, x, y, slots):
+    """The stage properties of every stage, with the stages ``slots`` appended as liquid of
+    composition ``y`` (rows ``len(T):``), and the (h, dh/dT, dh/dy) of each vapor slot."""
+    n = len(T)
+    slots = np.asarray(slots if slots is not None else [], dtype=int)
+    if not len(slots):
+        props = thermo.stage_properties(T, pressures, x, y)
+        return props, (props.vapor.molar, props.vapor.d_dT, props.vapor.d_dx)
+    y_slots = y[slots]
+    props = thermo.stage_properties(np.concatenate([T, T[slots]]), np.concatenate([pressures, pressures[slots]]),
+                                    np.concatenate([x, y_slots]), np.concatenate([y, y_slots]))
+    liquid, vapor = props.liquid, props.vapor
+    h, dh_dT, g = vapor.molar[:n].copy(), vapor.d_dT[:n].copy(), vapor.d_dx[:n].copy()
+    h[slots], dh_dT[slots], g[slots] = liquid.molar[n:], liquid.d_dT[n:], liquid.d_dx[n:]
+    return props, (h, dh_dT, g)
 
 
 def mesh_residuals(s: StageState, liquid_inflow, vapor_inflow, U: np.ndarray, W: np.ndarray, E: np.ndarray,

@@ -199,7 +199,19 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
         transfer_liquid=transfer_liquid, transfer_vapor=transfer_vapor, duty=system.stage_duties(newton.X),
         stage_feeds=tuple(feeds_at), products=products, duties=duties, connections=connections, thermo=thermo.describe(),
         iteration_log=tuple(r.as_dict() for r in newton.log), enthalpy_model=thermo.enthalpy_model, strategy=strategy,
+        iterations_by_step=_newton_steps(strategy),
     )
+
+
+def _newton_steps(strategy: dict[str, Any]) -> tuple[tuple[str, int], ...]:
+    """(step, Newton iterations) of every run the strategy records, in the order run: the first
+    run at its top level ("newton"), each later step as an entry with its own count, and each
+    point of a homotopy path ("homotopy t=...")."""
+    steps = [("newton", int(strategy["newton_iterations"]))] if "newton_iterations" in strategy else []
+    steps += [(name, int(entry["newton_iterations"])) for name, entry in strategy.items()
+              if isinstance(entry, dict) and "newton_iterations" in entry]
+    steps += [(f"homotopy t={point['t']:.4g}", int(point["iterations"])) for point in strategy.get("homotopy_path", ())]
+    return tuple(steps)
 
 
 def network_post_check(result: NetworkResult, system: NetworkSystem) -> dict[str, float]:

@@ -32,13 +32,13 @@ from typing import Sequence
 import numpy as np
 import scipy.sparse as sp
 
-from .mesh import Evaluation, feed_sums_by_stage
+from .mesh import feed_sums_by_stage
 from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network_graph import NetworkGraph
 from .network_specs import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
 from .streams import FlashedFeed, StageProfile
 
-__all__ = ["ConnectionStream", "NetworkSystem", "SparseAssembly"]
+__all__ = ["ConnectionStream", "DeferredEvaluation", "NetworkSystem", "SparseAssembly"]
 
 
 @dataclass(frozen=True)
@@ -106,6 +106,7 @@ class NetworkSystem:
         self.size = self.stage_size + len(self.extra_names)
         self._build_patterns()
         self._assembly: SparseAssembly | None = None  # the Jacobian's layout, found at its first assembly
+        self._assembly_pieces: list[np.ndarray] = []  # the row and column pieces it was found from
 
     # ------------------------------------------------------------------ structure
     def _build_streams(self, network) -> None:
@@ -319,21 +320,12 @@ class NetworkSystem:
         return value, cols, vals
 
     # ------------------------------------------------------------------ evaluation
-    def _vapor_slot(self, T, y, vapor):
-        if not len(self.total_condensers):
-            return vapor.molar, vapor.d_dT, vapor.d_dx
-        h, dh_dT, g = vapor.molar.copy(), vapor.d_dT.copy(), vapor.d_dx.copy()
-        t = self.total_condensers
-        liquid = self.thermo.liquid_enthalpy(T[t], y[t], pressure=self.pressures[t])
-        h[t], dh_dT[t], g[t] = liquid.molar, liquid.d_dT, liquid.d_dx
-        return h, dh_dT, g
-
     def state(self, X: np.ndarray) -> tuple[StageState, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """(stage state, extras, transfer rates, U, W) at ``X``."""
         T, l, v, extras = self.unpack(X)
         rates = self.transfer_rates(extras)
         U, W = self.draws(rates)
-        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, self._vapor_slot)
+        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, None, self.total_condensers)
         return s, extras, rates, U, W
 
     def _transfer_inflows(self, s: StageState, rates: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -352,9 +344,11 @@ class NetworkSystem:
         np.add.at(duties, self.extra_duty_stage[on_stage], extras[on_stage])
         return duties
 
-    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> Evaluation:
+    def evaluate(self, X: np.ndarray, jacobian: bool = True) -> DeferredEvaluation:
         """Scaled residuals at ``X`` (stage rows, then the spec, heat-link and return
-        temperature rows) and with ``jacobian`` their sparse analytic Jacobian."""
+        temperature rows) and their sparse analytic Jacobian, built when it is first read
+        whatever ``jacobian`` says: a rejected line-search trial never builds it, an accepted
+        one builds it from the state its residuals were computed from."""
         s, extras, rates, U, W = self.state(X)
         duties = self.stage_duties_scaled(extras)
         balance, equilibrium, energy = mesh_residuals(
@@ -381,9 +375,7 @@ class NetworkSystem:
         order += list(range(len(self.specs), len(self.specs) + len(self.internal_rows)))
         stage_residuals = np.concatenate([balance, equilibrium, energy[:, None]], axis=1).ravel()
         residuals = np.concatenate([stage_residuals, np.array([extra_values[k] for k in order], dtype=float)])
-        if not jacobian:
-            return Evaluation(residuals, None)
-        return Evaluation(residuals, self._jacobian(s, extras, rates, U, W, bubble, [extra_entries[k] for k in order]))
+        return DeferredEvaluation(residuals, lambda: self._jacobian(s, extras, rates, U, W, bubble, [extra_entries[k] for k in order]))
 
     def _total_condenser_rows(self, s: StageState, equilibrium: np.ndarray):
         """Overwrite the total condensers' equilibrium rows: ``y_i = x_i`` (i < c) and the
@@ -444,10 +436,10 @@ class NetworkSystem:
             rows.append(np.full(len(entry_cols), self.stage_size + k))
             cols.append(np.asarray(entry_cols, dtype=int))
             vals.append(np.asarray(entry_vals, dtype=float))
-        rows, cols, vals = np.concatenate(rows), np.concatenate(cols), np.concatenate(vals)
-        if self._assembly is None or not self._assembly.matches(rows, cols):
-            self._assembly = SparseAssembly(rows, cols, self.size)
-        return self._assembly.matrix(vals)
+        if self._assembly is None or not _same_pieces(rows + cols, self._assembly_pieces):
+            self._assembly = SparseAssembly(np.concatenate(rows), np.concatenate(cols), self.size)
+            self._assembly_pieces = rows + cols
+        return self._assembly.matrix(np.concatenate(vals))
 
     def _transfer_blocks(self, s: StageState, rates, gLx, gVy) -> np.ndarray:
         """(M, w, w): derivatives of a rate connection's destination rows with respect to the
@@ -499,23 +491,58 @@ class SparseAssembly:
     """The CSC layout of a fixed list of (row, column) entries, duplicates summed, found once;
     each later matrix with the same entries only sums its values into place (``np.bincount``)
     instead of sorting the triplets again. Entries that sum to exactly zero are dropped, as a
-    triplet build without zero values drops them."""
+    triplet build without zero values drops them; the layout of the last set of nonzeros is
+    kept, since it seldom changes from one Newton point to the next."""
 
     def __init__(self, rows: np.ndarray, cols: np.ndarray, size: int) -> None:
-        self.rows, self.cols = rows, cols
-        unique, self.position = np.unique(cols.astype(np.int64) * size + rows, return_inverse=True)
-        indptr = np.concatenate([[0], np.cumsum(np.bincount(unique // size, minlength=size))])
-        self.template = sp.csc_matrix((np.zeros(len(unique)), (unique % size).astype(np.int32), indptr.astype(np.int32)),
-                                      shape=(size, size))
+        self.rows, self.cols, self.size = rows, cols, size
+        unique, position = np.unique(cols.astype(np.int64) * size + rows, return_inverse=True)
+        self.position = position.ravel()
+        self.entry_rows = (unique % size).astype(np.int32)
+        self.entry_columns = unique // size
+        self._nonzero_layout: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray] | None = None
 
     def matches(self, rows: np.ndarray, cols: np.ndarray) -> bool:
         return rows.shape == self.rows.shape and np.array_equal(rows, self.rows) and np.array_equal(cols, self.cols)
 
     def matrix(self, vals: np.ndarray) -> sp.csc_matrix:
-        matrix = self.template.copy()
-        matrix.data = np.bincount(self.position.ravel(), weights=vals, minlength=len(matrix.indices))
-        matrix.eliminate_zeros()
-        return matrix
+        data = np.bincount(self.position, weights=vals, minlength=len(self.entry_rows))
+        nonzero = data != 0
+        layout = self._nonzero_layout
+        if layout is None or not np.array_equal(nonzero, layout[0]):
+            kept = np.flatnonzero(nonzero)
+            indptr = np.zeros(self.size + 1, dtype=np.int32)
+            np.cumsum(np.bincount(self.entry_columns[kept], minlength=self.size), out=indptr[1:])
+            layout = self._nonzero_layout = (nonzero, kept, self.entry_rows[kept], indptr)
+        _, kept, indices, indptr = layout
+        # the index arrays copied: a caller may sort or prune the matrix in place
+        return sp.csc_matrix((data[kept], indices.copy(), indptr.copy()), shape=(self.size, self.size), copy=False)
+
+
+class DeferredEvaluation:
+    """Residuals at once, the Jacobian built on its first reading (then kept): Newton reads the
+    Jacobian only at the points it accepts. ``has_jacobian`` says whether it was built."""
+
+    __slots__ = ("residuals", "_build", "_jacobian")
+
+    def __init__(self, residuals: np.ndarray, build) -> None:
+        self.residuals, self._build, self._jacobian = residuals, build, None
+
+    @property
+    def jacobian(self) -> sp.csc_matrix:
+        if self._jacobian is None:
+            self._jacobian, self._build = self._build(), None
+        return self._jacobian
+
+    @property
+    def has_jacobian(self) -> bool:
+        return self._jacobian is not None
+
+
+def _same_pieces(pieces: list[np.ndarray], known: list[np.ndarray]) -> bool:
+    """Whether two lists of index arrays hold the same entries (the fixed patterns are the same
+    objects each time, the rest short)."""
+    return len(pieces) == len(known) and all(a is b or np.array_equal(a, b) for a, b in zip(pieces, known))
 
 
 def _edges(matrix: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray]:

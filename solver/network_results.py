@@ -35,7 +35,7 @@ class NetworkResult:
     title: str
     case: Mapping[str, Any]
     converged: bool
-    iterations: int
+    iterations: int  # Newton iterations of the run whose point is reported (the last step of the fallback chain)
     residual_norm: float
     message: str
     components: tuple[str, ...]
@@ -68,6 +68,13 @@ class NetworkResult:
     post_check: Mapping[str, float] = field(default_factory=dict)
     strategy: Mapping[str, Any] = field(default_factory=dict)
     extra: Mapping[str, Any] = field(default_factory=dict)  # "audit": findings attached downstream (each with as_json)
+    iterations_by_step: tuple[tuple[str, int], ...] = ()  # every Newton run of the fallback chain, in order
+
+    @property
+    def total_iterations(self) -> int:
+        """Newton iterations of every step of the fallback chain together (``iterations`` counts
+        only the last)."""
+        return sum(n for _, n in self.iterations_by_step) if self.iterations_by_step else self.iterations
 
     @property
     def stage_count(self) -> int:
@@ -127,6 +134,8 @@ class NetworkResult:
             "case": self.case,
             "converged": self.converged,
             "iterations": self.iterations,
+            "total_iterations": self.total_iterations,
+            "iterations_by_step": [{"step": name, "iterations": n} for name, n in self.iterations_by_step],
             "residual_norm": self.residual_norm,
             "message": self.message,
             "solution_strategy": dict(self.strategy),

@@ -166,6 +166,10 @@ def solve(
     for iteration in range(1, options.max_iterations + 1):
         if norm <= options.tolerance:
             return NewtonResult(X, current.residuals, True, iteration - 1, norm, tuple(log), "converged")
+        # the Jacobian of the point accepted last, only now that it is needed (an evaluation that
+        # builds it on first reading never builds it at the converged point)
+        if current.jacobian is None:  # a shortened step's residuals-only trial
+            current = evaluate(X, True)
         step, trouble = _newton_step(current)
         if step is None:
             return stopped(iteration - 1, trouble)
@@ -182,8 +186,6 @@ def solve(
                     "neither the Newton step nor the steepest-descent path lowers the residuals "
                     f"(largest residual {norm:.3g} in the {describe_equation(int(np.argmax(np.abs(current.residuals))))})",
                 )
-        if accepted[1].jacobian is None:
-            accepted = (accepted[0], evaluate(accepted[0], True), accepted[2])
         X_new, current, used = accepted
         step_norm = float(np.max(np.abs(X_new - X)))
         X = X_new

@@ -20,6 +20,19 @@ def case_from_text(text: str, name: str = "<test case>"):
     return loads_case(textwrap.dedent(text), source_file=name)
 
 
+#: an invented component (Antoine constants of our own, boiling at 362.95 K) with no heat
+#: capacity and no heat of vaporization: only the ``cmo`` enthalpy model can take it; ``t_max``
+#: the top of its vapor-pressure range
+USER_SOLVENT_A = """
+[components.data.solvent_a]
+molar_mass = "0.08 kg/mol"
+critical_temperature = "560 K"
+critical_pressure = "4.5 MPa"
+vapor_pressure = {{ form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "{t_max}" }}
+source = "invented for this test"
+"""
+
+
 BINARY_NRTL = """
 title = "methanol-water test column"
 [components]

@@ -23,6 +23,9 @@ def test_homotopy_solves_a_network_whose_starts_fail():
     assert result.strategy["second_start"]["converged"] is False
     assert result.strategy["rung"] == "homotopy"
     assert result.strategy["homotopy_reached"] == 1.0
+    steps = result.iterations_by_step
+    assert steps[-1] == ("homotopy t=1", result.iterations) and [name for name, _ in steps[:2]] == ["newton", "second_start"]
+    assert result.total_iterations == sum(n for _, n in steps) > result.iterations
     assert result.converged and result.post_check["component_balance_max"] < 1e-8
     reference = simulate_network(case)
     assert reference.strategy["rung"] == "newton"

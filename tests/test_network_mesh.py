@@ -172,4 +172,9 @@ def test_cached_jacobian_layout_gives_the_triplet_matrix():
         assert built.has_sorted_indices and built.nnz == expected.nnz
         assert np.array_equal(built.indptr, expected.indptr) and np.array_equal(built.indices, expected.indices)
         np.testing.assert_allclose(built.data, expected.data, rtol=1e-13, atol=1e-15)
+    # the same nonzeros again: the kept layout, not shared with a matrix handed out before
+    built.indices[:], built.indptr[:] = 0, 0
+    again = assembly.matrix(vals)
+    assert np.array_equal(again.indptr, expected.indptr) and np.array_equal(again.indices, expected.indices)
+    np.testing.assert_allclose(again.data, expected.data, rtol=1e-13, atol=1e-15)
     assert assembly.matches(rows, cols) and not assembly.matches(rows[::-1], cols)

@@ -10,6 +10,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from conftest import USER_SOLVENT_A
 from solver.case import load_case
 from solver.cli import main
 from solver.shortcut.vmin_diagram import minimum_vapor_diagram
@@ -107,3 +108,24 @@ def test_the_sequences_need_three_products():
     audit = network_vmin_audit(case, result)
     assert result.converged and audit.sequences == () and audit.best_sequence is None and audit.rigorous_saving is None
     assert "three products" in audit.sequence_note and "has 2" in audit.sequence_note
+
+
+def test_audit_under_cmo_enthalpies_with_a_component_without_heat_data(tmp_path):
+    """The diagram's q comes from the feed as the engine flashes it under the case's enthalpy
+    model: a saturated-liquid feed has q = 1 (by definition) without any rigorous enthalpy."""
+    text = PETLYUK.read_text().replace('names = ["benzene", "toluene", "o-xylene"]', 'names = ["solvent_a", "toluene", "o-xylene"]\n' + USER_SOLVENT_A.format(t_max="500 K"))
+    text = text.replace('enthalpy = "rigorous"', 'enthalpy = "cmo"').replace("benzene = 0.33", "solvent_a = 0.33")
+    path = tmp_path / "petlyuk_cmo.toml"
+    path.write_text(text)
+    assert main(["audit", str(path), "--out", str(tmp_path / "out")]) == 0
+    data = json.loads((tmp_path / "out" / "result.json").read_text())
+    audit = data["audit"]
+    assert data["converged"] and audit["q"] == 1.0
+    assert audit["components"] == ["solvent_a", "toluene", "o-xylene"]
+    case = load_case(path)
+    order = [case.component_names.index(name) for name in audit["components"]]
+    feed = case.feeds[0].flow * np.asarray(case.feeds[0].composition)[order]
+    diagram = minimum_vapor_diagram(np.array(audit["relative_volatility"]), feed, 1.0)
+    assert audit["petlyuk_minimum_vapor"] == pytest.approx(diagram.petlyuk_minimum_vapor, rel=1e-12)
+    # a saturated-liquid feed: the minimum boilup is the minimum vapor (V_bottom = V_top - (1 - q) F)
+    assert audit["petlyuk_minimum_boilup"] == pytest.approx(audit["petlyuk_minimum_vapor"], rel=1e-12)

@@ -14,7 +14,7 @@ import CoolProp.CoolProp as CP
 import numpy as np
 import pytest
 
-from conftest import case_from_text, methanol_water_case
+from conftest import USER_SOLVENT_A, case_from_text, methanol_water_case
 from solver.components import component_info
 from solver.thermo.activity import NRTL, UNIQUAC, IdealSolution, Wilson
 from solver.thermo.package import KValues, PhaseEnthalpy, StageProperties, ThermoPackage
@@ -510,14 +510,7 @@ def test_saturation_temperatures_match_coolprop(pure):
     np.testing.assert_allclose(above[0], pure.critical_temperature)
 
 
-USER_LIGHT = """
-[components.data.solvent_a]
-molar_mass = "0.08 kg/mol"
-critical_temperature = "560 K"
-critical_pressure = "4.5 MPa"
-vapor_pressure = {{ form = "antoine", A = 4.0, B = 1250.0, C = -50.0, base = 10, pressure_unit = "bar", temperature_unit = "K", T_min = "280 K", T_max = "{t_max}" }}
-source = "invented for this test"
-"""
+USER_LIGHT = USER_SOLVENT_A
 
 
 def _user_case(t_max: str, enthalpy: str = "cmo"):

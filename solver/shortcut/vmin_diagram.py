@@ -36,9 +36,9 @@ import numpy as np
 
 from ..case import Case
 from ..errors import SpecError
+from ..feed_flash import flash_feed_list
 from ..thermo.flash import bubble_temperature
 from ..thermo.package import ThermoPackage
-from .simple_column import feed_condition
 from .underwood import underwood_roots
 
 __all__ = [
@@ -193,8 +193,10 @@ def minimum_vapor_diagram(relative_volatility, feed_flows, q: float) -> VminDiag
 
 def case_minimum_vapor_diagram(case: Case, thermo: ThermoPackage | None = None) -> tuple[tuple[str, ...], VminDiagram]:
     """The Vmin diagram of a case's single feed: relative volatilities from the K-values at the
-    feed's bubble point at its stage's pressure (relative to the heaviest component), q from the
-    feed's enthalpy as the multicomponent shortcut takes it. Returns the component names in order
+    feed's bubble point at its stage's pressure (relative to the heaviest component), q as the
+    rigorous engine flashes the feed (:func:`solver.feed_flash.flash_feed_list`: under the
+    ``cmo`` enthalpy model a feed whose rigorous enthalpies are not known is judged by its
+    phase alone). Returns the component names in order
     of falling volatility (the diagram's order) and the diagram; flows mol/s."""
     if len(case.feeds) != 1:
         raise SpecError(f"{case.source_file or '<case>'}: feeds: the Vmin diagram takes one feed; this case has {len(case.feeds)}")
@@ -206,6 +208,6 @@ def case_minimum_vapor_diagram(case: Case, thermo: ThermoPackage | None = None) 
     K = thermo.k_values(np.atleast_1d(bubble), pressure, z[None, :], derivatives=False).K[0]
     order = np.argsort(-K)
     alpha = K[order] / K[order[-1]]
-    q = float(feed_condition(case, thermo).q)
+    q = float(flash_feed_list([feed], thermo, [float(pressure[0])], source_file=case.source_file or "")[0].q)
     names = tuple(case.component_names[i] for i in order)
     return names, minimum_vapor_diagram(alpha, feed.flow * z[order], q)

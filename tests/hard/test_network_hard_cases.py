@@ -26,6 +26,15 @@ def test_network_hard_case_converges(name):
     assert result.post_check["enthalpy_balance_max"] < 1e-8
     assert result.post_check["component_balance_max"] < 1e-8
     assert result.strategy["rung"] in ("newton", "damped newton", "second start", "continued", "homotopy")
+    # the reported count is the last run's; every run of the chain is listed, with the total
+    steps = result.iterations_by_step
+    assert steps[-1][1] == result.iterations and len(result.iteration_log) == result.iterations + 1
+    if result.strategy["rung"] == "homotopy":
+        assert steps[-1][0] == "homotopy t=1"
+    else:
+        assert [name for name, _ in steps] == {"second start": ["newton", "second_start"],
+                                               "continued": ["newton", "second_start", "continued"]}.get(result.strategy["rung"], ["newton"])
+    assert result.total_iterations == sum(n for _, n in steps) == result.to_dict()["total_iterations"]
 
 
 def test_divided_wall_column_of_120_stages():
@@ -33,3 +42,5 @@ def test_divided_wall_column_of_120_stages():
     assert result.stage_count == 120 and result.converged
     assert result.strategy["rung"] in ("newton", "damped newton") and "second_start" not in result.strategy, result.strategy
     assert result.iterations <= 12, result.strategy
+    assert result.iterations_by_step == (("newton", result.iterations),)
+    assert result.to_dict()["iterations_by_step"] == [{"step": "newton", "iterations": result.iterations}]

@@ -18,6 +18,10 @@ STUDIES = {
     "methanol_water reflux ratio (12 points)": ("methanol_water.toml", ["specs.reflux_ratio=1.3:3.0:12"]),
     "naphtha_side_draw reflux ratio x draw stage (3 x 3)": (
         "naphtha_side_draw.toml", ["specs.reflux_ratio=3:5:3", "column.side_draws[0].stage=10:40:3"]),
+    # two columns whose default start needs more Newton iterations (an activity-model column near
+    # its pinch, a pressure column with an equation of state)
+    "acetone_subcooled_reflux reflux ratio (9 points)": ("acetone_subcooled_reflux.toml", ["specs.reflux_ratio=1.8:2.6:9"]),
+    "depropanizer propane recovery (9 points)": ("depropanizer.toml", ["specs.recovery.propane.distillate=0.985:0.995:9"]),
 }
 
 
@@ -58,6 +62,9 @@ def main() -> None:
               f"iterations {figures[name]['per_point_iteration_ratio_cold_over_warm_started']:.2f}x, "
               f"seconds {figures[name]['per_point_seconds_ratio_cold_over_warm_started']:.1f}x")
     figures["goal"] = "warm points at least 3x cheaper than cold ones"
+    figures["iteration_floor"] = ("Newton from a predicted start with a first residual of about 1e-3 needs 2 iterations to "
+                                  "reach the 1e-9 tolerance (quadratic convergence), so the iteration ratio is at most "
+                                  "half the cold start's iterations per point")
     save("warm_sweep", figures)
 
 

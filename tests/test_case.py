@@ -1238,3 +1238,12 @@ def test_audit_table_errors_name_the_key(table, key, words):
     error = case_error(mutated(format_data(), "audit", table))
     assert error.key == key and error.file == "case.toml"
     assert words in str(error)
+
+
+def test_a_free_feed_rate_in_one_column_says_it_needs_a_network():
+    text = re.sub(r'(?m)^flow = .*$', 'flow = "free"', FORMAT_CASE, count=1)
+    assert 'flow = "free"' in text
+    with pytest.raises(CaseError) as error:
+        loads_case(text, source_file="one_column.toml")
+    message = str(error.value)
+    assert "one_column.toml" in message and "feeds[0].flow" in message and "column network" in message

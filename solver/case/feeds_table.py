@@ -43,6 +43,10 @@ def read_feeds_table(
     items = read_list(value, at, min_length=1, max_length=MAX_STAGES)
     feeds: list[Feed] = []
     for index, entry in enumerate(items):
+        if isinstance(entry, Mapping) and entry.get("flow") == "free":
+            at.item(index).child("flow").fail(
+                "a free feed rate (a make-up that a spec sets) belongs to a column network: one column's feeds have "
+                "fixed rates", "free", "a molar or mass flow such as '100 kmol/h', or a network case ([[columns]])")
         feed = _read_feed(entry, index, names, component_data, column, at.item(index))
         if any(f.name == feed.name for f in feeds):
             at.item(index).child("name").fail("another feed has this name", feed.name, "a unique name")

@@ -163,7 +163,9 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
         liquid = p.phase == "liquid"
         flow = p.rate if p.rate is not None else p.share * (profile.liquid_flow if liquid else profile.vapor_flow)[p.stage]
         column, number = graph.stage_nodes[p.stage]
-        products[p.name] = {"column": column, "stage": number, "phase": p.phase, "flow": float(flow),
+        # a total condenser's liquid distillate travels in the stage's vapor slot (the engine's convention)
+        phase = "liquid" if graph.roles[p.stage] == "total_condenser" else p.phase
+        products[p.name] = {"column": column, "stage": number, "phase": phase, "flow": float(flow),
                             "composition": (profile.x if liquid else profile.y)[p.stage].tolist(),
                             "T": float(profile.temperature[p.stage]), "h": float((s.h_L if liquid else s.h_V)[p.stage])}
     duties = {name: float(extras[k] * fe) for k, name in enumerate(system.extra_names) if name.endswith((".condenser", ".reboiler"))}

@@ -80,3 +80,9 @@ def test_run_shows_the_two_liquid_flag_and_audit_writes_the_run_files(tmp_path, 
     written = {path.name for path in (tmp_path / "audit").iterdir()}
     assert {"result.json", "stages.csv", "summary.md", "network.png"} <= written
     assert "TWO_LIQUIDS" not in capsys.readouterr().out
+
+
+def test_a_total_condensers_distillate_is_reported_as_liquid():
+    result = simulate_network(load_case(CASES / "aromatics_side_rectifier.toml"))
+    stage_one = {name: product for name, product in result.products.items() if product["stage"] == 1}
+    assert stage_one and all(product["phase"] == "liquid" for product in stage_one.values())

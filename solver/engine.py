@@ -265,7 +265,7 @@ def simulate(
     Raises :class:`ConvergenceError` only for NaN/inf (naming the stage and variable), and
     :class:`SpecError`/:class:`CaseError`/:class:`ThermoError` for bad input."""
     if case.network is not None:
-        return simulate_network(case, options=options, thermo=thermo, continuation=continuation)
+        return simulate_network(case, options=options, thermo=thermo, continuation=continuation, shortening=min(shortening, 1))
     system = build_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:

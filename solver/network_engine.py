@@ -24,6 +24,7 @@ from .feed_flash import flash_feed_list
 from .network_graph import check_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
+from .network_shortening import shortened_network, stretched_network_start
 from .network_specs import network_products, resolve_specs
 from .network_start import network_initial_estimate, network_starts
 from .newton import NewtonOptions, NewtonResult, solve_system
@@ -32,7 +33,7 @@ from .thermo.homotopy import HomotopyThermo
 from .thermo.liquid_split import check_liquids
 from .thermo.package import ThermoPackage
 
-__all__ = ["FIRST_START_ITERATIONS", "NETWORK_FALLBACK_CHAIN", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
+__all__ = ["FIRST_START_ITERATIONS", "SHORTENING_RATIO", "NETWORK_FALLBACK_CHAIN", "NETWORK_POST_CHECK_TOLERANCE", "build_network_system", "network_post_check", "simulate_network"]
 
 NETWORK_POST_CHECK_TOLERANCE = 1e-7
 _VANISHING_FLOW = 1e-6  # of the total feed
@@ -57,12 +58,16 @@ FIRST_START_ITERATIONS = 20
 NETWORK_FALLBACK_CHAIN = (
     "damped Newton (line search, dogleg) from the better of the network's two starts (smaller natural level) "
     f"for {FIRST_START_ITERATIONS} iterations; then from the other; then the first continued; then homotopy from "
-    "ideal K-values and CMO enthalpies"
+    "ideal K-values and CMO enthalpies; then the start stretched from the solution of the network with every column "
+    "shortened"
 )
+
+#: The shorter-column rung scales every column's sections of plain stages by this.
+SHORTENING_RATIO = 0.5
 
 
 def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo: ThermoPackage | None = None,
-                     start: np.ndarray | None = None, continuation: bool = True) -> NetworkResult:
+                     start: np.ndarray | None = None, continuation: bool = True, shortening: int = 1) -> NetworkResult:
     """Solve the network of ``case`` (or a single-column case as a network of one) from the
     default start (or the scaled unknowns ``start``). Always returns a NetworkResult;
     ``converged`` says whether it may be used.
@@ -73,8 +78,11 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
     :data:`FIRST_START_ITERATIONS`; then from the other ("second start"); then the first again,
     continued with the full budget; then (unless not ``continuation``) homotopy continuation
     from ideal K-values and CMO enthalpies to the real model over the whole network
-    (:func:`solver.continuation.trace_path`). ``strategy["rung"]`` names the rung that solved
-    it; when none did, the message says what each tried."""
+    (:func:`solver.continuation.trace_path`); then (unless ``shortening`` is 0) the "shorter
+    column": the network with every column's sections of plain stages halved
+    (:mod:`solver.network_shortening`) solved by this chain without this rung, and Newton from
+    its solution stretched over the full network. ``strategy["rung"]`` names the rung that
+    solved it; when none did, the message says what each tried."""
     system = build_network_system(case, thermo)
     options = options or NewtonOptions()
     if start is not None:
@@ -100,6 +108,11 @@ def simulate_network(case: Case, *, options: NewtonOptions | None = None, thermo
         strategy.update(record)
         if found is not None and found.converged:
             newton, strategy["rung"] = found, "homotopy"
+    if not newton.converged and shortening > 0:
+        found, record = _from_shorter_network(case, system, options, continuation, shortening)
+        strategy.update(record)
+        if found is not None and found.converged:
+            newton, strategy["rung"] = found, "shorter column"
     strategy["chain"] = NETWORK_FALLBACK_CHAIN
     result = network_result(case, system, newton, strategy)
     if not newton.converged:
@@ -120,7 +133,46 @@ def _what_was_tried(strategy: dict[str, Any]) -> str:
         tried.append(f"homotopy, stopped by: {strategy['homotopy_failed']}")
     elif "homotopy" in strategy:
         tried.append(f"homotopy ({strategy['homotopy']})")
+    shorter = strategy.get("shorter_column")
+    if shorter is not None:
+        if "newton_iterations" in shorter:
+            tried.append(f"the shorter column ({shorter['stages']} stages solved, then {shorter['newton_iterations']} on the full network)")
+        else:
+            tried.append(f"the shorter column ({shorter['stages']} stages), unsolved: {shorter.get('message', '')}")
     return "the fallback chain failed on every rung: " + ", ".join(tried)
+
+
+def _from_shorter_network(case: Case, system: NetworkSystem, options: NewtonOptions, continuation: bool,
+                          depth: int) -> tuple[NewtonResult | None, dict[str, Any]]:
+    """The last rung: the network with every column shortened (:func:`shortened_network`) solved
+    by the chain ``depth - 1`` deep, then Newton on the full network from its solution stretched
+    (:func:`stretched_network_start`). Returns (Newton result or None, the strategy record)."""
+    short_case, positions = shortened_network(case, SHORTENING_RATIO)
+    stages = sum(len(at) for at in positions.values())
+    if stages >= system.N:
+        return None, {}
+    record: dict[str, Any] = {"stages": stages}
+    try:
+        short = simulate_network(short_case, options=options, thermo=system.thermo, continuation=continuation, shortening=depth - 1)
+    except (ThermoError, ConvergenceError) as exc:
+        record.update(converged=False, message=str(exc))
+        return None, {"shorter_column": record}
+    record.update(converged=bool(short.converged), rung=short.strategy.get("rung"),
+                  strategy={k: v for k, v in short.strategy.items() if k != "chain"})
+    if not short.converged:
+        record["message"] = short.message
+        return None, {"shorter_column": record}
+    X = stretched_network_start(short, positions, system)
+    if X is None:
+        record["message"] = "the shortened network's unknowns do not map onto the full network's"
+        return None, {"shorter_column": record}
+    try:
+        newton = solve_system(system, X, options)
+    except ConvergenceError as exc:
+        record["message"] = str(exc)
+        return None, {"shorter_column": record}
+    record["newton_iterations"] = newton.iterations
+    return newton, {"shorter_column": record}
 
 
 def _network_homotopy(system: NetworkSystem, options: NewtonOptions) -> tuple[NewtonResult | None, dict[str, Any]]:
@@ -208,11 +260,17 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
 def _newton_steps(strategy: dict[str, Any]) -> tuple[tuple[str, int], ...]:
     """(step, Newton iterations) of every run the strategy records, in the order run: the first
     run at its top level ("newton"), each later step as an entry with its own count, and each
-    point of a homotopy path ("homotopy t=...")."""
+    point of a homotopy path ("homotopy t=..."); then the shortened network's own steps (each
+    prefixed "shortened network: ") and Newton on the full network from its solution ("shorter column")."""
     steps = [("newton", int(strategy["newton_iterations"]))] if "newton_iterations" in strategy else []
     steps += [(name, int(entry["newton_iterations"])) for name, entry in strategy.items()
-              if isinstance(entry, dict) and "newton_iterations" in entry]
+              if isinstance(entry, dict) and "newton_iterations" in entry and name != "shorter_column"]
     steps += [(f"homotopy t={point['t']:.4g}", int(point["iterations"])) for point in strategy.get("homotopy_path", ())]
+    shorter = strategy.get("shorter_column", {})
+    if shorter.get("strategy"):
+        steps += [(f"shortened network: {name}", n) for name, n in _newton_steps(shorter["strategy"])]
+    if "newton_iterations" in shorter:
+        steps.append(("shorter column", int(shorter["newton_iterations"])))
     return tuple(steps)
 
 

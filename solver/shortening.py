@@ -26,13 +26,14 @@ numbers.
 from __future__ import annotations
 
 import dataclasses
+from typing import Mapping
 
 import numpy as np
 
-from .case import Case
+from .case import Case, Column
 from .streams import StageProfile
 
-__all__ = ["MIN_STAGES", "anchor_stages", "shortened_case", "stretch_profile", "stretched_start"]
+__all__ = ["MIN_STAGES", "anchor_stages", "column_at_positions", "shortened_case", "stretch_profile", "stretched_start"]
 
 #: Columns with fewer stages are not shortened.
 MIN_STAGES = 30
@@ -70,19 +71,7 @@ def shortened_case(case: Case, ratio: float = 0.5) -> tuple[Case, np.ndarray]:
     positions_array = np.array(positions)
     new_number = {old: int(np.flatnonzero(positions_array == old)[0]) + 1 for old in anchors}
 
-    column = case.column
-    full = np.arange(1, column.stages + 1, dtype=float)
-    pressures = tuple(float(p) for p in np.interp(positions_array, full, np.asarray(column.pressures)))
-    nearest = np.rint(positions_array).astype(int) - 1
-    efficiencies = tuple(float(column.efficiencies[k]) for k in nearest)
-    short_column = dataclasses.replace(
-        column,
-        stages=len(positions),
-        pressures=pressures,
-        efficiencies=efficiencies,
-        side_draws=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.side_draws),
-        stage_duties=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.stage_duties),
-    )
+    short_column = column_at_positions(case.column, positions_array, new_number)
     short = dataclasses.replace(
         case,
         title=f"{case.title} (shortened to {len(positions)} stages)",
@@ -93,6 +82,22 @@ def shortened_case(case: Case, ratio: float = 0.5) -> tuple[Case, np.ndarray]:
         ),
     )
     return short, positions_array
+
+
+def column_at_positions(column: Column, positions: np.ndarray, new_number: Mapping[int, int]) -> Column:
+    """``column`` with its stages at ``positions`` (increasing, on its own 1-based numbering):
+    pressures interpolated, each stage's Murphree efficiency that of the nearest full stage,
+    side draws and side duties moved to their stages' new numbers (``new_number[old]``)."""
+    full = np.arange(1, column.stages + 1, dtype=float)
+    nearest = np.rint(positions).astype(int) - 1
+    return dataclasses.replace(
+        column,
+        stages=len(positions),
+        pressures=tuple(float(p) for p in np.interp(positions, full, np.asarray(column.pressures))),
+        efficiencies=tuple(float(column.efficiencies[k]) for k in nearest),
+        side_draws=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.side_draws),
+        stage_duties=tuple(dataclasses.replace(d, stage=new_number[d.stage]) for d in column.stage_duties),
+    )
 
 
 def stretch_profile(profile: StageProfile, at: np.ndarray) -> StageProfile:

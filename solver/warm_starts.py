@@ -37,6 +37,7 @@ from .errors import ConvergenceError, ThermoError
 from .network_engine import build_network_system, simulate_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
+from .network_unknowns import NetworkStart, network_start, scaled_start
 from .newton import NewtonOptions
 from .results import Result
 from .shortening import stretch_profile
@@ -46,20 +47,6 @@ from .thermo.package import ThermoPackage
 __all__ = ["NetworkStart", "SolvedPoint", "StageLayout", "WarmSolve", "extrapolated_profile", "fitted_start",
            "mapped_start", "nearest_profile", "network_start", "scaled_start", "solve_warm", "solved_point",
            "stage_layout", "starting_point", "warm_start"]
-
-
-@dataclass(frozen=True)
-class NetworkStart:
-    """A converged network's unknowns in SI: temperatures (K), liquid and vapor component flows
-    (mol/s) of every stage's slots, and the duties (W) and connection rates (mol/s) by name."""
-
-    temperature: np.ndarray
-    liquid: np.ndarray
-    vapor: np.ndarray
-    duties: Mapping[str, float]
-    rates: Mapping[str, float]
-
-
 
 
 @dataclass(frozen=True)
@@ -198,32 +185,6 @@ def solve_warm(case: Case, start: StageProfile | NetworkStart | None, options: N
         if result is not None and result.converged:
             return WarmSolve(result, True)
     return WarmSolve(simulate(case, options=options, thermo=thermo), False)
-
-
-def network_start(result: NetworkResult) -> NetworkStart:
-    """The unknowns of a solved network, in SI (see :class:`NetworkStart`)."""
-    return NetworkStart(result.temperature.copy(), result.liquid_flow[:, None] * result.x, result.vapor_flow[:, None] * result.y,
-                        dict(result.duties), {name: c["flow"] for name, c in result.connections.items()})
-
-
-def scaled_start(system: NetworkSystem, start: NetworkStart) -> np.ndarray | None:
-    """``start`` as the scaled unknowns of ``system``; None when the networks differ (stage
-    count, or an extra unknown ``start`` does not hold)."""
-    if len(start.temperature) != system.N:
-        return None
-    fs, fe = system.flow_scale, system.flow_scale * system.energy_scale
-    extras = []
-    for name in system.extra_names:
-        owner, _, what = name.rpartition(".")
-        if what == "rate" and owner in start.rates:
-            extras.append(start.rates[owner] / fs)
-        elif what == "duty" and owner in start.duties:
-            extras.append(start.duties[owner] / fe)
-        elif name in start.duties:
-            extras.append(start.duties[name] / fe)
-        else:
-            return None
-    return system.pack(start.temperature, start.liquid / fs, start.vapor / fs, extras)
 
 
 def _solve_network_warm(case: Case, start: NetworkStart | None, options: NewtonOptions | None,

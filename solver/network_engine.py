@@ -137,6 +137,8 @@ def _what_was_tried(strategy: dict[str, Any]) -> str:
     if shorter is not None:
         if "newton_iterations" in shorter:
             tried.append(f"the shorter column ({shorter['stages']} stages solved, then {shorter['newton_iterations']} on the full network)")
+        elif shorter.get("converged"):
+            tried.append(f"the shorter column ({shorter['stages']} stages solved; the full network from its solution: {shorter.get('message', '')})")
         else:
             tried.append(f"the shorter column ({shorter['stages']} stages), unsolved: {shorter.get('message', '')}")
     return "the fallback chain failed on every rung: " + ", ".join(tried)

@@ -32,20 +32,26 @@ def _headline(outputs) -> list[int]:
     return [next(k for k, o in enumerate(outputs) if o.key == key) for key in keys]
 
 
-def linear_table(linear):
-    """The headline outputs with their linearly propagated standard uncertainties, both views."""
+#: The column header of each view's standard uncertainty.
+_VIEW_HEADERS = {"as_specified": "u, specs held", "as_operated": "u, ratios held"}
+
+
+def linear_table(linear, headline_keys=None):
+    """The headline outputs (``headline_keys(view)``, by default a single column's) with their
+    linearly propagated standard uncertainties, in every view of ``linear``."""
     from ..reports.display import screen_table
 
     name, view, deviations = linear.views[0]
+    keys = headline_keys(view) if headline_keys else [view.outputs[k].key for k in _headline(view.outputs)]
     rows = []
-    for k in _headline(view.outputs):
-        output = view.outputs[k]
+    for key in keys:
+        output = view.outputs[view.output_index(key)]
         cells = [output.label, f"{output.value:.6g}"]
         for _, other, values in linear.views:
             cells.append(f"{values[other.output_index(output.key)]:.3g}")
         rows.append(cells)
     return screen_table("Standard uncertainty of the outputs (linear propagation of the stated uncertainties)",
-                        ["output", "value (SI)", "u, specs held", "u, ratios held"], rows)
+                        ["output", "value (SI)", *[_VIEW_HEADERS[name] for name, _, _ in linear.views]], rows)
 
 
 def write_histograms(study, path: Path) -> Path:

@@ -97,3 +97,62 @@ def test_uncertainty_of_no_input_is_named(tmp_path):
     stray = dataclasses.replace(case, uncertainties=(StandardUncertainty("main.nothing", 0.1, "uncertainty.nothing"),))
     with pytest.raises(CaseError, match="uncertainty.nothing"):
         uncertain_inputs(stray)
+
+
+SMALL = """
+[uncertainty]
+vapor_pressure = { benzene = "0.5 %", toluene = "0.5 %" }
+
+[[uncertainty.feeds]]
+feed = 1
+composition = { benzene = 0.003 }
+"""
+
+
+def test_monte_carlo_on_a_network_matches_linear_propagation(capsys, tmp_path):
+    """For small uncertainties the Monte Carlo spread equals the linear one (JCGM 101:2008,
+    the check of JCGM 100's first-order law): within 15 % with 120 samples (the standard
+    deviation of a sample standard deviation is about 1/sqrt(2n) = 6.5 %)."""
+    out = tmp_path / "mc"
+    code = main(["uncertainty", str(_case(tmp_path, SMALL)), "--samples", "120", "--seed", "11", "--out", str(out)])
+    screen, err = capsys.readouterr()
+    assert code == 0, err
+    assert "Monte Carlo, specs held" in screen and "ratios held" not in screen
+    assert "not computed for networks" in screen
+    record = json.loads((out / "uncertainty.json").read_text())
+    assert list(record["views"]) == ["as_specified"] and "as_operated" not in record
+    assert record["spec_chances"] == [] and record["reflux_needed"]["specs"] == []
+    assert "column network" in record["reflux_needed"]["method"]
+    view = record["as_specified"]
+    assert view["converged"] == 120 and view["not_converged"] == []
+    linear = {o["key"]: o["standard_uncertainty"] for o in record["linear"]["as_specified"]}
+    monte_carlo = {o["key"]: o for o in view["outputs"]}
+    for key in ("main.bottoms.mole_fraction.toluene", "main.distillate.flow", "duty.main.reboiler",
+                "duty.pumparound", "stage.main.12.temperature"):
+        assert monte_carlo[key]["standard_deviation"] == pytest.approx(linear[key], rel=0.15), key
+        # the median lies near the nominal value, within a third of a standard deviation
+        assert abs(monte_carlo[key]["p50"] - monte_carlo[key]["nominal"]) < 0.34 * linear[key], key
+    # the spec held does not move in any sample
+    assert monte_carlo["main.distillate.mole_fraction.benzene"]["p97.5"] == pytest.approx(0.98, abs=1e-9)
+    rows = (out / "uncertainty.csv").read_text().splitlines()
+    assert len(rows) == 121 and rows[0].count("as_operated") == 0
+    assert (out / "uncertainty.png").stat().st_size > 1000
+
+
+def test_unconverged_network_sample_is_listed(tmp_path):
+    """A sample whose network cannot be solved is reported as such, with its message."""
+    from solver.monte_carlo import solve_sample
+    from solver.network_engine import simulate_network
+    from solver.sweep import load_document
+    from solver.warm_starts import network_start
+
+    path = _case(tmp_path, SMALL)
+    case = load_case(path)
+    start = network_start(simulate_network(case))
+    document = load_document(path)
+    good = solve_sample(document, str(path), 0, ["feeds[1].composition.benzene"], [0.401], start, (None, None))
+    assert good.statuses == ("converged",) and len(good.outputs[0]) == 41
+    # a benzene-free feed cannot give a 98 % benzene distillate
+    bad = solve_sample(document, str(path), 1, ["feeds[1].composition.benzene"], [1e-9], start, (None, None))
+    assert bad.statuses[0] in ("not converged", "failed") and bad.messages[0] and bad.outputs == ((),)
+    assert not bad.converged

@@ -16,6 +16,10 @@ A sample that does not converge from the nominal profile gets the whole fallback
 (:func:`solver.warm_starts.solve_warm`); one that still does not converge is counted and
 listed, and left out of the percentiles (never dropped silently). :class:`SampleLog` writes the
 samples as they finish, so that an interrupted study resumes where it stopped.
+
+A column network (``Case.network``) has one view, its own specs held (:data:`NETWORK_VIEWS`;
+a network has no single reflux and boilup ratio to hold), its inputs and outputs those of
+:mod:`solver.network_sensitivity`, and no reflux needed or spec chances.
 """
 
 from __future__ import annotations
@@ -32,6 +36,7 @@ import numpy as np
 
 from .case import Case, Spec, parse_case
 from .engine import build_system, stage_profile
+from .network_sensitivity import network_inputs, network_output_values, network_system_of, network_unknowns
 from .results import json_safe
 from .sensitivity import OutputQuantity, output_values
 from .sensitivity_inputs import choose_inputs
@@ -41,27 +46,33 @@ from .thermo.package import ThermoPackage
 from .uncertainty import UncertainInput
 from .warm_starts import solve_warm
 
-__all__ = ["PERCENTILES", "REFLUX_NEEDED", "VIEWS", "MonteCarloStudy", "RefluxNeeded", "SampleLog", "SampleOutcome",
+__all__ = ["NETWORK_VIEWS", "NO_REFLUX_NEEDED", "PERCENTILES", "REFLUX_NEEDED", "VIEWS", "MonteCarloStudy", "RefluxNeeded", "SampleLog", "SampleOutcome",
            "SpecChance", "needed_reflux_specs", "product_specs", "run_samples", "solve_sample", "spec_chances",
            "study_fingerprint"]
 
 #: The percentiles reported of every output.
 PERCENTILES = (2.5, 5.0, 25.0, 50.0, 75.0, 95.0, 97.5)
 VIEWS = ("as_specified", "as_operated")
+#: The views of a network's study: its specs held.
+NETWORK_VIEWS = ("as_specified",)
 #: What the reflux needed to meet a product spec is, in result files and on screen.
 REFLUX_NEEDED = "the reflux ratio of the sample solved with the spec and the design's distillate rate held"
+#: Why a network's study has no reflux needed.
+NO_REFLUX_NEEDED = "not computed for a column network (its specs held only)"
+_VIEW_MEANINGS = {"as_specified": "the case's own specs held",
+                  "as_operated": "the nominal solution's reflux ratio and boilup ratio held"}
 
 
 @dataclass(frozen=True)
 class SampleOutcome:
-    """One sample solved in both views: per view ``status`` ("converged", "not converged" or
+    """One sample solved in each view (:data:`VIEWS`, a network's :data:`NETWORK_VIEWS`): per view ``status`` ("converged", "not converged" or
     "failed"), ``message`` and the outputs (SI, in the order of the nominal outputs; empty
     unless converged), and the ratios the as-specified solution has."""
 
     index: int
-    statuses: tuple[str, str]
-    messages: tuple[str, str]
-    outputs: tuple[tuple[float, ...], tuple[float, ...]]
+    statuses: tuple[str, ...]
+    messages: tuple[str, ...]
+    outputs: tuple[tuple[float, ...], ...]
     ratios: tuple[float | None, float | None] = (None, None)
     seconds: float = 0.0
     #: per product spec (:func:`product_specs`): (status, message, reflux ratio needed or None)
@@ -87,8 +98,12 @@ def _solve_view(case: Case, thermo: ThermoPackage, start: StageProfile, outputs:
         return "not converged", result.message, (), None
     if not outputs:
         return "converged", "", (), result
-    system = build_system(case, thermo)
-    values = output_values(system, system.unknowns(stage_profile(result)))
+    if case.network is not None:
+        system = network_system_of(case, thermo)
+        values = network_output_values(system, network_unknowns(system, result))
+    else:
+        system = build_system(case, thermo)
+        values = output_values(system, system.unknowns(stage_profile(result)))
     return "converged", "", tuple(float(v) for v in values), result
 
 
@@ -125,19 +140,24 @@ def solve_sample(document: Mapping, source_file: str, index: int, keys: Sequence
     to ``values[m]`` (applied in the order of :func:`~solver.sensitivity_inputs.choose_inputs`),
     from the nominal ``start``, as specified and with the nominal ``ratios`` (reflux, boilup)
     held; with the design's ``distillate_rate`` (mol/s), also the reflux needed to meet each
-    product spec (:func:`needed_reflux_specs`). Runs in a worker; never raises."""
+    product spec (:func:`needed_reflux_specs`). A network case (inputs of
+    :func:`~solver.network_sensitivity.network_inputs`, ``start`` a
+    :class:`~solver.warm_starts.NetworkStart`) is solved as specified only. Runs in a worker;
+    never raises."""
     started = time.perf_counter()
     try:
         case = parse_case(document, source_file=source_file)
         thermo = ThermoPackage.from_case(case)
         moved = dict(zip(keys, values))
-        for parameter in choose_inputs(case):
+        for parameter in (choose_inputs(case) if case.network is None else network_inputs(case)):
             if parameter.key in moved:
                 case, thermo = parameter.apply(case, thermo, float(moved[parameter.key]))
     except Exception as exc:
         message = f"{type(exc).__name__}: {exc}"
         return SampleOutcome(index, ("failed", "failed"), (message, message), ((), ()), seconds=time.perf_counter() - started)
     specified = _solve_view(case, thermo, start)
+    if case.network is not None:
+        return SampleOutcome(index, specified[:1], specified[1:2], specified[2:3], seconds=time.perf_counter() - started)
     operated = _solve_view(_operated(case, ratios), thermo, start)
     needed = tuple(_reflux_needed(case, thermo, start, specs, specified)
                    for specs in needed_reflux_specs(case, distillate_rate))
@@ -260,6 +280,7 @@ class MonteCarloStudy:
     chances: tuple[SpecChance, ...]
     seconds: float = 0.0
     needed_specs: tuple[Spec, ...] = ()  # the product specs whose needed reflux the outcomes hold
+    views: tuple[str, ...] = VIEWS  # a network's: NETWORK_VIEWS
 
     def reflux_needed(self) -> tuple[RefluxNeeded, ...]:
         """The reflux ratio needed to meet each of :attr:`needed_specs` over the samples."""
@@ -277,7 +298,7 @@ class MonteCarloStudy:
 
     def matrix(self, view: str) -> np.ndarray:
         """Outputs of every sample in ``view`` (rows), NaN where it did not converge."""
-        v = VIEWS.index(view)
+        v = self.views.index(view)
         table = np.full((len(self.outcomes), len(self.outputs)), np.nan)
         for row, outcome in enumerate(self.outcomes):
             if outcome.statuses[v] == "converged":
@@ -285,7 +306,7 @@ class MonteCarloStudy:
         return table
 
     def unconverged(self, view: str) -> list[SampleOutcome]:
-        v = VIEWS.index(view)
+        v = self.views.index(view)
         return [o for o in self.outcomes if o.statuses[v] != "converged"]
 
     def statistics(self, view: str) -> dict[str, np.ndarray]:
@@ -302,12 +323,12 @@ class MonteCarloStudy:
 
     def as_json(self) -> dict[str, Any]:
         views = {}
-        for view in VIEWS:
+        for v, view in enumerate(self.views):
             stats = self.statistics(view)
             views[view] = {
                 "converged": len(self.outcomes) - len(self.unconverged(view)),
-                "not_converged": [{"sample": o.index, "status": o.statuses[VIEWS.index(view)],
-                                   "message": o.messages[VIEWS.index(view)]} for o in self.unconverged(view)],
+                "not_converged": [{"sample": o.index, "status": o.statuses[v], "message": o.messages[v]}
+                                  for o in self.unconverged(view)],
                 "outputs": [{"key": o.key, "label": o.label, "unit": o.unit, "nominal": o.value,
                              **{name: values[k] for name, values in stats.items()}}
                             for k, o in enumerate(self.outputs)],
@@ -323,11 +344,11 @@ class MonteCarloStudy:
             "seconds": self.seconds,
             "inputs": [{"key": i.parameter.key, "label": i.parameter.label, "value": i.parameter.value,
                         "unit": i.parameter.unit, "standard_uncertainty": i.deviation} for i in self.inputs],
-            "views": {"as_specified": "the case's own specs held",
-                      "as_operated": "the nominal solution's reflux ratio and boilup ratio held"},
+            "views": {view: _VIEW_MEANINGS[view] for view in self.views},
             "spec_chances": [{"spec": c.key, "output": c.output, "target": c.target, "sense": c.sense, "met": c.met,
                               "converged": c.converged, "probability": c.probability} for c in self.chances],
-            "reflux_needed": {"method": REFLUX_NEEDED, "specs": [item.as_json() for item in self.reflux_needed()]},
+            "reflux_needed": ({"method": REFLUX_NEEDED, "specs": [item.as_json() for item in self.reflux_needed()]}
+                              if self.views == VIEWS else {"method": NO_REFLUX_NEEDED, "specs": []}),
             **views,
         })
 
@@ -336,13 +357,13 @@ class MonteCarloStudy:
         buffer = io.StringIO()
         writer = csv.writer(buffer, lineterminator="\n")
         writer.writerow(["sample", *[i.parameter.key for i in self.inputs], "reflux_ratio", "boilup_ratio",
-                         *[f"{view}.status" for view in VIEWS],
-                         *[f"{view}.{o.key}" for view in VIEWS for o in self.outputs],
+                         *[f"{view}.status" for view in self.views],
+                         *[f"{view}.{o.key}" for view in self.views for o in self.outputs],
                          *[f"reflux_needed.{spec.key}" for spec in self.needed_specs]])
         for outcome, row in zip(self.outcomes, self.samples):
             cells = [outcome.index, *[f"{v:.10g}" for v in row],
                      *["" if r is None else f"{r:.10g}" for r in outcome.ratios], *outcome.statuses]
-            for v in range(len(VIEWS)):
+            for v in range(len(self.views)):
                 cells += [f"{x:.10g}" for x in outcome.outputs[v]] or [""] * len(self.outputs)
             needed = list(outcome.needed) + [("failed", "", None)] * (len(self.needed_specs) - len(outcome.needed))
             cells += ["" if reflux is None else f"{reflux:.10g}" for _, _, reflux in needed[:len(self.needed_specs)]]

@@ -41,7 +41,7 @@ import scipy.sparse as sp
 
 from .case import Case
 from .case.model import ColumnSection, Network
-from .errors import CaseError, SpecError
+from .errors import SpecError
 
 __all__ = [
     "DegreeOfFreedom",
@@ -50,7 +50,6 @@ __all__ = [
     "check_network",
     "count_degrees_of_freedom",
     "network_of_case",
-    "refuse_network",
 ]
 
 #: The column name of the one-column network view of a single-column case.
@@ -318,20 +317,3 @@ def check_network(case: Case) -> NetworkGraph:
     network = network_of_case(case)
     count_degrees_of_freedom(network, case.source_file, tuple(feed.name for feed in case.feeds if feed.free))
     return build_network_graph(network, case.feeds)
-
-
-def refuse_network(case: Case, command: str) -> None:
-    """Nothing for a single-column case. A network case is read and checked (its degrees of
-    freedom against its specs), then refused with exit 2: ``command`` does not solve networks
-    (``run`` and ``check`` do, through :mod:`solver.network_engine`)."""
-    if case.network is None:
-        return
-    check_network(case)
-    names = ", ".join(repr(s.name) for s in case.network.columns)
-    raise CaseError(
-        f"a network of {len(case.network.columns)} columns ({names}) with {len(case.network.connections)} connection(s): "
-        f"read and checked (degrees of freedom and specs agree), but `traystack {command}` does not solve column "
-        "networks yet in this release",
-        file=case.source_file or None, key="columns",
-        expected="a single-column case ([column]) for this command",
-    )

@@ -24,6 +24,7 @@ import numpy as np
 
 from .case import Case
 from .errors import CaseError
+from .network_sensitivity import network_inputs
 from .results import json_safe
 from .sensitivity import Sensitivities
 from .sensitivity_inputs import InputParameter, choose_inputs
@@ -43,9 +44,10 @@ class UncertainInput:
 
 def uncertain_inputs(case: Case) -> tuple[UncertainInput, ...]:
     """The inputs with a stated uncertainty, in the order of
-    :func:`~solver.sensitivity_inputs.choose_inputs` (the order in which samples are applied)."""
+    :func:`~solver.sensitivity_inputs.choose_inputs` (a network's:
+    :func:`~solver.network_sensitivity.network_inputs`), the order in which samples are applied."""
     stated = {item.key: item for item in case.uncertainties}
-    parameters = choose_inputs(case)
+    parameters = choose_inputs(case) if case.network is None else network_inputs(case)
     known = {parameter.key for parameter in parameters}
     for item in case.uncertainties:
         if item.key not in known:
@@ -103,7 +105,7 @@ def linear_uncertainty(case: Case, study) -> LinearUncertainty | None:
 def clip_to_range(parameter: InputParameter, values: np.ndarray) -> np.ndarray:
     """``values`` of ``parameter`` clipped into the range the input can take."""
     key = parameter.key
-    if key == "column.efficiency":
+    if key.endswith(".efficiency"):  # column.efficiency, or a network column's NAME.efficiency
         return np.clip(values, 1e-3, 1.0)
     if ".composition." in key:
         return np.clip(values, 1e-9, 1.0 - 1e-9)

@@ -172,15 +172,6 @@ def test_a_spec_on_a_fixed_connection_is_two_specs(spec, parts):
         assert part in str(caught.value)
 
 
-@pytest.mark.parametrize("command", ["uncertainty"])
-def test_every_solving_command_refuses_a_network(command, capsys, tmp_path):
-    """The commands that do not solve networks (shortcut, size and sweep do: tests/test_network_commands.py)."""
-    extra = ["--samples", "3"] if command == "uncertainty" else []
-    assert main([command, str(EXAMPLE), *extra]) == 2
-    error = capsys.readouterr().err
-    assert f"`traystack {command}` does not solve column networks yet" in error and "Traceback" not in error
-
-
 def test_check_solves_a_network_case_and_compares_its_baseline(tmp_path):
     import json
 

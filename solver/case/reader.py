@@ -125,7 +125,8 @@ def _parse(data: Any, at: At) -> Case:
     display = read_display_table(data.get("display", {}), at.child("display"))
     audit = read_audit_table(data["audit"], names, at.child("audit"), component_data) if "audit" in data else None
     sizing = read_sizing_table(data["sizing"], names, at.child("sizing")) if "sizing" in data else None
-    uncertainties = (read_uncertainty_table(data["uncertainty"], names, thermo, column, feeds, at.child("uncertainty"))
+    uncertainties = (read_uncertainty_table(data["uncertainty"], names, thermo, column, feeds, at.child("uncertainty"),
+                                            network)
                      if "uncertainty" in data else ())
     return Case(
         title=title,

@@ -1,5 +1,5 @@
 """The optional ``[uncertainty]`` table: standard uncertainties (one standard deviation) of the
-inputs of a single-column case, for linear propagation (``run --sensitivity``) and the Monte
+inputs of a case, for linear propagation (``run --sensitivity``) and the Monte
 Carlo study (``traystack uncertainty``).
 
 ```toml
@@ -17,6 +17,10 @@ composition = { methanol = 0.005 }                 # mole fraction, absolute
 temperature = "2 K"
 ```
 
+In a network case (``[[columns]]``) ``efficiency`` is a table of the columns' names,
+``efficiency = { main = 0.03, stripper = 0.05 }`` (each column's trays together); the rest reads
+the same, ``feed`` counting the network's ``[[feeds]]``.
+
 Each value becomes a :class:`~solver.case.model.StandardUncertainty` keyed like the input of
 the sensitivities it moves. A stated uncertainty must belong to a number the case has (a pair
 of the liquid model, a term the pair gives, a feed given by its temperature, trays with an
@@ -28,7 +32,7 @@ from __future__ import annotations
 from typing import Any
 
 from solver.case.fields import At, Field, component_key, quantity, read_fields, read_ij_ji, read_integer, read_list, read_table
-from solver.case.model import Column, Feed, StandardUncertainty, ThermoOptions
+from solver.case.model import Column, Feed, Network, StandardUncertainty, ThermoOptions
 
 __all__ = ["read_uncertainty_table"]
 
@@ -48,16 +52,17 @@ def _deviation(kind: str):
 
 
 def read_uncertainty_table(value: Any, names: tuple[str, ...], thermo: ThermoOptions, column: Column | None,
-                           feeds: tuple[Feed, ...], at: At) -> tuple[StandardUncertainty, ...]:
-    """The standard uncertainties stated under ``[uncertainty]`` (see the module docstring)."""
+                           feeds: tuple[Feed, ...], at: At, network: Network | None = None) -> tuple[StandardUncertainty, ...]:
+    """The standard uncertainties stated under ``[uncertainty]`` (see the module docstring);
+    ``column`` is None for a network case, whose ``network`` then names the columns."""
     table = read_table(value, at, _EXAMPLE)
     read_fields(table, at, _TOP_FIELDS, _EXAMPLE)
-    if column is None:
-        at.fail("uncertainties are taken of a single column; this case is a network of columns", "a table",
-                "no [uncertainty] table in a network case")
     stated: list[StandardUncertainty] = []
     if "efficiency" in table:
-        stated.append(_efficiency(table["efficiency"], column, at.child("efficiency")))
+        if column is None:
+            stated += _network_efficiencies(table["efficiency"], network, at.child("efficiency"))
+        else:
+            stated.append(_efficiency(table["efficiency"], column, "column", at.child("efficiency")))
     if "vapor_pressure" in table:
         stated += _vapor_pressures(table["vapor_pressure"], names, thermo, at.child("vapor_pressure"))
     for model in _ENERGY_FORMS:
@@ -68,12 +73,25 @@ def read_uncertainty_table(value: Any, names: tuple[str, ...], thermo: ThermoOpt
     return tuple(stated)
 
 
-def _efficiency(value: Any, column: Column, at: At) -> StandardUncertainty:
+def _efficiency(value: Any, column: Column, where: str, at: At) -> StandardUncertainty:
     last = column.stages - 1 if column.reboiler == "partial" else column.stages
     first = 1 if column.condenser != "none" else 0
     if last <= first:
         at.fail("the column has no trays whose efficiency could be uncertain", value, "no efficiency uncertainty")
-    return StandardUncertainty("column.efficiency", _deviation("dimensionless")(value, at), at.key)
+    return StandardUncertainty(f"{where}.efficiency", _deviation("dimensionless")(value, at), at.key)
+
+
+def _network_efficiencies(value: Any, network: Network, at: At) -> list[StandardUncertainty]:
+    names = [section.name for section in network.columns]
+    example = "{ " + ", ".join(f"{name} = 0.03" for name in names) + " }"
+    if not isinstance(value, dict):
+        at.fail("a network's efficiency uncertainties are given per column", value, f"a table such as {example}")
+    stated = []
+    for name, deviation in value.items():
+        if name not in names:
+            at.child(name).fail("not a column of [[columns]]", name, f"one of {', '.join(names)}")
+        stated.append(_efficiency(deviation, network.section(name).column, name, at.child(name)))
+    return stated
 
 
 def _vapor_pressures(value: Any, names, thermo: ThermoOptions, at: At) -> list[StandardUncertainty]:

@@ -21,7 +21,7 @@ __all__ = ["NETWORK_COMMANDS", "PLOT_FILES", "add_scheduler_option", "finish_run
 #: run does not converge, so that an old figure is never read as the new result.
 PLOT_FILES = ("temperature.png", "flows.png", "compositions.png", "yx.png", "cmo_flows.png", "flood.png")
 #: The commands that solve a network case (the others refuse one with exit 2).
-NETWORK_COMMANDS = ("run", "audit", "shortcut", "sweep", "size")
+NETWORK_COMMANDS = ("run", "audit", "shortcut", "sweep", "size", "uncertainty")
 
 
 class _Screen(Console):
@@ -67,9 +67,9 @@ def progress_bar(console: Console) -> Progress:
 def read_case(case_file: str, command: str):
     """The case at ``case_file`` (its path and the :class:`~solver.case.Case`), read and checked
     before the engine's modules are imported (they take seconds): an unknown component is
-    refused (the lookup reads the shipped index of CoolProp's fluids, not CoolProp), and so is a
-    network of columns where ``command`` does not solve one (a network is checked for its
-    degrees of freedom either way)."""
+    refused (the lookup reads the shipped index of CoolProp's fluids, not CoolProp), and a
+    network of columns is checked for its degrees of freedom. Every command in
+    :data:`NETWORK_COMMANDS` solves networks."""
     from ..case import load_case
     from ..components import component_info
 
@@ -78,12 +78,10 @@ def read_case(case_file: str, command: str):
     for name in case.component_names:
         component_info(name, case.component_data)
     if case.network is not None:
-        from ..network_graph import check_network, refuse_network
+        from ..network_graph import check_network
 
-        if command in NETWORK_COMMANDS:
-            check_network(case)
-        else:
-            refuse_network(case, command)
+        assert command in NETWORK_COMMANDS, command
+        check_network(case)
     return case_path, case
 
 

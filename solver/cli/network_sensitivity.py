@@ -1,7 +1,9 @@
 """``traystack run NETWORK_CASE --sensitivity``: the sensitivities of a converged column network
 (:mod:`solver.network_sensitivity`) on screen (the largest elasticities of each product's flow
 and purity and of each duty), all of them in result.json's ``sensitivity`` section and in
-``sensitivity.csv``, as for one column (:mod:`solver.cli.sensitivity`)."""
+``sensitivity.csv``, as for one column (:mod:`solver.cli.sensitivity`); when the case states
+uncertainties, their linear propagation (:mod:`solver.uncertainty`) on screen and in
+result.json's ``uncertainty`` section."""
 
 from __future__ import annotations
 
@@ -39,7 +41,8 @@ def network_sensitivity_table(view):
 def run_network_sensitivities(case, result, out: Path, console):
     """The sensitivities of a converged network ``result``: printed, written to
     ``out/sensitivity.csv`` and returned attached to the result (``extra["sensitivity"]``, for
-    result.json). An unconverged result is returned as it is, with a note."""
+    result.json), with the linear uncertainties (``extra["uncertainty"]``) when the case states
+    any. An unconverged result is returned as it is, with a note."""
     from ..network_sensitivity import NetworkSensitivityStudy, network_sensitivities
     from ..results import write_atomic
 
@@ -53,4 +56,12 @@ def run_network_sensitivities(case, result, out: Path, console):
     path = write_atomic(Path(out) / "sensitivity.csv", study.csv())
     console.print(f"sensitivities of {len(view.outputs)} outputs to {len(view.inputs)} inputs in {view.seconds:.2f} s; "
                   f"all of them in result.json (sensitivity) and {path.name}")
-    return dataclasses.replace(result, extra={**result.extra, "sensitivity": study})
+    extra = {**result.extra, "sensitivity": study}
+    if case.uncertainties:
+        from ..uncertainty import linear_uncertainty
+        from .uncertainty import linear_table
+
+        extra["uncertainty"] = linear_uncertainty(case, study)
+        console.print(linear_table(extra["uncertainty"], network_headline_outputs))
+        console.print("the standard uncertainty of every output is in result.json (uncertainty)")
+    return dataclasses.replace(result, extra=extra)

@@ -23,53 +23,64 @@ __all__ = ["add_uncertainty_command", "command_uncertainty", "linear_table", "wr
 LISTED = 10
 
 
-def _headline(outputs) -> list[int]:
+def _headline(outputs, network: bool = False) -> list[int]:
+    """The indices of the headline outputs: a single column's, or a network's (each product's
+    flow and purity, the duties)."""
     from types import SimpleNamespace
 
+    from .network_sensitivity import network_headline_outputs
     from .sensitivity import headline_outputs
 
-    keys = headline_outputs(SimpleNamespace(outputs=outputs))
+    keys = (network_headline_outputs if network else headline_outputs)(SimpleNamespace(outputs=outputs))
     return [next(k for k, o in enumerate(outputs) if o.key == key) for key in keys]
 
 
-def linear_table(linear):
-    """The headline outputs with their linearly propagated standard uncertainties, both views."""
+#: The column header of each view's standard uncertainty.
+_VIEW_HEADERS = {"as_specified": "u, specs held", "as_operated": "u, ratios held"}
+
+
+def linear_table(linear, headline_keys=None):
+    """The headline outputs (``headline_keys(view)``, by default a single column's) with their
+    linearly propagated standard uncertainties, in every view of ``linear``."""
     from ..reports.display import screen_table
 
     name, view, deviations = linear.views[0]
+    keys = headline_keys(view) if headline_keys else [view.outputs[k].key for k in _headline(view.outputs)]
     rows = []
-    for k in _headline(view.outputs):
-        output = view.outputs[k]
+    for key in keys:
+        output = view.outputs[view.output_index(key)]
         cells = [output.label, f"{output.value:.6g}"]
         for _, other, values in linear.views:
             cells.append(f"{values[other.output_index(output.key)]:.3g}")
         rows.append(cells)
     return screen_table("Standard uncertainty of the outputs (linear propagation of the stated uncertainties)",
-                        ["output", "value (SI)", "u, specs held", "u, ratios held"], rows)
+                        ["output", "value (SI)", *[_VIEW_HEADERS[name] for name, _, _ in linear.views]], rows)
 
 
 def write_histograms(study, path: Path) -> Path:
-    """One histogram per headline output of the as-operated view, the nominal value and any
-    spec target marked (:func:`solver.plots.sample_histograms`)."""
+    """One histogram per headline output of the as-operated view (a network's: specs held),
+    the nominal value and any spec target marked (:func:`solver.plots.sample_histograms`)."""
     from ..plots import sample_histograms
 
-    table = study.matrix("as_operated")
+    network = "as_operated" not in study.views
+    table = study.matrix(study.views[-1])
     targets = {chance.output: chance.target for chance in study.chances}
     panels = []
-    for k in _headline(study.outputs):
+    for k in _headline(study.outputs, network):
         output = study.outputs[k]
         label = output.unit if output.unit != "1" else "mole fraction" if "fraction" in output.key else ""
         panels.append((output.label, f"{label} (SI)", table[:, k], output.value, targets.get(output.key)))
-    return sample_histograms(panels, path, f"{study.title}: {len(study.outcomes)} samples, reflux and boilup ratios held")
+    held = "specs held" if network else "reflux and boilup ratios held"
+    return sample_histograms(panels, path, f"{study.title}: {len(study.outcomes)} samples, {held}")
 
 
-def _statistics_table(study, view: str, linear):
+def _statistics_table(study, view: str, linear, network: bool = False):
     from ..reports.display import screen_table
 
     stats = study.statistics(view)
     _, sensitivities, deviations = next(item for item in linear.views if item[0] == view)
     rows = []
-    for k in _headline(study.outputs):
+    for k in _headline(study.outputs, network):
         output = study.outputs[k]
         rows.append([output.label, f"{output.value:.6g}",
                      f"{deviations[sensitivities.output_index(output.key)]:.3g}",
@@ -78,6 +89,32 @@ def _statistics_table(study, view: str, linear):
     titles = {"as_specified": "Monte Carlo, specs held", "as_operated": "Monte Carlo, reflux and boilup ratios held"}
     return screen_table(titles[view], ["output", "nominal (SI)", "u linear", "u Monte Carlo", "2.5 %", "median",
                                        "97.5 %"], rows)
+
+
+def _nominal(case):
+    """The nominal solution of ``case``, the start of its samples, the linear propagation, and
+    the design's (reflux ratio, boilup ratio) and distillate rate (None for a network, which
+    holds its specs only)."""
+    from ..uncertainty import linear_uncertainty
+
+    if case.network is not None:
+        from ..network_engine import simulate_network
+        from ..network_sensitivity import NetworkSensitivityStudy, network_sensitivities
+        from ..warm_starts import network_start
+
+        nominal = simulate_network(case)
+        if not nominal.converged:
+            return nominal, None, None, (None, None), None
+        linear = linear_uncertainty(case, NetworkSensitivityStudy(network_sensitivities(case, nominal)))
+        return nominal, network_start(nominal), linear, (None, None), None
+    from ..engine import simulate, stage_profile
+    from ..sensitivity import sensitivity_study
+
+    nominal = simulate(case)
+    if not nominal.converged:
+        return nominal, None, None, (None, None), None
+    linear = linear_uncertainty(case, sensitivity_study(case, nominal))
+    return nominal, stage_profile(nominal), linear, (nominal.reflux_ratio, nominal.boilup_ratio), nominal.distillate_flow
 
 
 def command_uncertainty(args: argparse.Namespace) -> int:
@@ -90,22 +127,20 @@ def command_uncertainty(args: argparse.Namespace) -> int:
     if not case.uncertainties:
         raise CaseError("the case states no uncertainties", file=str(case_path), key="uncertainty",
                         expected="an [uncertainty] table (README.md, \"Case files\")")
-    from ..engine import simulate, stage_profile
-    from ..monte_carlo import (MonteCarloStudy, SampleLog, needed_reflux_specs, run_samples, spec_chances,
-                               study_fingerprint)
+    from ..monte_carlo import (NETWORK_VIEWS, VIEWS, MonteCarloStudy, SampleLog, needed_reflux_specs,
+                               run_samples, spec_chances, study_fingerprint)
     from ..results import write_atomic
-    from ..sensitivity import sensitivity_study
     from ..sweep import load_document
-    from ..uncertainty import draw_samples, linear_uncertainty
+    from ..uncertainty import draw_samples
     from ..workers import stop_workers, study_executor
 
     out = output_folder(args.out, case_path, "_uncertainty")
-    nominal = simulate(case)
+    network = case.network is not None
+    nominal, start, linear, ratios, distillate_rate = _nominal(case)
     if not nominal.converged:
         print(f"traystack: the nominal case does not converge ({nominal.message}); there is no solution to start "
               "the samples from", file=sys.stderr)
         return 3
-    linear = linear_uncertainty(case, sensitivity_study(case, nominal))
     samples, clipped = draw_samples(linear.inputs, args.samples, args.seed)
     document = load_document(case_path)
     log = SampleLog(out / "samples.jsonl", study_fingerprint(document, linear.inputs, args.seed), samples)
@@ -123,9 +158,8 @@ def command_uncertainty(args: argparse.Namespace) -> int:
                 progress.advance(task)
                 progress.refresh()
 
-            outcomes = run_samples(document, str(case_path), linear.inputs, samples, stage_profile(nominal),
-                                   (nominal.reflux_ratio, nominal.boilup_ratio), executor, progress=advance,
-                                   done=log.done, distillate_rate=nominal.distillate_flow)
+            outcomes = run_samples(document, str(case_path), linear.inputs, samples, start, ratios, executor,
+                                   progress=advance, done=log.done, distillate_rate=distillate_rate)
     except KeyboardInterrupt:
         stop_workers(executor)
         log.close()
@@ -139,17 +173,21 @@ def command_uncertainty(args: argparse.Namespace) -> int:
     executor.shutdown()
     log.close()
     outputs = linear.views[0][1].outputs
-    needed_specs = tuple(specs[0] for specs in needed_reflux_specs(case, nominal.distillate_flow))
+    needed_specs = tuple(specs[0] for specs in needed_reflux_specs(case, distillate_rate))
     study = MonteCarloStudy(case.title, args.seed, linear.inputs, samples, clipped, outputs, tuple(outcomes), (),
-                            time.perf_counter() - started, needed_specs)
-    study = dataclasses.replace(study, chances=spec_chances(case, outputs, study.matrix("as_operated")))
+                            time.perf_counter() - started, needed_specs, NETWORK_VIEWS if network else VIEWS)
+    if not network:
+        study = dataclasses.replace(study, chances=spec_chances(case, outputs, study.matrix("as_operated")))
     record = {**study.as_json(), "linear": linear.as_json()}
     written = [write_atomic(out / "uncertainty.json", json.dumps(record, indent=1) + "\n"),
                write_atomic(out / "uncertainty.csv", study.csv())]
-    if any(o.statuses[1] == "converged" for o in study.outcomes):
+    if any(o.statuses[-1] == "converged" for o in study.outcomes):
         written.append(write_histograms(study, out / "uncertainty.png"))
-    for view in ("as_specified", "as_operated"):
-        console.print(_statistics_table(study, view, linear))
+    for view in study.views:
+        console.print(_statistics_table(study, view, linear, network))
+    if network:
+        console.print("a column network is solved with its specs held only: the chance of meeting each spec at the "
+                      "design's reflux and the reflux needed to meet it are not computed for networks")
     for chance in study.chances:
         console.print(f"chance that {chance.output} is {chance.sense} {chance.target:g} at the design's reflux and "
                       f"boilup ratios: {chance.probability:.1%} ({chance.met} of {chance.converged} samples)")
@@ -163,11 +201,11 @@ def command_uncertainty(args: argparse.Namespace) -> int:
             console.print(f"{len(needed.unconverged)} sample(s) found no reflux meeting {needed.key}: "
                           + "; ".join(f"sample {i}: {message}" for i, _, message in needed.unconverged[:LISTED])
                           + (" ..." if len(needed.unconverged) > LISTED else ""))
-    for view in ("as_specified", "as_operated"):
+    for v, view in enumerate(study.views):
         failed = study.unconverged(view)
         if failed:
             console.print(f"{len(failed)} of {len(study.outcomes)} samples did not converge ({view}): "
-                          + "; ".join(f"sample {o.index}: {o.messages[('as_specified', 'as_operated').index(view)]}"
+                          + "; ".join(f"sample {o.index}: {o.messages[v]}"
                                       for o in failed[:LISTED]) + (" ..." if len(failed) > LISTED else ""))
     if clipped:
         console.print(f"{clipped} drawn value(s) lay outside their input's range and were clipped into it")

@@ -27,7 +27,7 @@ starts from its default start.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping, Sequence
+from typing import Sequence
 
 import numpy as np
 
@@ -35,7 +35,6 @@ from .case import Case
 from .engine import simulate, stage_profile
 from .errors import ConvergenceError, ThermoError
 from .network_engine import build_network_system, simulate_network
-from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
 from .network_unknowns import NetworkStart, network_start, scaled_start
 from .newton import NewtonOptions

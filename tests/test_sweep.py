@@ -21,10 +21,9 @@ from solver.sweep import (
     run_sweep,
     set_value,
     solve_point,
-    sweep_csv,
     sweep_points,
-    write_sweep_plot,
 )
+from solver.sweep_output import sweep_csv, write_sweep_plot
 
 # a small ideal column that solves in a fraction of a second
 CASE = """

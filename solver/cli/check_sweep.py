@@ -108,7 +108,8 @@ def add_check_command(sub) -> None:
 
 
 def command_sweep(args: argparse.Namespace) -> int:
-    from ..sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep, write_sweep_csv, write_sweep_plot
+    from ..sweep import SweepInterrupted, SweepResult, load_document, parse_variation, run_sweep
+    from ..sweep_output import write_sweep_csv, write_sweep_plot
     from ..sweep_log import LOG_NAME, PointLog
     from ..workers import stop_workers, study_executor
 

@@ -51,40 +51,26 @@ _SPEC_UNITS = {"distillate_rate": "mol/s", "bottoms_rate": "mol/s", "condenser_d
 
 
 # ---------------------------------------------------------------------- inputs
-def _with_network(case: Case, **changes) -> Case:
-    return dataclasses.replace(case, network=dataclasses.replace(case.network, **changes))
-
-
-def _with_section(index: int, change: Callable) -> Callable:
+def _network_item(field: str, index: int, change: Callable) -> Callable:
+    """An input's ``apply``: item ``index`` of the network's tuple ``field`` (columns, specs,
+    connections) replaced by ``change(item, value)``."""
     def apply(case: Case, thermo: ThermoPackage, value: float):
-        sections = list(case.network.columns)
-        sections[index] = change(sections[index], value)
-        return _with_network(case, columns=tuple(sections)), thermo
+        items = list(getattr(case.network, field))
+        items[index] = change(items[index], value)
+        return dataclasses.replace(case, network=dataclasses.replace(case.network, **{field: tuple(items)})), thermo
     return apply
 
 
 def _section_spec(position: int) -> Callable:
     def change(section, value: float):
         specs = list(section.specs)
-        specs[position] = dataclasses.replace(specs[position], value=value)
+        specs[position] = _spec_value(specs[position], value)
         return dataclasses.replace(section, specs=tuple(specs))
     return change
 
 
-def _network_spec(index: int) -> Callable:
-    def apply(case: Case, thermo: ThermoPackage, value: float):
-        specs = list(case.network.specs)
-        specs[index] = dataclasses.replace(specs[index], value=value)
-        return _with_network(case, specs=tuple(specs)), thermo
-    return apply
-
-
-def _connection(index: int, change: Callable) -> Callable:
-    def apply(case: Case, thermo: ThermoPackage, value: float):
-        connections = list(case.network.connections)
-        connections[index] = change(connections[index], value)
-        return _with_network(case, connections=tuple(connections)), thermo
-    return apply
+def _spec_value(spec, value: float):
+    return dataclasses.replace(spec, value=value)
 
 
 def _exchanger_value(field: str) -> Callable:
@@ -124,16 +110,16 @@ def _spec_inputs(case: Case) -> list[InputParameter]:
     for i, section in enumerate(network.columns):
         for j, spec in enumerate(section.specs):
             inputs.append(_spec_input(spec.key or f"{section.name}.specs.{spec.kind}", spec.kind, spec.value,
-                                      _with_section(i, _section_spec(j))))
+                                      _network_item("columns", i, _section_spec(j))))
     for k, spec in enumerate(network.specs):
-        inputs.append(_spec_input(spec.key or f"specs.{spec.kind}", spec.kind, spec.value, _network_spec(k)))
+        inputs.append(_spec_input(spec.key or f"specs.{spec.kind}", spec.kind, spec.value, _network_item("specs", k, _spec_value)))
     for k, connection in enumerate(network.connections):
         where = connection.key or connection.name
         for name, unit in (("flow", "mol/s"), ("fraction", "1")):
             value = getattr(connection, name)
             if value is not None and not connection.free:
                 inputs.append(InputParameter(f"{where}.{name}", f"connection {connection.name} {name}", "spec", value, unit,
-                                             value, _connection(k, lambda c, v, n=name: dataclasses.replace(c, **{n: v})),
+                                             value, _network_item("connections", k, lambda c, v, n=name: dataclasses.replace(c, **{n: v})),
                                              changes_column=True))
         exchanger = connection.exchanger
         if exchanger is not None:
@@ -142,7 +128,7 @@ def _spec_inputs(case: Case) -> list[InputParameter]:
                 if value is not None:
                     inputs.append(InputParameter(f"{where}.{exchanger.kind}.{name}", f"connection {connection.name} "
                                                  f"{exchanger.kind} {name.replace('_', ' ')}", "spec", value, unit,
-                                                 value or 1.0, _connection(k, _exchanger_value(name)), changes_column=True))
+                                                 value or 1.0, _network_item("connections", k, _exchanger_value(name)), changes_column=True))
     return inputs
 
 
@@ -152,13 +138,13 @@ def _column_inputs(case: Case) -> list[InputParameter]:
     for i, section in enumerate(case.network.columns):
         top = float(section.column.pressures[0])
         inputs.append(InputParameter(f"{section.name}.pressure.top", f"pressure of {section.name} (top, drop kept)",
-                                     "column", top, "Pa", top, _with_section(i, _top_pressure),
+                                     "column", top, "Pa", top, _network_item("columns", i, _top_pressure),
                                      changes_column=True, changes_feeds=True))
         trays = _trays(section.column)
         if len(trays):
             mean = float(np.mean(np.asarray(section.column.efficiencies)[trays]))
             inputs.append(InputParameter(f"{section.name}.efficiency", f"Murphree efficiency of the trays of {section.name}",
-                                         "column", mean, "1", mean, _with_section(i, _tray_efficiency), changes_column=True))
+                                         "column", mean, "1", mean, _network_item("columns", i, _tray_efficiency), changes_column=True))
     return inputs
 
 

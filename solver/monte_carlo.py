@@ -142,7 +142,7 @@ def solve_sample(document: Mapping, source_file: str, index: int, keys: Sequence
     held; with the design's ``distillate_rate`` (mol/s), also the reflux needed to meet each
     product spec (:func:`needed_reflux_specs`). A network case (inputs of
     :func:`~solver.network_sensitivity.network_inputs`, ``start`` a
-    :class:`~solver.warm_starts.NetworkStart`) is solved as specified only. Runs in a worker;
+    :class:`~solver.network_unknowns.NetworkStart`) is solved as specified only. Runs in a worker;
     never raises."""
     started = time.perf_counter()
     try:

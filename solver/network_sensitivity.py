@@ -37,10 +37,10 @@ from .network_graph import check_network
 from .network_mesh import NetworkSystem
 from .network_results import NetworkResult
 from .network_specs import network_products, resolve_specs
+from .network_unknowns import network_start, scaled_start
 from .sensitivity import RELATIVE_STEP, OutputQuantity, Sensitivities
 from .sensitivity_inputs import InputParameter, choose_inputs
 from .thermo.package import ThermoPackage
-from .warm_starts import network_start, scaled_start
 
 __all__ = ["NetworkSensitivityStudy", "network_inputs", "network_output_values", "network_sensitivities",
            "network_system_of", "network_unknowns"]

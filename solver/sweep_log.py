@@ -14,10 +14,10 @@ from typing import Any, Mapping, Sequence
 
 import numpy as np
 
+from .network_unknowns import NetworkStart
 from .streams import StageProfile
 from .study_log import StudyLog, fingerprint
 from .sweep import PointOutcome, Variation, sweep_points
-from .warm_starts import NetworkStart
 
 __all__ = ["LOG_NAME", "PointLog", "sweep_fingerprint"]
 

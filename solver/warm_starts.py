@@ -18,7 +18,7 @@ the line through the neighbour and the new point, the secant predictor (the prof
 extrapolated linearly along that line, component flows that would turn negative extrapolated
 geometrically), which leaves Newton a residual of the order of the square of the step.
 
-A network's start is its converged unknowns in SI (:class:`NetworkStart`: stage temperatures,
+A network's start is its converged unknowns in SI (:class:`~solver.network_unknowns.NetworkStart`: stage temperatures,
 component flows, the duties and free connection rates by name), scaled again by the next case's
 own flow and energy scales, with the zeroth-order predictor; a network of other stage counts
 starts from its default start.
@@ -43,9 +43,8 @@ from .shortening import stretch_profile
 from .streams import StageProfile
 from .thermo.package import ThermoPackage
 
-__all__ = ["NetworkStart", "SolvedPoint", "StageLayout", "WarmSolve", "extrapolated_profile", "fitted_start",
-           "mapped_start", "nearest_profile", "network_start", "scaled_start", "solve_warm", "solved_point",
-           "stage_layout", "starting_point", "warm_start"]
+__all__ = ["SolvedPoint", "StageLayout", "WarmSolve", "extrapolated_profile", "fitted_start", "mapped_start",
+           "nearest_profile", "solve_warm", "solved_point", "stage_layout", "starting_point", "warm_start"]
 
 
 @dataclass(frozen=True)

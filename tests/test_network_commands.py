@@ -12,13 +12,14 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-
 from conftest import NETWORK_EXAMPLE, network_example_case
+
 from solver.case import load_case
 from solver.cli import main
 from solver.network_engine import build_network_system, simulate_network
+from solver.network_unknowns import network_start, scaled_start
 from solver.sweep import parse_variation, run_sweep
-from solver.warm_starts import network_start, scaled_start, solve_warm
+from solver.warm_starts import solve_warm
 
 CASES = Path(__file__).parent.parent / "cases"
 

@@ -143,8 +143,8 @@ def test_unconverged_network_sample_is_listed(tmp_path):
     """A sample whose network cannot be solved is reported as such, with its message."""
     from solver.monte_carlo import solve_sample
     from solver.network_engine import simulate_network
+    from solver.network_unknowns import network_start
     from solver.sweep import load_document
-    from solver.warm_starts import network_start
 
     path = _case(tmp_path, SMALL)
     case = load_case(path)

@@ -16,7 +16,6 @@ import sys
 import time
 from pathlib import Path
 
-
 __all__ = ["add_uncertainty_command", "command_uncertainty", "linear_table", "write_histograms"]
 
 #: Unconverged samples listed on screen (all of them are in uncertainty.json).
@@ -100,7 +99,7 @@ def _nominal(case):
     if case.network is not None:
         from ..network_engine import simulate_network
         from ..network_sensitivity import NetworkSensitivityStudy, network_sensitivities
-        from ..warm_starts import network_start
+        from ..network_unknowns import network_start
 
         nominal = simulate_network(case)
         if not nominal.converged:
@@ -118,17 +117,25 @@ def _nominal(case):
 
 
 def command_uncertainty(args: argparse.Namespace) -> int:
-    from .common import console_for, output_folder, progress_bar, read_case
     from ..caution import CAUTION
     from ..errors import CaseError
+    from .common import console_for, output_folder, progress_bar, read_case
 
     console = console_for()
     case_path, case = read_case(args.case, "uncertainty")
     if not case.uncertainties:
         raise CaseError("the case states no uncertainties", file=str(case_path), key="uncertainty",
                         expected="an [uncertainty] table (README.md, \"Case files\")")
-    from ..monte_carlo import (NETWORK_VIEWS, VIEWS, MonteCarloStudy, SampleLog, needed_reflux_specs,
-                               run_samples, spec_chances, study_fingerprint)
+    from ..monte_carlo import (
+        NETWORK_VIEWS,
+        VIEWS,
+        MonteCarloStudy,
+        SampleLog,
+        needed_reflux_specs,
+        run_samples,
+        spec_chances,
+        study_fingerprint,
+    )
     from ..results import write_atomic
     from ..sweep import load_document
     from ..uncertainty import draw_samples

@@ -135,6 +135,9 @@ def test_run_solves_a_network_and_writes_schema_2(capsys, tmp_path):
     assert main(["run", str(EXAMPLE), "--out", str(tmp_path / "out")]) == 0
     screen = capsys.readouterr().out
     assert "stages of main" in screen and "stages of stripper" in screen
+    # the example's stripper vapor goes up from 1.15 to 1.17 bar: a caution on screen and in summary.md
+    assert "caution:" in screen and "stripper-vapor" in screen
+    assert "'stripper-vapor'): vapor from stripper stage 1 at 115 kPa" in (tmp_path / "out" / "summary.md").read_text()
     data = json.loads((tmp_path / "out" / "result.json").read_text())
     assert data["schema"] == "traystack-result/2" and data["converged"] is True
     assert {s["column"] for s in data["stages"]} == {"main", "stripper"}

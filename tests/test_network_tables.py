@@ -209,3 +209,17 @@ def test_readme_network_example_reads():
     assert [s.name for s in case.network.columns] == ["main", "stripper"]
     assert [c.name for c in case.network.connections] == ["to-stripper", "stripper-vapor", "pumparound"]
     assert len(check_network(case).degrees_of_freedom) == 4
+
+
+def test_vapor_sent_to_a_higher_pressure_is_a_warning_naming_both_pressures():
+    """Vapor flows only to a lower pressure. The example's stripper (top 1.15 bar) sends its
+    vapor to main stage 11 (1.1 bar + 10 x 0.7 kPa = 1.17 bar): the case is read, with a warning
+    naming the connection and both pressures. With the stripper at 1.18 bar there is none."""
+    (warning,) = parsed().warnings
+    for part in ("net.toml", "connections[1]", "'stripper-vapor'", "stripper stage 1 at 115 kPa", "main stage 11 at 117 kPa"):
+        assert part in warning, warning
+
+    def raised(data):
+        data["columns"][1]["pressure"] = {"top": "1.18 bar", "drop_per_stage": "0.5 kPa"}
+
+    assert parsed(raised).warnings == ()

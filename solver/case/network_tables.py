@@ -42,7 +42,7 @@ from solver.case.model import (
 from solver.case.specs_table import PRODUCTS, read_specs_table
 from solver.thermo.data import ComponentData
 
-__all__ = ["MAX_COLUMNS", "NETWORK_TOP_KEYS", "read_network"]
+__all__ = ["MAX_COLUMNS", "NETWORK_TOP_KEYS", "network_warnings", "read_network"]
 
 #: More columns than this is taken as a typing error, not a plant.
 MAX_COLUMNS = 50
@@ -373,3 +373,24 @@ def read_network(data: Mapping[str, Any], names: tuple[str, ...], component_data
     feeds, feed_columns = _read_network_feeds(data["feeds"], names, component_data, columns, at.child("feeds"))
     specs = _read_network_specs(data.get("specs", []), names, columns, connections, at.child("specs"))
     return Network(tuple(columns.values()), connections, heat_links, feed_columns, specs), feeds
+
+
+def network_warnings(network: Network, source_file: str = "<case>") -> list[str]:
+    """Warnings on a network that is valid but not as built: vapor sent through a connection to
+    a stage at a higher pressure than the stage it leaves (vapor flows only down a pressure
+    gradient; a compressor, which the network does not model, would be needed)."""
+    sections = {section.name: section.column for section in network.columns}
+    found = []
+    for connection in network.connections:
+        if connection.phase != "vapor":
+            continue
+        source = sections[connection.from_column].pressures[connection.from_stage - 1]
+        destination = sections[connection.to_column].pressures[connection.to_stage - 1]
+        if destination > source:
+            found.append(
+                f"{source_file}: {connection.key} ({connection.name!r}): vapor from {connection.from_column} stage {connection.from_stage} "
+                f"at {source / 1e3:.5g} kPa is sent up to {connection.to_column} stage {connection.to_stage} at "
+                f"{destination / 1e3:.5g} kPa; vapor flows only to a lower pressure, so set the columns' pressures so "
+                "that the receiving stage is lower (no compressor is modelled)"
+            )
+    return found

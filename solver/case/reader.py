@@ -16,7 +16,7 @@ from solver.case.components_table import read_components_table
 from solver.case.feeds_table import read_feeds_table
 from solver.case.fields import At, Field, plain, read_fields, read_text
 from solver.case.model import Case
-from solver.case.network_tables import read_network
+from solver.case.network_tables import network_warnings, read_network
 from solver.case.options_table import read_audit_table, read_check_table, read_display_table
 from solver.case.sizing_table import read_sizing_table
 from solver.case.specs_table import read_specs_table
@@ -117,6 +117,7 @@ def _parse(data: Any, at: At) -> Case:
     thermo = read_thermo_table(data.get("thermo", {}), names, at.child("thermo"))
     if "columns" in data:
         network, feeds = read_network(data, names, component_data, at)
+        warnings = [*warnings, *network_warnings(network, at.file)]
         column, specs = None, ()
     else:
         network = None

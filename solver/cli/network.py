@@ -77,13 +77,16 @@ def run_network(args: argparse.Namespace, case: Case, out: Path, console: Consol
         print(result.to_json())
     for table in network_tables(result, units, resolve_specs(case, check_network(case))):
         console.print(table)
-    print_liquid_flag(result, console)
+    print_network_cautions(result, console)
     return written, result
 
 
-def print_liquid_flag(result: NetworkResult, console: Console) -> None:
-    """The TWO_LIQUIDS flag of a converged network whose stage liquids the activity model says
-    would split (the test the network engine ran, ``extra["liquid_stability"]``)."""
+def print_network_cautions(result: NetworkResult, console: Console) -> None:
+    """The case reader's warnings, and the TWO_LIQUIDS flag of a converged network whose stage
+    liquids the activity model says would split (the test the network engine ran,
+    ``extra["liquid_stability"]``)."""
+    for warning in result.case.get("warnings", ()):
+        console.print(styled(("caution:", "yellow"), f" {warning}"))
     flag = two_liquids(result.extra.get("liquid_stability"), "stage")
     if flag is not None:
         console.print(styled((f"[{flag.severity}] {flag.code}:", "red"), f" {flag.message}"))
@@ -131,7 +134,7 @@ def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Cons
         console.print(screen_table(f"{result.title}: rigorous vapor beside the minimum vapor", ("quantity", "value"), rows))
         if audit.sequence_note:
             console.print(f"no conventional sequences: {audit.sequence_note}")
-    print_liquid_flag(result, console)
+    print_network_cautions(result, console)
     return network_outputs(result, case, out, units), result
 
 

@@ -43,6 +43,7 @@ def network_summary_markdown(result: NetworkResult, units: DisplayUnits, specs: 
     lines += ["## Cautions", ""]
     if not result.converged:
         lines.append(f"- NOT CONVERGED: {result.message}. Do not use these numbers.")
+    lines += [f"- {warning}" for warning in result.case.get("warnings", ())]
     lines += [f"- {CAUTION}", "", f"_Written by traystack {__version__}; result file schema {NETWORK_SCHEMA} (SI units)._", ""]
     return "\n".join(lines)
 

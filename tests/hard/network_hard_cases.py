@@ -55,12 +55,14 @@ def petlyuk(title: str, main: int, prefractionator: int, specs: str, *, liquid: 
             draw: str = "33 kmol/h", extra_specs: str = "") -> str:
     """A prefractionator (no condenser, no reboiler) coupled to a main column at its stages
     ``main // 6 + 1`` (liquid out, vapor in) and ``5 main // 6`` (vapor out, liquid in), with
-    a liquid side product in the middle."""
+    a liquid side product in the middle. The prefractionator's top is at the pressure of main
+    stage ``top + 1`` (as the feed side of a wall), so that both vapor connections flow to a
+    lower pressure."""
     top, bottom = main // 6 + 1, 5 * main // 6
     return (_header(title, AROMATICS)
             + _column("main", main, "total", "partial", "1.1 bar", specs,
                       f'side_draws = [{{ name = "toluene", stage = {main // 2}, phase = "liquid", flow = "{draw}" }}]')
-            + _column("prefractionator", prefractionator, "none", "none", "1.1025 bar")
+            + _column("prefractionator", prefractionator, "none", "none", f"{110 + 0.5 * top:g} kPa")
             + _connection("reflux", "main", top, "liquid", "prefractionator", 1, f"fraction = {liquid}")
             + _connection("overhead", "prefractionator", 1, "vapor", "main", top)
             + _connection("boilup", "main", bottom, "vapor", "prefractionator", prefractionator, vapor)

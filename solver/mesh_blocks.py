@@ -55,12 +55,15 @@ class StageState:
 
 
 def stage_state(thermo, T: np.ndarray, l: np.ndarray, v: np.ndarray, pressures: np.ndarray, vapor_inflow,
-                U: np.ndarray, W: np.ndarray, vapor_slot: Callable | None, liquid_slots: np.ndarray | None = None) -> StageState:
+                U: np.ndarray, W: np.ndarray, vapor_slot: Callable | None, liquid_slots: np.ndarray | None = None,
+                mixing_inflow=None) -> StageState:
     """The state of every stage: ``vapor_slot(T, y, vapor)`` gives (h, dh/dT, dh/dy) of the
     stream in each stage's vapor slot from the vapor's properties (a total condenser's slot
     holds liquid). Or, without ``vapor_slot``, the stages ``liquid_slots`` hold liquid of the
     vapor's composition in their vapor slots, evaluated in the same call of the thermo package
-    as every stage (one call instead of two)."""
+    as every stage (one call instead of two). ``mixing_inflow`` (default ``vapor_inflow``) is
+    the part of the vapor-slot inflow that is vapor, which a Murphree relation mixes: without
+    the liquid distillate of a total condenser sent on by a connection."""
     L = l.sum(axis=1)
     V = v.sum(axis=1)
     L_safe = np.maximum(L, TINY)
@@ -73,7 +76,8 @@ def stage_state(thermo, T: np.ndarray, l: np.ndarray, v: np.ndarray, pressures: 
     else:
         props, (h_V, dh_V_dT, dh_V_dx) = _with_liquid_slots(thermo, T, pressures, x, y, liquid_slots)
     vapor_in = vapor_inflow @ v
-    V_in_safe = np.maximum(vapor_in.sum(axis=1), TINY)
+    mixed_in = vapor_in if mixing_inflow is None else mixing_inflow @ v
+    V_in_safe = np.maximum(mixed_in.sum(axis=1), TINY)
     n, kv, liquid = len(T), props.k_values, props.liquid  # rows n: are liquid slots' (none with vapor_slot)
     return StageState(
         T=T, l=l, v=v, L=L, V=V, L_safe=L_safe, V_safe=V_safe, x=x, y=y,
@@ -82,7 +86,7 @@ def stage_state(thermo, T: np.ndarray, l: np.ndarray, v: np.ndarray, pressures: 
         h_L=liquid.molar[:n], dh_L_dT=liquid.d_dT[:n], dh_L_dx=liquid.d_dx[:n],
         h_V=h_V, dh_V_dT=dh_V_dT, dh_V_dx=dh_V_dx,
         liquid_draw_ratio=U / L_safe, vapor_draw_ratio=W / V_safe,
-        vapor_in=vapor_in, V_in_safe=V_in_safe, y_in=vapor_in / V_in_safe[:, None],
+        vapor_in=vapor_in, V_in_safe=V_in_safe, y_in=mixed_in / V_in_safe[:, None],
     )
 
 
@@ -153,10 +157,11 @@ def stage_blocks(s: StageState, gLx: np.ndarray, gVy: np.ndarray, U: np.ndarray,
 
 
 def edge_blocks(s: StageState, gLx: np.ndarray, gVy: np.ndarray, liquid_edges: np.ndarray, vapor_edges: np.ndarray,
-                E: np.ndarray, energy_scale: float) -> tuple[np.ndarray, np.ndarray]:
+                E: np.ndarray, energy_scale: float, vapor_mixes: np.ndarray | None = None) -> tuple[np.ndarray, np.ndarray]:
     """(E_L, w, w) and (E_V, w, w): derivatives of the receiving stage's rows with respect to
     the unknowns of the stage whose liquid (vapor) enters it, one block per edge (edges as
-    ``[source, destination]`` rows, the whole stream entering)."""
+    ``[source, destination]`` rows, the whole stream entering). ``vapor_mixes`` (default all
+    True) says which vapor-slot edges a Murphree relation mixes (see :func:`stage_state`)."""
     c = s.x.shape[1]
     w = 2 * c + 1
     inv_es = 1.0 / energy_scale
@@ -173,9 +178,10 @@ def edge_blocks(s: StageState, gLx: np.ndarray, gVy: np.ndarray, liquid_edges: n
     if len(ve):
         src, dst = ve[:, 0], ve[:, 1]
         vapor_blocks[:, :c, 1 + c :] = -eye
-        vapor_blocks[:, c : 2 * c, 1 + c :] = -((1 - E[dst]) / s.V_in_safe[dst])[:, None, None] * (
-            eye[None] - s.y_in[dst][:, :, None]
-        )
+        mixing = (1 - E[dst]) / s.V_in_safe[dst]
+        if vapor_mixes is not None:
+            mixing = np.where(vapor_mixes, mixing, 0.0)
+        vapor_blocks[:, c : 2 * c, 1 + c :] = -mixing[:, None, None] * (eye[None] - s.y_in[dst][:, :, None])
         vapor_blocks[:, 2 * c, 0] = -(s.V[src] * s.dh_V_dT[src]) * inv_es
         vapor_blocks[:, 2 * c, 1 + c :] = -(s.h_V[src, None] + s.dh_V_dx[src] - gVy[src, None]) * inv_es
     return liquid_blocks, vapor_blocks

@@ -23,7 +23,7 @@ from .errors import ConvergenceError, ThermoError
 from .feed_flash import flash_feed_list
 from .network_graph import check_network
 from .network_mesh import NetworkSystem
-from .network_results import NetworkResult
+from .network_results import NetworkResult, leaves_liquid_slot
 from .network_shortening import shortened_network, stretched_network_start
 from .network_specs import network_products, resolve_specs
 from .network_start import network_initial_estimate, network_starts
@@ -231,7 +231,10 @@ def network_result(case: Case, system: NetworkSystem, newton: NewtonResult, stra
         if c.exchanger is not None:
             duty = c.exchanger.duty if c.exchanger.duty is not None else float(extras[system.extra_index(f"{c.name}.duty")] * fe)
             duties[c.name] = duty
-        connections[c.name] = {"from": {"column": c.from_column, "stage": c.from_stage, "phase": c.phase},
+        source = {"column": c.from_column, "stage": c.from_stage, "phase": "liquid" if stream.carries_liquid else "vapor"}
+        if c.from_product is not None:
+            source["product"] = c.from_product
+        connections[c.name] = {"from": source,
                                "to": {"column": c.to_column, "stage": c.to_stage},
                                "flow": float(flow * fs), "fraction": stream.weight, "duty": duty}
     liquid = system.transfer_liquid
@@ -300,14 +303,14 @@ def network_post_check(result: NetworkResult, system: NetworkSystem) -> dict[str
             continue
         src = graph.index[(record["from"]["column"], record["from"]["stage"])]
         dst = graph.index[(record["to"]["column"], record["to"]["stage"])]
-        liquid = record["from"]["phase"] == "liquid"
+        liquid = leaves_liquid_slot(record)
         in_comp[dst] += record["flow"] * (x if liquid else y)[src]
         in_h[dst] += record["flow"] * (h_L if liquid else h_V)[src]
     l, v = L[:, None] * x, V[:, None] * y
     A_L, A_V = graph.liquid_inflow, graph.vapor_inflow
     balance = l + U[:, None] * x + v + W[:, None] * y - A_L @ l - A_V @ v - feeds - in_comp
     K = thermo.k_values(T, P, x, derivatives=False, y=y).K
-    vapor_in = A_V @ v
+    vapor_in = (A_V if system.mixing_inflow is None else system.mixing_inflow) @ v  # the vapors a Murphree relation mixes
     y_in = vapor_in / np.maximum(vapor_in.sum(axis=1), 1e-300)[:, None]
     E = result.efficiency[:, None]
     equilibrium = y - E * K * x - (1 - E) * y_in

@@ -43,16 +43,17 @@ __all__ = ["ConnectionStream", "DeferredEvaluation", "NetworkSystem", "SparseAss
 
 @dataclass(frozen=True)
 class ConnectionStream:
-    """Where a connection runs (global stage indices), its phase, and its size: ``weight`` (a
-    share of the phase, by the inflow matrices) or ``transfer`` (its column among the rate
-    connections)."""
+    """Where a connection runs (global stage indices), the slot it leaves, and its size:
+    ``weight`` (a share of the phase, by the inflow matrices) or ``transfer`` (its column
+    among the rate connections)."""
 
     name: str
     source: int
     destination: int
-    phase: str
+    phase: str  # the slot it leaves: "liquid" | "vapor"
     weight: float | None
     transfer: int | None
+    carries_liquid: bool = False  # a liquid stream (the liquid slot, or a total condenser's distillate)
 
 
 class NetworkSystem:
@@ -88,8 +89,18 @@ class NetworkSystem:
         self.free_feed_q = np.array([self.feeds[k].q for k in free], dtype=float)
         self.side_liquid_draws = graph.liquid_draws / self.flow_scale
         self.side_vapor_draws = graph.vapor_draws / self.flow_scale
-        has_vapor_in = np.asarray(graph.vapor_inflow.sum(axis=1)).ravel() > 0
         ends = np.isin(np.array(graph.roles), ("total_condenser", "partial_condenser", "reboiler"))
+        # a total condenser's vapor slot holds its liquid distillate: sent on by a connection it
+        # enters the balances as any stream, but no Murphree relation mixes it with the vapors
+        liquid_slots = np.flatnonzero(np.array(graph.roles) == "total_condenser")
+        self.mixing_inflow = None
+        if graph.vapor_inflow[:, liquid_slots].nnz:
+            keep = np.ones(len(graph.roles))
+            keep[liquid_slots] = 0.0
+            self.mixing_inflow = (graph.vapor_inflow @ sp.diags(keep)).tocsr()
+            self.mixing_inflow.eliminate_zeros()
+        mixing = graph.vapor_inflow if self.mixing_inflow is None else self.mixing_inflow
+        has_vapor_in = np.asarray(mixing.sum(axis=1)).ravel() > 0
         self.efficiencies = np.where(has_vapor_in & ~ends, graph.efficiencies, 1.0)
         # the total condensers: stage, reflux temperature (NaN: none), subcooling
         tops, reflux_T, shift = [], [], []
@@ -113,6 +124,8 @@ class NetworkSystem:
         g = self.graph
         self.liquid_edges, self.liquid_weights = _edges(g.liquid_inflow)
         self.vapor_edges, self.vapor_weights = _edges(g.vapor_inflow)
+        liquid_slot = np.array(g.roles) == "total_condenser"
+        self.vapor_mixes = None if self.mixing_inflow is None else ~liquid_slot[self.vapor_edges[:, 0]]
         M = len(g.transfer_names)
         self.transfer_source = np.array([g.transfer_source[:, m].nonzero()[0][0] for m in range(M)], dtype=int)
         self.transfer_destination = np.array([g.transfer_destination[:, m].nonzero()[0][0] for m in range(M)], dtype=int)
@@ -123,7 +136,8 @@ class NetworkSystem:
             source, destination = g.index[(c.from_column, c.from_stage)], g.index[(c.to_column, c.to_stage)]
             transfer = g.transfer_names.index(c.name) if c.name in g.transfer_names else None
             weight = None if transfer is not None else (1.0 if c.takes_all else c.fraction)
-            streams[c.name] = ConnectionStream(c.name, source, destination, c.phase, weight, transfer)
+            carries_liquid = c.phase == "liquid" or g.roles[source] == "total_condenser"
+            streams[c.name] = ConnectionStream(c.name, source, destination, c.phase, weight, transfer, carries_liquid)
         self.connections = streams
 
     def _build_extras(self, network) -> None:
@@ -303,11 +317,11 @@ class NetworkSystem:
         name = row.extra.rsplit(".", 1)[0]
         stream = self.connections[name]
         g, c = stream.source, self.c
-        liquid = stream.phase == "liquid"
+        liquid = stream.phase == "liquid"  # the slot (a total condenser's vapor slot holds liquid)
         z = s.x[g] if liquid else s.y[g]
         total = s.L_safe[g] if liquid else s.V_safe[g]
         T_ret, P = np.array([row.value]), self.pressures[g : g + 1]
-        at_return = (self.thermo.liquid_enthalpy if liquid else self.thermo.vapor_enthalpy)(T_ret, z[None, :], pressure=P)
+        at_return = (self.thermo.liquid_enthalpy if stream.carries_liquid else self.thermo.vapor_enthalpy)(T_ret, z[None, :], pressure=P)
         h, dh_dT, dh_dz = (s.h_L[g], s.dh_L_dT[g], s.dh_L_dx[g]) if liquid else (s.h_V[g], s.dh_V_dT[g], s.dh_V_dx[g])
         difference = (at_return.molar[0] - h) / self.energy_scale
         flow, flow_cols, flow_vals = self.connection_flow(s, extras, name)
@@ -325,7 +339,8 @@ class NetworkSystem:
         T, l, v, extras = self.unpack(X)
         rates = self.transfer_rates(extras)
         U, W = self.draws(rates)
-        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, None, self.total_condensers)
+        s = stage_state(self.thermo, T, l, v, self.pressures, self.graph.vapor_inflow, U, W, None, self.total_condensers,
+                        self.mixing_inflow)
         return s, extras, rates, U, W
 
     def _transfer_inflows(self, s: StageState, rates: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -403,7 +418,8 @@ class NetworkSystem:
         blocks = stage_blocks(s, gLx, gVy, U, W, self.efficiencies, self.energy_scale)
         if bubble is not None:
             self._total_condenser_blocks(s, bubble, blocks)
-        liquid_blocks, vapor_blocks = edge_blocks(s, gLx, gVy, self.liquid_edges, self.vapor_edges, self.efficiencies, self.energy_scale)
+        liquid_blocks, vapor_blocks = edge_blocks(s, gLx, gVy, self.liquid_edges, self.vapor_edges, self.efficiencies, self.energy_scale,
+                                                  self.vapor_mixes)
         liquid_blocks *= self.liquid_weights[:, None, None]
         vapor_blocks *= self.vapor_weights[:, None, None]
         transfer_blocks = self._transfer_blocks(s, rates, gLx, gVy)

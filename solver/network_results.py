@@ -23,7 +23,7 @@ import numpy as np
 from .results import UNITS, Result, json_safe, stages_csv_text, write_atomic
 from .streams import FlashedFeed
 
-__all__ = ["NETWORK_SCHEMA", "NetworkResult", "write_network_result_json", "write_network_stages_csv"]
+__all__ = ["NETWORK_SCHEMA", "NetworkResult", "leaves_liquid_slot", "write_network_result_json", "write_network_stages_csv"]
 
 NETWORK_SCHEMA = "traystack-result/2"
 
@@ -173,7 +173,7 @@ class NetworkResult:
         vapor_draw = self.vapor_draw[stages] + self.transfer_vapor[stages]
         feeds = [list(self.stage_feeds[g]) for g in stages]
         for connection_name, c in self.connections.items():
-            source, liquid = self._stage_index(c["from"]), c["from"]["phase"] == "liquid"
+            source, liquid = self._stage_index(c["from"]), leaves_liquid_slot(c)
             if c["from"]["column"] == name and c["fraction"] is not None:
                 end = c["from"]["stage"] == (column["stages"] if liquid else 1)
                 if not end:
@@ -183,7 +183,7 @@ class NetworkResult:
                 composition = (self.x if liquid else self.y)[source]
                 h = (self.h_liquid if liquid else self.h_vapor)[source]
                 feeds[c["to"]["stage"] - 1].append(FlashedFeed(c["to"]["stage"], c["flow"], tuple(composition.tolist()), float(h),
-                                                               1.0 if liquid else 0.0, connection_name,
+                                                               1.0 if c["from"]["phase"] == "liquid" else 0.0, connection_name,
                                                                float(self.temperature[source]), float(self.pressure[source])))
         return Result(
             title=f"{self.title}: column {name}", case={**self.case, "column": {}}, converged=self.converged,
@@ -205,6 +205,13 @@ class NetworkResult:
         sent on by rate connections beside the side draws; SI units in the headers."""
         return stages_csv_text(self.stage_records(), self.components, leading=("column",),
                                trailing=("transfer_liquid", "transfer_vapor"))
+
+
+def leaves_liquid_slot(record: Mapping[str, Any]) -> bool:
+    """Whether a connection's record (``NetworkResult.connections``) leaves its stage's liquid
+    slot: a total condenser's distillate is liquid but leaves the vapor slot (the engine's
+    convention), and its record names the product."""
+    return record["from"]["phase"] == "liquid" and record["from"].get("product") != "distillate"
 
 
 def write_network_stages_csv(result: NetworkResult, path: str | os.PathLike):

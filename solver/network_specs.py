@@ -172,7 +172,14 @@ def _return_temperature_residual(system, s, extras, row: SpecRow):
 
 
 def _achieved_product(result, row: SpecRow) -> Mapping:
-    return result.products[row.product.name]
+    """The product's record in the result, or for a distillate (bottoms) that goes on through
+    connections its stream's flow and composition."""
+    p = row.product
+    if p.name in result.products:
+        return result.products[p.name]
+    liquid = p.phase == "liquid"
+    return {"flow": p.share * float((result.liquid_flow if liquid else result.vapor_flow)[p.stage]),
+            "composition": (result.x if liquid else result.y)[p.stage].tolist()}
 
 
 def _achieved_ratio(result, row: SpecRow) -> float:
@@ -231,11 +238,15 @@ def resolve_specs(case: Case, graph: NetworkGraph) -> tuple[SpecRow, ...]:
     rows: list[SpecRow] = []
 
     def product(column: str, which: str) -> ProductRef:
+        """A column's distillate (bottoms), whether it is a product or goes on through
+        connections (then all of the top's vapor slot, or of the bottom's liquid: a reflux ratio
+        divides by it, a spec on it sets the stream that goes on)."""
         name = f"{column}.{which}"
-        if name not in products:
-            raise SpecError(f"{case.source_file or '<case>'}: a spec names {name}, but all of that stream goes on "
-                            "through a connection: it is no product")
-        return products[name]
+        if name in products:
+            return products[name]
+        stages = network.section(column).column.stages
+        stage, phase = (1, "vapor") if which == "distillate" else (stages, "liquid")
+        return ProductRef(name, _column_stage(graph, column, stage), phase, share=1.0)
 
     for section in network.columns:
         n = section.column.stages
@@ -272,6 +283,8 @@ def resolve_specs(case: Case, graph: NetworkGraph) -> tuple[SpecRow, ...]:
             rows.append(SpecRow(kind, spec.value, label, extra=f"{connection.name}.duty", phase=connection.phase))
         elif kind in ("product_flow", "mole_fraction", "recovery"):
             ref = products.get(spec.equipment)
+            if ref is None and spec.column is not None and spec.equipment.endswith((".distillate", ".bottoms")):
+                ref = product(spec.column, spec.equipment.rsplit(".", 1)[1])
             if ref is None:
                 raise SpecError(f"{label}: {spec.equipment} goes on through a connection: it is no product")
             if kind == "product_flow" and ref.rate is not None:

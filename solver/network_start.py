@@ -315,7 +315,7 @@ def _stage_enthalpies(system: NetworkSystem, T: np.ndarray, x: np.ndarray, y: np
         if row.kind == "return_temperature":
             stream = system.connections[row.extra.rsplit(".", 1)[0]]
             g, liquid = stream.source, stream.phase == "liquid"
-            enthalpy = thermo.liquid_enthalpy if liquid else thermo.vapor_enthalpy
+            enthalpy = thermo.liquid_enthalpy if stream.carries_liquid else thermo.vapor_enthalpy
             at_return = enthalpy(np.array([row.value]), (x if liquid else y)[g][None, :], pressure=P[g : g + 1]).molar[0]
             differences[row.extra] = (at_return - (h_L if liquid else h_V)[g]) / scale
     return h_L / scale, h_V / scale, differences

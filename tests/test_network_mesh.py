@@ -68,6 +68,16 @@ def _free_feed(data):
     data["columns"][0]["specs"] = {"reflux_ratio": 2.5, "distillate_rate": "39 kmol/h"}
 
 
+def _distillate_sent(**size):
+    """Part of the main column's liquid distillate sent by a connection (it travels in the total
+    condenser's vapor slot): a share back to main stage 6, a tray of efficiency 0.8 whose
+    Murphree relation must not mix it with the vapor, or a rate to the stripper."""
+    def change(data):
+        to = {"column": "main", "stage": 6} if "fraction" in size else {"column": "stripper", "stage": 3}
+        data["connections"].append({"name": "distillate-sent", "from": {"column": "main", "product": "distillate"}, "to": to, **size})
+    return change
+
+
 def _compose(*changes):
     def change(data):
         for one in changes:
@@ -97,6 +107,8 @@ VARIANTS = {
     "free feed rate (a make-up)": _free_feed,
     "subcooled reflux": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_subcooling="5 K"),
     "reflux temperature": _column_specs(0, reflux_ratio=2.5, distillate={"benzene": 0.98}, reflux_temperature="70 degC"),
+    "a share of the distillate back to a Murphree tray": _distillate_sent(fraction=0.2),
+    "a rate of the distillate to the stripper": _distillate_sent(flow="5 kmol/h"),
 }
 
 

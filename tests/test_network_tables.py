@@ -223,3 +223,39 @@ def test_vapor_sent_to_a_higher_pressure_is_a_warning_naming_both_pressures():
         data["columns"][1]["pressure"] = {"top": "1.18 bar", "drop_per_stage": "0.5 kPa"}
 
     assert parsed(raised).warnings == ()
+
+
+def test_a_connection_may_name_a_product_instead_of_a_stage():
+    """``from = { column, product }``: the distillate leaves stage 1 in its vapor slot (on a
+    total condenser, the liquid distillate), the bottoms the last stage's liquid."""
+    def products(data):
+        data["connections"][1]["from"] = {"column": "main", "product": "distillate"}
+        data["connections"][0]["from"] = {"column": "main", "product": "bottoms"}
+
+    to_stripper, sent = parsed(products).network.connections[:2]
+    assert (sent.from_column, sent.from_stage, sent.phase, sent.from_product) == ("main", 1, "vapor", "distillate")
+    assert (to_stripper.from_stage, to_stripper.phase, to_stripper.from_product) == (20, "liquid", "bottoms")
+
+
+def test_a_connection_from_a_product_is_refused_where_there_is_none():
+    def no_condenser(data):
+        data["connections"][1]["from"] = {"column": "stripper", "product": "distillate"}
+
+    refused(no_condenser, "connections[1].from.product", "'stripper' has no condenser", "stage = 1, phase")
+
+    def unknown(data):
+        data["connections"][1]["from"] = {"column": "main", "product": "side"}
+
+    refused(unknown, "connections[1].from.product", "'side'", "distillate")
+
+    def both(data):
+        data["connections"][1]["from"] = {"column": "main", "product": "distillate", "stage": 1}
+
+    refused(both, "connections[1].from.stage", "unknown key")
+
+
+def test_vapor_from_a_total_condenser_is_refused_with_the_product_form():
+    def vapor(data):
+        data["connections"][1]["from"] = {"column": "main", "stage": 1, "phase": "vapor"}
+
+    refused(vapor, "connections[1].from.phase", "total condenser", 'product = "distillate"')

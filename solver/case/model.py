@@ -237,7 +237,10 @@ class ConnectionExchanger:
 class Connection:
     """A stream from a stage's liquid or vapor to a stage of the same or another column. Its
     size is one of: ``flow`` (a fixed rate, mol/s), ``fraction`` (of the phase leaving the
-    stage for its neighbours), ``free`` (a rate a spec sets), or neither (all of that phase)."""
+    stage for its neighbours), ``free`` (a rate a spec sets), or neither (all of that phase).
+    ``from_product`` is set when the file names a column's product (``"distillate"``,
+    ``"bottoms"``) instead of a stage and phase: the distillate leaves stage 1 in its vapor
+    slot (``phase`` "vapor"), which on a total condenser holds the liquid distillate."""
 
     name: str
     from_column: str
@@ -250,6 +253,7 @@ class Connection:
     free: bool = False
     exchanger: ConnectionExchanger | None = None
     key: str = ""  # where it came from in the file: "connections[1]"
+    from_product: str | None = None  # "distillate" | "bottoms" when the file names the product
 
     @property
     def takes_all(self) -> bool:

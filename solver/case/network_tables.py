@@ -121,20 +121,14 @@ def _read_connection(entry: Any, index: int, columns: Mapping[str, ColumnSection
     check_keys(table, at, ("name", "from", "to", "flow", "fraction", "cooling", "heating"), required=("name", "from", "to"))
     name = _read_name(table["name"], at.child("name"))
     source_at, destination_at = at.child("from"), at.child("to")
-    source = read_table(table["from"], source_at, "{ column = ..., stage = ..., phase = \"liquid\" }")
-    check_keys(source, source_at, ("column", "stage", "phase"), required=("column", "stage", "phase"))
+    source = read_table(table["from"], source_at, "{ column = ..., stage = ..., phase = \"liquid\" } or { column = ..., product = \"distillate\" }")
     destination = read_table(table["to"], destination_at, "{ column = ..., stage = ... }")
     check_keys(destination, destination_at, ("column", "stage"), required=("column", "stage"))
-    from_column = _column_name(source["column"], columns, source_at.child("column"))
-    from_stage = _stage(source["stage"], columns[from_column], source_at.child("stage"))
-    phase = read_choice(source["phase"], source_at.child("phase"), ("liquid", "vapor"))
+    from_column, from_stage, phase, from_product = _source(source, columns, source_at)
     to_column = _column_name(destination["column"], columns, destination_at.child("column"))
     to_stage = _stage(destination["stage"], columns[to_column], destination_at.child("stage"))
     if (from_column, from_stage) == (to_column, to_stage):
         destination_at.fail("a connection must lead to another stage", dict(destination), "a stage other than its source")
-    column = columns[from_column].column
-    if phase == "vapor" and from_stage == 1 and column.condenser == "total":
-        source_at.child("phase").fail(f"stage 1 of {from_column!r} is a total condenser: it sends no vapor", source["phase"], "\"liquid\"")
     if "flow" in table and "fraction" in table:
         at.fail("give flow or fraction, not both", {"flow": table["flow"], "fraction": table["fraction"]},
                 "flow = \"40 kmol/h\", flow = \"free\" or fraction = 0.3 (neither: all of that phase)")
@@ -153,7 +147,32 @@ def _read_connection(entry: Any, index: int, columns: Mapping[str, ColumnSection
     for kind in ("cooling", "heating"):
         if kind in table:
             exchanger = _read_exchanger(kind, table[kind], at.child(kind))
-    return Connection(name, from_column, from_stage, phase, to_column, to_stage, flow, fraction, free, exchanger, at.key)
+    return Connection(name, from_column, from_stage, phase, to_column, to_stage, flow, fraction, free, exchanger, at.key,
+                      from_product)
+
+
+def _source(source: Mapping[str, Any], columns: Mapping[str, ColumnSection], at: At) -> tuple[str, int, str, str | None]:
+    """(column, stage, phase, product) of a connection's ``from``: a stage and its phase, or a
+    column's product. The distillate leaves stage 1 in the vapor slot, which on a total
+    condenser holds the liquid distillate; the bottoms is the last stage's liquid."""
+    if "product" in source:
+        check_keys(source, at, ("column", "product"), required=("column", "product"))
+        column_name = _column_name(source["column"], columns, at.child("column"))
+        product = read_choice(source["product"], at.child("product"), ("distillate", "bottoms"))
+        column = columns[column_name].column
+        if product == "distillate" and column.condenser == "none":
+            at.child("product").fail(f"{column_name!r} has no condenser, so no distillate: name its top stage's vapor",
+                                     product, "{ column = ..., stage = 1, phase = \"vapor\" }")
+        return (column_name, 1, "vapor", product) if product == "distillate" else (column_name, column.stages, "liquid", product)
+    check_keys(source, at, ("column", "stage", "phase"), required=("column", "stage", "phase"))
+    column_name = _column_name(source["column"], columns, at.child("column"))
+    stage = _stage(source["stage"], columns[column_name], at.child("stage"))
+    phase = read_choice(source["phase"], at.child("phase"), ("liquid", "vapor"))
+    if phase == "vapor" and stage == 1 and columns[column_name].column.condenser == "total":
+        at.child("phase").fail(f"stage 1 of {column_name!r} is a total condenser: it sends no vapor; to send its "
+                               "distillate on, name the product", source["phase"],
+                               f"from = {{ column = \"{column_name}\", product = \"distillate\" }}")
+    return column_name, stage, phase, None
 
 
 def _check_splits(connections: list[Connection], at: At) -> None:
@@ -382,7 +401,8 @@ def network_warnings(network: Network, source_file: str = "<case>") -> list[str]
     sections = {section.name: section.column for section in network.columns}
     found = []
     for connection in network.connections:
-        if connection.phase != "vapor":
+        pumped = connection.from_stage == 1 and sections[connection.from_column].condenser == "total"  # liquid distillate
+        if connection.phase != "vapor" or pumped:
             continue
         source = sections[connection.from_column].pressures[connection.from_stage - 1]
         destination = sections[connection.to_column].pressures[connection.to_stage - 1]

@@ -63,7 +63,7 @@ def spec_column(result: NetworkResult, row: SpecRow) -> str:
     """The column a spec belongs to: its product's, its stage's, its split stage's, or the
     column whose exchanger or connection it sets (a connection's: the column it leaves)."""
     if row.product is not None:
-        return result.products[row.product.name]["column"]
+        return result.stage_column[row.product.stage]
     stage = row.stage if row.stage >= 0 else row.source_stage
     if stage >= 0:
         return result.stage_column[stage]

@@ -63,6 +63,31 @@ def test_make_up_replaces_the_water_the_products_carry_away():
     assert result.products["recovery.distillate"]["composition"][methanol] > 0.99
 
 
+def test_pressure_swing_crosses_the_azeotrope_of_each_pressure():
+    """The two distillates go on whole (no distillate products) and each lies on the far side
+    of the other column's azeotrope: the 1-bar distillate is richer in acetone than the 10-bar
+    azeotrope, the 10-bar distillate leaner than the 1-bar one (NRTL of the case: about 0.79 at
+    1 bar and 0.37 at 10 bar, the EquilibriumCurve azeotrope search, checked here too)."""
+    from solver.shortcut.equilibrium_curve import EquilibriumCurve
+    from solver.thermo.package import ThermoPackage
+
+    case = load_case(CASES / "acetone_methanol_pressure_swing.toml")
+    result = _solved("acetone_methanol_pressure_swing")
+    assert set(result.products) == {"low-pressure.bottoms", "high-pressure.bottoms"}
+    thermo = ThermoPackage.from_case(case)
+    (low,) = EquilibriumCurve.from_thermo(thermo, 1e5, 0).azeotropes
+    (high,) = EquilibriumCurve.from_thermo(thermo, 10e5, 0).azeotropes
+    assert 0.75 < low.x < 0.83 and 0.33 < high.x < 0.41
+    acetone = result.components.index("acetone")
+    to_high = result.x[result.column_stages("low-pressure")[0], acetone]
+    back = result.x[result.column_stages("high-pressure")[0], acetone]
+    assert high.x < back < to_high < low.x
+    # acetone leaves at 10 bar, methanol at 1 bar; the recycle is the high-pressure distillate
+    assert result.products["high-pressure.bottoms"]["flow"] == pytest.approx(50 * KMOL_PER_HOUR, rel=1e-3)
+    assert result.connections["recycle"]["flow"] == pytest.approx(
+        result.connections["low-pressure-distillate"]["flow"] - result.products["high-pressure.bottoms"]["flow"], rel=1e-9)
+
+
 def test_a_free_feed_without_its_spec_is_named():
     text = (CASES / "acetone_methanol_extractive.toml").read_text()
     text = text.replace('[[specs]]\non = "recovery.bottoms"\nflow = "0.5 kmol/h"\n', "")

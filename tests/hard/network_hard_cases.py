@@ -132,4 +132,15 @@ NETWORK_HARD_CASES: dict[str, str] = {
     "extractive_with_recycle": shipped("acetone_methanol_extractive"),
     "extractive_more_reflux": shipped("acetone_methanol_extractive", ('reflux_ratio = 4.0', 'reflux_ratio = 5.0')),
     "extractive_more_solvent": shipped("acetone_methanol_extractive", ('flow = "200 kmol/h"', 'flow = "250 kmol/h"')),
+    # pressure swing: each column's distillate goes on whole, one of them as the recycle
+    "pressure_swing": shipped("acetone_methanol_pressure_swing"),
+    "pressure_swing_purer": shipped("acetone_methanol_pressure_swing", ("bottoms = { methanol = 0.995 }", "bottoms = { methanol = 0.998 }"),
+                                    ("bottoms = { acetone = 0.995 }", "bottoms = { acetone = 0.998 }")),
+    "pressure_swing_less_reflux": shipped("acetone_methanol_pressure_swing", ("reflux_ratio = 3.0", "reflux_ratio = 2.2")),
+    "indirect_sequence_purities": (_header("Indirect sequence: o-xylene first, then benzene from toluene", AROMATICS)
+                                   + _column("first", 30, "total", "partial", "1.1 bar", 'reflux_ratio = 2.5\nbottoms = { o-xylene = 0.97 }')
+                                   + _column("second", 30, "total", "partial", "1.05 bar", 'distillate = { benzene = 0.97 }\nbottoms = { toluene = 0.95 }')
+                                   + '[[connections]]\nname = "first-distillate"\nfrom = { column = "first", product = "distillate" }\n'
+                                     'to = { column = "second", stage = 15 }\n'
+                                   + _feed("first", 15, BTX_FEED)),
 }

@@ -167,12 +167,14 @@ class SweepResult:
 
     def end_products(self) -> tuple[str, str]:
         """The products whose purities the study shows: the distillate and the bottoms, of a
-        network the first column's that has each."""
+        network the first distillate and the first bottoms among its products (two different
+        products where there are two: where no distillate is a product, the first two bottoms)."""
         if not self.network:
             return "distillate", "bottoms"
-        names = [name for outcome in self.outcomes for name in (outcome.products or {})]
+        names = list(dict.fromkeys(name for outcome in self.outcomes for name in (outcome.products or {})))
         top = next((name for name in names if name.endswith(".distillate")), names[0] if names else "")
-        bottom = next((name for name in names if name.endswith(".bottoms")), names[-1] if names else "")
+        others = [name for name in names if name != top] or [top]
+        bottom = next((name for name in others if name.endswith(".bottoms")), others[-1])
         return top, bottom
 
     def key_components(self) -> tuple[int, int] | None:

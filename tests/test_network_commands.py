@@ -132,3 +132,15 @@ def test_size_command_sizes_every_column(tmp_path, capsys):
     assert "## Sizing of column main" in text and "## Sizing of column stripper" in text
     for name in ("flood_main.png", "flood_stripper.png"):
         assert (out / name).read_bytes()[:4] == b"\x89PNG"
+
+
+def test_a_network_without_distillate_products_shows_two_different_products():
+    """Pressure swing: both distillates go on through connections, so the study's two shown
+    products are the two bottoms, not one bottoms twice."""
+    from solver.sweep import PointOutcome, SweepResult
+
+    products = {"low-pressure.bottoms": (13.9, (0.005, 0.995)), "high-pressure.bottoms": (13.9, (0.995, 0.005))}
+    outcome = PointOutcome(0, (3.0,), "converged", products=products, duties={"low-pressure.reboiler": 1.0})
+    result = SweepResult((), ("acetone", "methanol"), (outcome,))
+    assert result.end_products() == ("low-pressure.bottoms", "high-pressure.bottoms")
+    assert result.key_components() == (1, 0)

@@ -115,7 +115,8 @@ def feed_sums_by_stage(feeds: Sequence[FlashedFeed], stage_count: int, component
 def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[PlacedSpec, ...]:
     """Check the degrees of freedom, resolve each spec into its row
     (:func:`~solver.spec_kinds.column_spec_rows`: the distillate is the top stage's vapor slot,
-    the bottoms the bottom stage's liquid slot) and give it the enthalpy-balance row it takes.
+    the bottoms the bottom stage's liquid slot) and give it the enthalpy-balance row it takes
+(in the order of ``specs``).
 
     A column has one degree of freedom for a condenser and one for a reboiler (feeds, stage
     count, pressures, draws and side duties being fixed). Raises :class:`SpecError` naming the
@@ -146,20 +147,18 @@ def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequ
     spec_rows = column_spec_rows(specs, component_names, stage_count=graph.stage_count, exchangers=exchangers,
                                  exchanger_stage=stage_of.__getitem__, product=products.__getitem__,
                                  stage_index=lambda n: n - 1)
-    rows: list[PlacedSpec] = []
     remaining = list(free_rows)
-    pending = []
-    for row in spec_rows:
+    stages: dict[int, int] = {}
+    for k, row in enumerate(spec_rows):
         if row.extra in stage_of:
             wanted = stage_of[row.extra]
             if wanted not in remaining:
                 raise SpecError(f"{row.label}: given twice")
             remaining.remove(wanted)
-            rows.append(PlacedSpec(row, wanted))
-        else:
-            pending.append(row)
-    for row, stage in zip(pending, remaining):
-        rows.append(PlacedSpec(row, stage))
+            stages[k] = wanted
+    pending = [k for k in range(len(spec_rows)) if k not in stages]
+    stages.update(zip(pending, remaining))
+    rows = [PlacedSpec(row, stages[k]) for k, row in enumerate(spec_rows)]
     return tuple(rows)
 
 
@@ -191,6 +190,8 @@ class MeshSystem:
         self.width = 2 * self.c + 1
         self.size = self.N * self.width
         self.spec_rows = assign_specs(graph, self.specs, self.component_names)
+        #: the specs' rows (:class:`~solver.spec_kinds.SpecRow`), in the order of :attr:`specs`
+        self.rows = tuple(placed.row for placed in self.spec_rows)
         self.condenser_setting = condenser_setting
         #: (N, c) mol/s and (N,) W: the feeds summed stage by stage
         self.feed_component_flows, self.feed_enthalpy_flows = feed_sums_by_stage(self.feeds, self.N, self.c)

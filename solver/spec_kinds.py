@@ -37,6 +37,8 @@ __all__ = [
     "ProductRef",
     "SpecKind",
     "SpecRow",
+    "StartBasis",
+    "StartHandling",
     "column_spec_rows",
 ]
 
@@ -72,17 +74,55 @@ class SpecRow:
 
 
 @dataclass(frozen=True)
+class StartBasis:
+    """What one column's default start knows when it reads the specs (scaled flows): the feed
+    less side draws, the flow scale (mol/s), a mean molar latent heat (J/mol) and the vapor
+    the feeds bring."""
+
+    net_feed: float
+    flow_scale: float
+    latent_heat: float
+    vapor_in_feeds: float
+
+
+@dataclass(frozen=True)
+class StartHandling:
+    """What a kind of spec tells the default starts.
+
+    One column (:mod:`solver.initial`): ``overhead(row, basis)`` the overhead rate D (scaled)
+    it fixes; ``top_vapor(row, basis)`` (a, b) with the top vapor rate ``V_top = a + b D``;
+    ``split_error(row, top, bottom, feed)`` how far a product split (component flows, scaled)
+    is from it: a composition spec, met by the Fenske split's D; ``profile_error(row, T, top,
+    bottom, feed)`` how far a CMO profile is from it, met by moving D (and the reflux).
+
+    A network (:mod:`solver.network_start`): ``relation(start, r, row)`` writes its row ``r``
+    of the CMO linear system through the start's seam (``system``, ``A``, ``b``, ``fixed``,
+    ``rate``, ``differences``, ``column_of(stage)``, ``ratio_of_two(r, column)``,
+    ``half_the_feed(r, column)``, ``guessed_product_rate(row)``) and returns the product rate
+    it guessed, if any; ``fixes(row, column_of)`` the (column, ``"rate"`` or ``"ratio"``) a
+    linear spec fixes, or None."""
+
+    relation: Callable
+    overhead: Callable | None = None
+    top_vapor: Callable | None = None
+    split_error: Callable | None = None
+    profile_error: Callable | None = None
+    fixes: Callable | None = None
+
+
+@dataclass(frozen=True)
 class SpecKind:
     """A kind of spec: its residual (see the module docstring), its words in reports, the
     quantity its value is (``ratio``, ``flow`` mol/s, ``fraction``, ``temperature`` K,
-    ``duty`` W) and how reports read the value reached from a solved network
+    ``duty`` W), how reports read the value reached from a solved network
     (``achieved(result, row)``, :class:`~solver.network_results.NetworkResult`; None where
-    the result alone does not give it)."""
+    the result alone does not give it) and what it tells the default starts."""
 
     residual: Callable
     words: str
-    quantity: str = "ratio"
-    achieved: Callable | None = None
+    quantity: str
+    achieved: Callable | None
+    start: StartHandling
 
 
 @dataclass(frozen=True)
@@ -215,21 +255,180 @@ def _achieved_fraction(result, row: SpecRow) -> float:
     return result.connections[row.extra.rsplit(".", 1)[0]]["flow"] / float(leaving)
 
 
-#: Every kind of spec row: its residual, its words, its quantity and its reached value.
+# ---------------------------------------------------------------- what each kind tells the starts
+def _product_flow_overhead(row: SpecRow, basis: StartBasis) -> float:
+    """A distillate rate (the top's vapor slot) is D; a bottoms rate leaves D = F - B."""
+    rate = row.value / basis.flow_scale
+    return rate if row.product.phase == "vapor" else basis.net_feed - rate
+
+
+def _reflux_top_vapor(row: SpecRow, basis: StartBasis) -> tuple[float, float]:
+    return 0.0, row.value + 1.0
+
+
+def _boilup_top_vapor(row: SpecRow, basis: StartBasis) -> tuple[float, float]:
+    return row.value * basis.net_feed + basis.vapor_in_feeds, -row.value
+
+
+def _duty_top_vapor(row: SpecRow, basis: StartBasis) -> tuple[float, float]:
+    """By CMO a condenser's duty condenses the top vapor, a reboiler's boils the vapor that,
+    with the feeds' vapor, reaches the top."""
+    if row.extra.endswith("condenser"):
+        return abs(row.value) / (basis.latent_heat * basis.flow_scale), 0.0
+    return row.value / (basis.latent_heat * basis.flow_scale) + basis.vapor_in_feeds, 0.0
+
+
+def _product_of_split(row: SpecRow, top: np.ndarray, bottom: np.ndarray) -> np.ndarray:
+    return top if row.product.phase == "vapor" else bottom
+
+
+def _mole_fraction_split_error(row: SpecRow, top, bottom, feed) -> float:
+    product = _product_of_split(row, top, bottom)
+    return float(product[row.component] / max(product.sum(), 1e-300) - row.value)
+
+
+def _recovery_split_error(row: SpecRow, top, bottom, feed) -> float:
+    product = _product_of_split(row, top, bottom)
+    return float(product[row.component] / max(feed[row.component], 1e-300) - row.value)
+
+
+def _temperature_profile_error(row: SpecRow, T, top, bottom, feed) -> float:
+    return float(T[row.stage] - row.value) / TEMPERATURE_SCALE
+
+
+def _split_profile_error(split_error: Callable) -> Callable:
+    return lambda row, T, top, bottom, feed: split_error(row, top, bottom, feed)
+
+
+def _profile_spec_column(start, r: int, stage: int) -> str | None:
+    """A composition or temperature spec says nothing linear about the flows: on a column whose
+    product rate a spec fixes it becomes a reflux ratio of 2 (None returned), else the column
+    (returned) gets a guessed product rate."""
+    column = start.column_of(stage)
+    if "rate" in start.fixed[column]:
+        start.fixed[column].add("ratio")
+        start.ratio_of_two(r, column)
+        return None
+    start.fixed[column].add("rate")
+    return column
+
+
+def _product_rate_relation(start, r: int, p: ProductRef, rate: float) -> None:
+    start.A[r, (p.stage if p.phase == "liquid" else start.system.N + p.stage)] = p.share
+    start.b[r] = rate
+
+
+def _composition_relation(start, r: int, row: SpecRow) -> float | None:
+    column = _profile_spec_column(start, r, row.product.stage)
+    if column is None:
+        return None
+    if row.product.rate is not None:
+        start.half_the_feed(r, column)
+        return None
+    guess = start.rate if start.rate is not None else start.guessed_product_rate(row)
+    _product_rate_relation(start, r, row.product, guess)
+    return guess
+
+
+def _stage_temperature_relation(start, r: int, row: SpecRow) -> None:
+    column = _profile_spec_column(start, r, row.stage)
+    if column is not None:
+        start.half_the_feed(r, column)
+
+
+def _product_flow_relation(start, r: int, row: SpecRow) -> None:
+    _product_rate_relation(start, r, row.product, row.value / start.system.flow_scale)
+
+
+def _ratio_relation(start, r: int, row: SpecRow) -> None:
+    N, g, share = start.system.N, row.stage, row.product.share
+    own, other = (g, N + g) if row.kind == "reflux_ratio" else (N + g, g)
+    start.A[r, own] = 1.0
+    start.A[r, other] = -row.value * share
+
+
+def _extra_relation(start, r: int, row: SpecRow, scale: float) -> None:
+    start.A[r, 2 * start.system.N + start.system.extra_index(row.extra)] = 1.0
+    start.b[r] = row.value / scale
+
+
+def _duty_relation(start, r: int, row: SpecRow) -> None:
+    _extra_relation(start, r, row, start.system.flow_scale * start.system.energy_scale)
+
+
+def _connection_flow_relation(start, r: int, row: SpecRow) -> None:
+    _extra_relation(start, r, row, start.system.flow_scale)
+
+
+def _connection_fraction_relation(start, r: int, row: SpecRow) -> None:
+    system, A, b, N = start.system, start.A, start.b, start.system.N
+    g, liquid = row.source_stage, row.phase == "liquid"
+    A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+    A[r, g if liquid else N + g] -= row.value
+    for m in np.flatnonzero((system.transfer_source == g) & (system.transfer_liquid == liquid)):
+        k = system.transfer_extra[m]
+        if k >= 0:
+            A[r, 2 * N + k] -= row.value
+        else:
+            b[r] += row.value * system.transfer_fixed[m]
+    b[r] += row.value * (system.side_liquid_draws[g] if liquid else system.side_vapor_draws[g])
+
+
+def _return_temperature_relation(start, r: int, row: SpecRow) -> None:
+    """The duty is the stream's flow times its enthalpy change (none known yet: no duty)."""
+    system, A, b, N = start.system, start.A, start.b, start.system.N
+    A[r, 2 * N + system.extra_index(row.extra)] = 1.0
+    difference = start.differences.get(row.extra, 0.0)
+    stream = system.connections[row.extra.rsplit(".", 1)[0]]
+    if stream.transfer is not None:
+        k = system.transfer_extra[stream.transfer]
+        if k >= 0:
+            A[r, 2 * N + k] = -difference
+        else:
+            b[r] = difference * system.transfer_fixed[stream.transfer]
+    else:
+        A[r, stream.source if stream.phase == "liquid" else N + stream.source] = -difference * stream.weight
+
+
+def _fixes_rate(row: SpecRow, column_of: Callable[[int], str]):
+    return (column_of(row.product.stage), "rate") if row.product.rate is None else None
+
+
+def _fixes_ratio(row: SpecRow, column_of: Callable[[int], str]):
+    return column_of(row.stage), "ratio"
+
+
+def _duty_fixes(row: SpecRow, column_of: Callable[[int], str]):
+    return (row.extra.rsplit(".", 1)[0], "ratio") if row.extra.endswith((".condenser", ".reboiler")) else None
+
+
+#: Every kind of spec row: its residual, its words, its quantity, its reached value, its start.
 SPEC_REGISTRY: dict[str, SpecKind] = {
-    "reflux_ratio": SpecKind(_ratio_residual, "reflux ratio", "ratio", _achieved_ratio),
-    "boilup_ratio": SpecKind(_ratio_residual, "boilup ratio", "ratio", _achieved_ratio),
-    "product_flow": SpecKind(_product_flow_residual, "product flow", "flow", lambda r, row: _achieved_product(r, row)["flow"]),
+    "reflux_ratio": SpecKind(_ratio_residual, "reflux ratio", "ratio", _achieved_ratio,
+                             StartHandling(_ratio_relation, top_vapor=_reflux_top_vapor, fixes=_fixes_ratio)),
+    "boilup_ratio": SpecKind(_ratio_residual, "boilup ratio", "ratio", _achieved_ratio,
+                             StartHandling(_ratio_relation, top_vapor=_boilup_top_vapor, fixes=_fixes_ratio)),
+    "product_flow": SpecKind(_product_flow_residual, "product flow", "flow", lambda r, row: _achieved_product(r, row)["flow"],
+                             StartHandling(_product_flow_relation, overhead=_product_flow_overhead, fixes=_fixes_rate)),
     "mole_fraction": SpecKind(_mole_fraction_residual, "mole fraction in a product", "fraction",
-                              lambda r, row: _achieved_product(r, row)["composition"][row.component]),
-    "recovery": SpecKind(_recovery_residual, "recovery in a product", "fraction", _achieved_recovery),
+                              lambda r, row: _achieved_product(r, row)["composition"][row.component],
+                              StartHandling(_composition_relation, split_error=_mole_fraction_split_error,
+                                            profile_error=_split_profile_error(_mole_fraction_split_error))),
+    "recovery": SpecKind(_recovery_residual, "recovery in a product", "fraction", _achieved_recovery,
+                         StartHandling(_composition_relation, split_error=_recovery_split_error,
+                                       profile_error=_split_profile_error(_recovery_split_error))),
     "stage_temperature": SpecKind(_stage_temperature_residual, "stage temperature", "temperature",
-                                  lambda r, row: float(r.temperature[row.stage])),
-    "duty": SpecKind(_duty_residual, "exchanger duty", "duty", _achieved_duty),
+                                  lambda r, row: float(r.temperature[row.stage]),
+                                  StartHandling(_stage_temperature_relation, profile_error=_temperature_profile_error)),
+    "duty": SpecKind(_duty_residual, "exchanger duty", "duty", _achieved_duty,
+                     StartHandling(_duty_relation, top_vapor=_duty_top_vapor, fixes=_duty_fixes)),
     "connection_flow": SpecKind(_connection_flow_residual, "connection rate", "flow",
-                                lambda r, row: r.connections[row.extra.rsplit(".", 1)[0]]["flow"]),
-    "connection_fraction": SpecKind(_connection_fraction_residual, "connection fraction", "fraction", _achieved_fraction),
-    "return_temperature": SpecKind(_return_temperature_residual, "return temperature", "temperature"),
+                                lambda r, row: r.connections[row.extra.rsplit(".", 1)[0]]["flow"],
+                                StartHandling(_connection_flow_relation)),
+    "connection_fraction": SpecKind(_connection_fraction_residual, "connection fraction", "fraction", _achieved_fraction,
+                                    StartHandling(_connection_fraction_relation)),
+    "return_temperature": SpecKind(_return_temperature_residual, "return temperature", "temperature", None,
+                                   StartHandling(_return_temperature_relation)),
 }
 
 #: The row each kind of a column's own spec (the single-column vocabulary) becomes.

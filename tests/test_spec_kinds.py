@@ -96,4 +96,9 @@ def test_every_case_file_kind_has_a_complete_registry_entry(kind):
     for row_kind in row_kinds:
         entry = SPEC_REGISTRY[row_kind]
         assert entry.words and entry.quantity in ("ratio", "flow", "fraction", "temperature", "duty")
-        assert callable(entry.residual)
+        assert callable(entry.residual) and callable(entry.start.relation)
+        if kind in SPEC_KINDS:
+            # a single column's start hears from it: the overhead rate, the top vapor, or a split
+            # or profile to meet
+            start = entry.start
+            assert any(f is not None for f in (start.overhead, start.top_vapor, start.split_error, start.profile_error))

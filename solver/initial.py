@@ -5,7 +5,8 @@
    point; the overhead rate ``D`` is chosen to meet the composition specifications, or taken
    from the flow specifications.
 2. Flows by constant molar overflow from the specs (reflux, boilup, duties through a mean
-   latent heat) and each feed's thermal condition ``q``.
+   latent heat) and each feed's thermal condition ``q``. What each spec tells steps 1 and 2 is
+   its registry entry's :class:`~solver.spec_kinds.StartHandling`.
 3. Compositions and temperatures by sweeps of the bubble-point method (Wang & Henke 1966,
    Hydrocarbon Processing 45(8):155): for fixed flows, each component's balances over all
    stages form one sparse linear system in its liquid flows; for a column with two products

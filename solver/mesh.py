@@ -41,7 +41,7 @@ import scipy.sparse as sp
 
 from .case import Spec
 from .errors import SpecError
-from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
+from .mesh_blocks import TINY, StageLayout, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network import StageGraph
 from .spec_kinds import SPEC_REGISTRY, TEMPERATURE_SCALE, ProductRef, SpecRow, column_spec_rows
 from .streams import FlashedFeed, StageProfile
@@ -53,6 +53,7 @@ __all__ = [
     "MeshSystem",
     "PlacedSpec",
     "assign_specs",
+    "column_rows",
     "feed_sums_by_stage",
 ]
 
@@ -112,11 +113,21 @@ def feed_sums_by_stage(feeds: Sequence[FlashedFeed], stage_count: int, component
     return component_flows, enthalpy_flows
 
 
+def column_rows(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[SpecRow, ...]:
+    """The column's specs as rows (:func:`~solver.spec_kinds.column_spec_rows`), in their
+    order: the distillate is the top stage's vapor slot, the bottoms the bottom stage's liquid
+    slot, each a share of 1. Raises :class:`SpecError` for a spec that does not fit the column."""
+    exchangers = [name for name, present in zip(_EXCHANGERS, (graph.condenser != "none", graph.has_reboiler)) if present]
+    stage_of = {"condenser": graph.top_stage, "reboiler": graph.bottom_stage}
+    products = {"distillate": ProductRef("distillate", graph.top_stage, "vapor", share=1.0),
+                "bottoms": ProductRef("bottoms", graph.bottom_stage, "liquid", share=1.0)}
+    return column_spec_rows(specs, component_names, stage_count=graph.stage_count, exchangers=exchangers,
+                            exchanger_stage=stage_of.__getitem__, product=products.__getitem__, stage_index=lambda n: n - 1)
+
+
 def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[PlacedSpec, ...]:
-    """Check the degrees of freedom, resolve each spec into its row
-    (:func:`~solver.spec_kinds.column_spec_rows`: the distillate is the top stage's vapor slot,
-    the bottoms the bottom stage's liquid slot) and give it the enthalpy-balance row it takes
-(in the order of ``specs``).
+    """Check the degrees of freedom, resolve each spec into its row (:func:`column_rows`) and
+    give it the enthalpy-balance row it takes (in the order of ``specs``).
 
     A column has one degree of freedom for a condenser and one for a reboiler (feeds, stage
     count, pressures, draws and side duties being fixed). Raises :class:`SpecError` naming the
@@ -140,13 +151,8 @@ def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequ
             "distillate_rate, bottoms_rate, condenser_duty, reboiler_duty, distillate/bottoms mole fraction, "
             "recovery, stage_temperature"
         )
-    exchangers = [name for name, present in zip(_EXCHANGERS, (graph.condenser != "none", graph.has_reboiler)) if present]
+    spec_rows = column_rows(graph, specs, component_names)
     stage_of = {"condenser": graph.top_stage, "reboiler": graph.bottom_stage}
-    products = {"distillate": ProductRef("distillate", graph.top_stage, "vapor", share=1.0),
-                "bottoms": ProductRef("bottoms", graph.bottom_stage, "liquid", share=1.0)}
-    spec_rows = column_spec_rows(specs, component_names, stage_count=graph.stage_count, exchangers=exchangers,
-                                 exchanger_stage=stage_of.__getitem__, product=products.__getitem__,
-                                 stage_index=lambda n: n - 1)
     remaining = list(free_rows)
     stages: dict[int, int] = {}
     for k, row in enumerate(spec_rows):
@@ -162,7 +168,7 @@ def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequ
     return tuple(rows)
 
 
-class MeshSystem:
+class MeshSystem(StageLayout):
     """The MESH + specification equations of one column, ready for Newton's method.
 
     ``feeds`` are the flashed feeds (any order, several per stage allowed); ``specs`` as many
@@ -404,15 +410,6 @@ class MeshSystem:
         return edge_blocks(s, gLx, gVy, self.graph.liquid_edges, self.graph.vapor_edges, self.efficiencies, self.energy_scale)
 
     # ------------------------------------------------------------------ specifications
-    def T_col(self, g: int) -> int:
-        return g * self.width
-
-    def l_col(self, g: int) -> int:
-        return g * self.width + 1
-
-    def v_col(self, g: int) -> int:
-        return g * self.width + 1 + self.c
-
     def duty_term(self, s: StageState, energy: np.ndarray, row: SpecRow):
         """(scaled duty, no columns, no values) of the exchanger a duty spec sets: its stage's
         enthalpy balance without a duty (``energy``), whose row and Jacobian the spec keeps."""

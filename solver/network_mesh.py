@@ -33,7 +33,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from .mesh import feed_sums_by_stage
-from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
+from .mesh_blocks import TINY, StageLayout, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network_graph import NetworkGraph
 from .spec_kinds import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
 from .streams import FlashedFeed, StageProfile
@@ -55,7 +55,7 @@ class ConnectionStream:
     transfer: int | None
 
 
-class NetworkSystem:
+class NetworkSystem(StageLayout):
     """The MESH + spec equations of a column network, ready for Newton's method
     (:func:`solver.newton.solve_system`)."""
 
@@ -187,15 +187,6 @@ class NetworkSystem:
         self._transfer = scatter(self.transfer_destination, self.transfer_source)
 
     # ------------------------------------------------------------------ layout
-    def T_col(self, g: int) -> int:
-        return g * self.width
-
-    def l_col(self, g: int) -> int:
-        return g * self.width + 1
-
-    def v_col(self, g: int) -> int:
-        return g * self.width + 1 + self.c
-
     def extra_index(self, name: str) -> int:
         return self._extra_position[name]
 

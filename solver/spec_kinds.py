@@ -36,10 +36,13 @@ __all__ = [
     "ColumnSpecKind",
     "ProductRef",
     "SpecKind",
+    "SI_UNITS",
+    "FeasibilityBasis",
     "SpecRow",
     "StartBasis",
     "StartHandling",
     "column_spec_rows",
+    "spec_kind",
 ]
 
 TEMPERATURE_SCALE = 10.0  # K, divides temperature residuals
@@ -111,18 +114,41 @@ class StartHandling:
 
 
 @dataclass(frozen=True)
+class FeasibilityBasis:
+    """What one column's checks before solving know: all feeds and the net feed (less side
+    draws) in mol/s, the side draws' total (mol/s), each feed's q and flow (mol/s) and a mean
+    molar latent heat (J/mol)."""
+
+    feed: float
+    net_feed: float
+    side_draws: float
+    feed_q: tuple[float, ...]
+    feed_flows: tuple[float, ...]
+    latent_heat: float
+
+
+@dataclass(frozen=True)
 class SpecKind:
     """A kind of spec: its residual (see the module docstring), its words in reports, the
     quantity its value is (``ratio``, ``flow`` mol/s, ``fraction``, ``temperature`` K,
     ``duty`` W), how reports read the value reached from a solved network
     (``achieved(result, row)``, :class:`~solver.network_results.NetworkResult`; None where
-    the result alone does not give it) and what it tells the default starts."""
+    the result alone does not give it) and what it tells the default starts.
+
+    ``role`` says what it fixes for the shortcut designs: the product ``split``, the
+    ``energy`` (the reflux), or ``other``. ``phrase`` shows a column's spec in a run's tables
+    (``{value}`` in display units, ``{component}``, ``{product}``, ``{stage}``). ``check(row,
+    basis)`` (:class:`FeasibilityBasis`) returns why the spec alone cannot be met, or None
+    (one column's checks before solving, :mod:`solver.feasibility`)."""
 
     residual: Callable
     words: str
     quantity: str
     achieved: Callable | None
     start: StartHandling
+    role: str = "other"
+    phrase: str = "{value}"
+    check: Callable | None = None
 
 
 @dataclass(frozen=True)
@@ -402,26 +428,58 @@ def _duty_fixes(row: SpecRow, column_of: Callable[[int], str]):
     return (row.extra.rsplit(".", 1)[0], "ratio") if row.extra.endswith((".condenser", ".reboiler")) else None
 
 
-#: Every kind of spec row: its residual, its words, its quantity, its reached value, its start.
+# ---------------------------------------------------------------- what each kind alone rules out
+def _product_flow_check(row: SpecRow, basis: FeasibilityBasis) -> str | None:
+    if row.product.rate is not None or 0.0 < row.value < basis.net_feed:
+        return None
+    return (f"{row.label} = {row.value * 3.6:.6g} kmol/h is impossible: a product rate must lie between 0 and "
+            f"the net feed, {basis.net_feed * 3.6:.6g} kmol/h (feeds {basis.feed * 3.6:.6g} kmol/h less side draws "
+            f"{basis.side_draws * 3.6:.6g} kmol/h)")
+
+
+def _recovery_check(row: SpecRow, basis: FeasibilityBasis) -> str | None:
+    return None if 0.0 < row.value <= 1.0 else f"{row.label} = {row.value:g}: a recovery must lie in (0, 1]"
+
+
+def _duty_check(row: SpecRow, basis: FeasibilityBasis) -> str | None:
+    """A reboiler duty that does not bring the subcooled feeds to their boiling point (CMO
+    with a mean latent heat: ``Q_R <= (q - 1) F lambda`` summed over the feeds)."""
+    if not row.extra.endswith("reboiler"):
+        return None
+    needed = sum(max(q - 1.0, 0.0) * flow for q, flow in zip(basis.feed_q, basis.feed_flows)) * basis.latent_heat
+    if row.value > needed:
+        return None
+    return (f"{row.label} = {row.value / 1e3:.6g} kW is too small to boil anything: the subcooled feed alone "
+            f"needs about {needed / 1e3:.6g} kW to reach its boiling point (q - 1 times its flow and a mean latent "
+            f"heat of {basis.latent_heat / 1e3:.4g} kJ/mol)")
+
+
+#: Every kind of spec row: its residual, its words, its quantity, its reached value, its start,
+#: its role for the shortcuts, its phrase in a run's tables and its own feasibility check.
 SPEC_REGISTRY: dict[str, SpecKind] = {
     "reflux_ratio": SpecKind(_ratio_residual, "reflux ratio", "ratio", _achieved_ratio,
-                             StartHandling(_ratio_relation, top_vapor=_reflux_top_vapor, fixes=_fixes_ratio)),
+                             StartHandling(_ratio_relation, top_vapor=_reflux_top_vapor, fixes=_fixes_ratio), role="energy"),
     "boilup_ratio": SpecKind(_ratio_residual, "boilup ratio", "ratio", _achieved_ratio,
-                             StartHandling(_ratio_relation, top_vapor=_boilup_top_vapor, fixes=_fixes_ratio)),
+                             StartHandling(_ratio_relation, top_vapor=_boilup_top_vapor, fixes=_fixes_ratio), role="energy"),
     "product_flow": SpecKind(_product_flow_residual, "product flow", "flow", lambda r, row: _achieved_product(r, row)["flow"],
-                             StartHandling(_product_flow_relation, overhead=_product_flow_overhead, fixes=_fixes_rate)),
+                             StartHandling(_product_flow_relation, overhead=_product_flow_overhead, fixes=_fixes_rate),
+                             role="split", check=_product_flow_check),
     "mole_fraction": SpecKind(_mole_fraction_residual, "mole fraction in a product", "fraction",
                               lambda r, row: _achieved_product(r, row)["composition"][row.component],
                               StartHandling(_composition_relation, split_error=_mole_fraction_split_error,
-                                            profile_error=_split_profile_error(_mole_fraction_split_error))),
+                                            profile_error=_split_profile_error(_mole_fraction_split_error)),
+                              role="split", phrase="x {component} = {value} in the {product}"),
     "recovery": SpecKind(_recovery_residual, "recovery in a product", "fraction", _achieved_recovery,
                          StartHandling(_composition_relation, split_error=_recovery_split_error,
-                                       profile_error=_split_profile_error(_recovery_split_error))),
+                                       profile_error=_split_profile_error(_recovery_split_error)),
+                         role="split", phrase="{value} of the feed's {component} to the {product}", check=_recovery_check),
     "stage_temperature": SpecKind(_stage_temperature_residual, "stage temperature", "temperature",
                                   lambda r, row: float(r.temperature[row.stage]),
-                                  StartHandling(_stage_temperature_relation, profile_error=_temperature_profile_error)),
+                                  StartHandling(_stage_temperature_relation, profile_error=_temperature_profile_error),
+                                  phrase="{value} on stage {stage}"),
     "duty": SpecKind(_duty_residual, "exchanger duty", "duty", _achieved_duty,
-                     StartHandling(_duty_relation, top_vapor=_duty_top_vapor, fixes=_duty_fixes)),
+                     StartHandling(_duty_relation, top_vapor=_duty_top_vapor, fixes=_duty_fixes), role="energy",
+                     check=_duty_check),
     "connection_flow": SpecKind(_connection_flow_residual, "connection rate", "flow",
                                 lambda r, row: r.connections[row.extra.rsplit(".", 1)[0]]["flow"],
                                 StartHandling(_connection_flow_relation)),
@@ -453,6 +511,16 @@ NETWORK_ROW_KINDS: dict[str, str] = {
     "return_temperature": "return_temperature", "stage_temperature": "stage_temperature",
     "reflux_ratio": "reflux_ratio", "boilup_ratio": "boilup_ratio",
 }
+
+#: The SI unit of each quantity a spec's value is.
+SI_UNITS = {"ratio": "1", "fraction": "1", "flow": "mol/s", "duty": "W", "temperature": "K"}
+
+
+def spec_kind(kind: str) -> SpecKind:
+    """The registry entry of a kind of a case file's specs: a column's own
+    (:data:`COLUMN_SPEC_KINDS`) or a network's top-level one (:data:`NETWORK_ROW_KINDS`)."""
+    entry = COLUMN_SPEC_KINDS.get(kind)
+    return SPEC_REGISTRY[entry.row_kind if entry is not None else NETWORK_ROW_KINDS[kind]]
 
 
 def column_spec_rows(specs: Sequence[Spec], component_names: Sequence[str], *, stage_count: int,

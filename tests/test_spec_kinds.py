@@ -97,6 +97,7 @@ def test_every_case_file_kind_has_a_complete_registry_entry(kind):
         entry = SPEC_REGISTRY[row_kind]
         assert entry.words and entry.quantity in ("ratio", "flow", "fraction", "temperature", "duty")
         assert callable(entry.residual) and callable(entry.start.relation)
+        assert entry.role in ("split", "energy", "other") and "{value}" in entry.phrase
         if kind in SPEC_KINDS:
             # a single column's start hears from it: the overhead rate, the top vapor, or a split
             # or profile to meet

@@ -9,7 +9,6 @@ import pytest
 
 from conftest import methanol_water_case, network_example_case
 from solver.case import NETWORK_SPEC_KINDS, SPEC_KINDS
-from solver.engine import build_system
 from solver.network_engine import build_network_system
 from solver.network_start import network_initial_estimate
 from solver.spec_kinds import COLUMN_SPEC_KINDS, NETWORK_ROW_KINDS, SPEC_REGISTRY
@@ -62,9 +61,11 @@ def test_every_single_column_kind_matches_finite_differences():
     for system, X, rows, spec_rows in _single_column_rows():
         seen |= {row.kind for row in spec_rows}
         # the step and the bound of tests/test_mesh.py, row by row
-        scale_step = lambda k, X, w=system.width: 1e-7 * max(abs(X[k]), 1e-3 if k % w else 1.0)  # noqa: E731
+        def step(k, X, w=system.width):
+            return 1e-7 * max(abs(X[k]), 1e-3 if k % w else 1.0)
+
         analytic = system.evaluate(X, True).jacobian.toarray()[rows]
-        numeric = _row_derivatives(system, X, rows, scale_step)
+        numeric = _row_derivatives(system, X, rows, step)
         scale = np.maximum(np.abs(numeric), np.abs(analytic)).max(axis=1, keepdims=True) + 1e-12
         assert (np.abs(analytic - numeric) / scale).max() < 2e-5, [row.label for row in spec_rows]
     # a single column offers every kind but those of connections

@@ -19,7 +19,7 @@ from .errors import CaseError, ConvergenceError, SpecError, ThermoError
 from .continuation import continue_to_real_model
 from .feasibility import check_binary_limits, check_specifications, check_total_reflux_bound
 from .initial import initial_estimate, theta_correction_applies
-from .mesh import CondenserSetting, MeshSystem, feed_sums_by_stage
+from .mesh import CondenserSetting, MeshSystem, column_rows, feed_sums_by_stage
 from .network import StageGraph, build_stage_graph
 from .network_engine import simulate_network
 from .network_results import NetworkResult
@@ -135,8 +135,9 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
     graph = build_stage_graph(case)
     feeds = flash_feeds(case, thermo, graph)
     feed_component_flows, _ = feed_sums_by_stage(feeds, graph.stage_count, len(case.component_names))
+    rows = column_rows(graph, case.specs, case.component_names)
     check_specifications(
-        case.specs,
+        rows,
         case.component_names,
         feed_component_flows.sum(axis=0),
         float(graph.liquid_draws.sum() + graph.vapor_draws.sum()),
@@ -147,7 +148,7 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
     if len(case.component_names) == 2 and len(case.feeds) == 1 and not case.column.side_draws:
         all_equilibrium = bool(np.all(graph.efficiencies == 1.0))
         check_binary_limits(
-            case.specs,
+            rows,
             case.component_names,
             thermo,
             float(np.mean(graph.pressures)),
@@ -158,7 +159,7 @@ def build_system(case: Case, thermo: ThermoPackage | None = None) -> MeshSystem:
         )
     if _one_chain_of_equilibrium_stages(case, graph):
         check_total_reflux_bound(
-            case.specs,
+            rows,
             case.component_names,
             thermo,
             graph.pressures,

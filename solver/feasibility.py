@@ -13,6 +13,10 @@ Checks (bounds from the overall balances alone):
 * a reboiler duty too small to bring a subcooled feed to its boiling point, let alone boil
   anything: ``Q_R <= (q - 1) F lambda`` summed over the feeds (constant-molar-overflow
   estimate with a mean latent heat).
+
+What one spec alone rules out (a product rate, a recovery, a reboiler duty) is the ``check`` of
+its entry in :data:`solver.spec_kinds.SPEC_REGISTRY`; the checks across specs are here. The
+specs come resolved into rows (:func:`solver.mesh.column_rows`).
 """
 
 from __future__ import annotations
@@ -21,14 +25,14 @@ from typing import Sequence
 
 import numpy as np
 
-from .case import Spec
 from .errors import SpecError
+from .spec_kinds import SPEC_REGISTRY, FeasibilityBasis, SpecRow
 
 __all__ = ["check_binary_limits", "check_specifications", "check_total_reflux_bound"]
 
 
 def check_specifications(
-    specs: Sequence[Spec],
+    specs: Sequence[SpecRow],
     component_names: Sequence[str],
     feed_flows: np.ndarray,
     side_draw_total: float,
@@ -37,113 +41,89 @@ def check_specifications(
     latent_heat: float,
 ) -> None:
     """Raise :class:`SpecError` for a spec set that the overall balances already rule out.
-    ``feed_flows (c,)`` mol/s of each component in all feeds together; ``feed_q`` and
-    ``feed_totals`` (mol/s) per feed; ``latent_heat`` a mean molar latent heat (J/mol)."""
+    ``specs`` the column's rows (:func:`solver.mesh.column_rows`); ``feed_flows (c,)`` mol/s
+    of each component in all feeds together; ``feed_q`` and ``feed_totals`` (mol/s) per feed;
+    ``latent_heat`` a mean molar latent heat (J/mol). What a spec alone rules out is its
+    registry entry's ``check``; the checks across specs are here."""
     F = float(np.sum(feed_flows))
     F_net = F - side_draw_total
-    rates = {s.kind: s for s in specs if s.kind in ("distillate_rate", "bottoms_rate")}
-    _check_product_rates(rates, F, F_net, side_draw_total)
-    _check_fractions_and_recoveries(specs, len(component_names))
-    _check_purity_bounds(specs, list(component_names), rates, feed_flows, F_net)
-    _check_reboiler_duty(specs, feed_q, feed_totals, latent_heat)
-
-
-def _label(spec: Spec) -> str:
-    return spec.key or spec.kind
-
-
-def _check_product_rates(rates: dict[str, Spec], F: float, F_net: float, side_draw_total: float) -> None:
-    """Both product rates given (D + B = F), or a rate outside (0, net feed)."""
+    rates = {row.product.name: row for row in specs if _is_product_rate(row)}
     if len(rates) == 2:
-        D, B = rates["distillate_rate"], rates["bottoms_rate"]
+        D, B = rates["distillate"], rates["bottoms"]
         raise SpecError(
-            f"{_label(D)} and {_label(B)} fix one degree of freedom twice: D + B must equal the net feed "
+            f"{D.label} and {B.label} fix one degree of freedom twice: D + B must equal the net feed "
             f"({F_net * 3.6:.6g} kmol/h); give one of them and a second, independent spec"
         )
-    for spec in rates.values():
-        if not 0.0 < spec.value < F_net:
-            raise SpecError(
-                f"{_label(spec)} = {spec.value * 3.6:.6g} kmol/h is impossible: a product rate must lie between 0 and "
-                f"the net feed, {F_net * 3.6:.6g} kmol/h (feeds {F * 3.6:.6g} kmol/h less side draws "
-                f"{side_draw_total * 3.6:.6g} kmol/h)"
-            )
+    basis = FeasibilityBasis(F, F_net, side_draw_total, tuple(feed_q), tuple(feed_totals), latent_heat)
+    for row in specs:
+        check = SPEC_REGISTRY[row.kind].check
+        message = check(row, basis) if check is not None else None
+        if message is not None:
+            raise SpecError(message)
+    _check_fractions_and_recoveries(specs, list(component_names))
+    _check_purity_bounds(specs, list(component_names), rates, feed_flows, F_net)
 
 
-def _check_fractions_and_recoveries(specs: Sequence[Spec], component_count: int) -> None:
-    """A mole fraction given twice, both mole fractions of a binary product, a recovery outside
-    (0, 1], or one component's recovery to both products."""
+def _is_product_rate(row: SpecRow) -> bool:
+    """A spec that sets a product's total flow (a distillate or bottoms rate)."""
+    return row.product is not None and SPEC_REGISTRY[row.kind].quantity == "flow"
+
+
+def _check_fractions_and_recoveries(specs: Sequence[SpecRow], names: list[str]) -> None:
+    """A mole fraction given twice, both mole fractions of a binary product, or one
+    component's recovery to both products."""
     for product in ("distillate", "bottoms"):
-        fractions = [s for s in specs if s.kind == "mole_fraction" and s.product == product]
-        if len({s.component for s in fractions}) < len(fractions):
-            raise SpecError(f"{', '.join(_label(s) for s in fractions)}: the same mole fraction is given twice")
-        if component_count == 2 and len(fractions) == 2:
+        fractions = [row for row in specs if row.kind == "mole_fraction" and row.product.name == product]
+        if len({row.component for row in fractions}) < len(fractions):
+            raise SpecError(f"{', '.join(row.label for row in fractions)}: the same mole fraction is given twice")
+        if len(names) == 2 and len(fractions) == 2:
             raise SpecError(
-                f"{_label(fractions[0])} and {_label(fractions[1])} fix the same thing twice: the two mole fractions of "
+                f"{fractions[0].label} and {fractions[1].label} fix the same thing twice: the two mole fractions of "
                 f"a binary {product} sum to one"
             )
-    recoveries: dict[str, list[Spec]] = {}
-    for spec in specs:
-        if spec.kind == "recovery":
-            if not 0.0 < spec.value <= 1.0:
-                raise SpecError(f"{_label(spec)} = {spec.value:g}: a recovery must lie in (0, 1]")
-            recoveries.setdefault(spec.component, []).append(spec)
+    recoveries: dict[int, list[SpecRow]] = {}
+    for row in specs:
+        if row.kind == "recovery":
+            recoveries.setdefault(row.component, []).append(row)
     for component, given in recoveries.items():
         if len(given) > 1:
             raise SpecError(
-                f"{', '.join(_label(s) for s in given)}: the recoveries of {component} to the two products sum to one, "
-                "so they fix the same thing twice"
+                f"{', '.join(row.label for row in given)}: the recoveries of {names[component]} to the two products sum "
+                "to one, so they fix the same thing twice"
             )
 
 
 def _check_purity_bounds(
-    specs: Sequence[Spec], names: list[str], rates: dict[str, Spec], feed_flows: np.ndarray, F_net: float
+    specs: Sequence[SpecRow], names: list[str], rates: dict[str, SpecRow], feed_flows: np.ndarray, F_net: float
 ) -> None:
     """A product mole fraction above what the component balance allows with a given product
     rate: ``x_D,i <= F_i / D`` (and the same with the other product's rate given)."""
     for spec in specs:
         if spec.kind != "mole_fraction":
             continue
-        i = names.index(spec.component)
-        rate = rates.get("distillate_rate" if spec.product == "distillate" else "bottoms_rate")
+        i, product = spec.component, spec.product.name
+        rate = rates.get(product)
         if rate is not None:
             bound = float(feed_flows[i]) / rate.value
             if spec.value > bound:
                 raise SpecError(
-                    f"{_label(spec)} = {spec.value:g} cannot be met with {_label(rate)} = {rate.value * 3.6:.6g} kmol/h: "
-                    f"even all of the {component_label(spec)} fed ({feed_flows[i] * 3.6:.6g} kmol/h) would give at most "
+                    f"{spec.label} = {spec.value:g} cannot be met with {rate.label} = {rate.value * 3.6:.6g} kmol/h: "
+                    f"even all of the {names[i]} fed ({feed_flows[i] * 3.6:.6g} kmol/h) would give at most "
                     f"{bound:.6g}"
                 )
-        other = rates.get("bottoms_rate" if spec.product == "distillate" else "distillate_rate")
+        other = rates.get("bottoms" if product == "distillate" else "distillate")
         if other is not None:
             product_rate = F_net - other.value
             bound = float(feed_flows[i]) / product_rate
             if spec.value > bound:
                 raise SpecError(
-                    f"{_label(spec)} = {spec.value:g} cannot be met with {_label(other)} = {other.value * 3.6:.6g} kmol/h "
-                    f"(so {spec.product} {product_rate * 3.6:.6g} kmol/h): at most {bound:.6g}"
+                    f"{spec.label} = {spec.value:g} cannot be met with {other.label} = {other.value * 3.6:.6g} kmol/h "
+                    f"(so {product} {product_rate * 3.6:.6g} kmol/h): at most {bound:.6g}"
                 )
 
 
-def _check_reboiler_duty(specs: Sequence[Spec], feed_q: Sequence[float], feed_totals: Sequence[float], latent_heat: float) -> None:
-    """A reboiler duty that does not bring the subcooled feeds to their boiling point."""
-    spec = next((s for s in specs if s.kind == "reboiler_duty"), None)
-    if spec is None:
-        return
-    needed = sum(max(q - 1.0, 0.0) * flow for q, flow in zip(feed_q, feed_totals)) * latent_heat
-    if spec.value <= needed:
-        raise SpecError(
-            f"{_label(spec)} = {spec.value / 1e3:.6g} kW is too small to boil anything: the subcooled feed alone "
-            f"needs about {needed / 1e3:.6g} kW to reach its boiling point (q - 1 times its flow and a mean latent "
-            f"heat of {latent_heat / 1e3:.4g} kJ/mol)"
-        )
-
-
-def component_label(spec: Spec) -> str:
-    return spec.component or "component"
-
-
 def check_binary_limits(
-    specs: Sequence[Spec],
+    specs: Sequence[SpecRow],
     component_names: Sequence[str],
     thermo,
     pressure: float,
@@ -172,11 +152,12 @@ def check_binary_limits(
         return
     x_feed = float(z[light])
 
-    def light_fraction(spec: Spec) -> float:
-        return spec.value if names.index(spec.component) == light else 1.0 - spec.value
+    def light_fraction(spec: SpecRow) -> float:
+        return spec.value if spec.component == light else 1.0 - spec.value
 
-    top = next((s for s in specs if s.kind == "mole_fraction" and s.product == "distillate"), None)
-    bottom = next((s for s in specs if s.kind == "mole_fraction" and s.product == "bottoms"), None)
+    fractions = [row for row in specs if row.kind == "mole_fraction"]
+    top = next((row for row in fractions if row.product.name == "distillate"), None)
+    bottom = next((row for row in fractions if row.product.name == "bottoms"), None)
     x_top = light_fraction(top) if top else None
     x_bottom = light_fraction(bottom) if bottom else None
     low, high = curve.feasible_region(x_feed)
@@ -184,11 +165,11 @@ def check_binary_limits(
         if spec is not None and beyond(x):
             azeotrope = curve.azeotrope_above(x_feed) if spec is top else curve.azeotrope_below(x_feed)
             raise SpecError(
-                f"{spec.key or spec.kind} = {spec.value:g} is beyond the {azeotrope.boiling}-boiling azeotrope at "
+                f"{spec.label} = {spec.value:g} is beyond the {azeotrope.boiling}-boiling azeotrope at "
                 f"x = {azeotrope.x:.4f} {names[light]}, {azeotrope.temperature - 273.15:.2f} degC, "
                 f"{azeotrope.pressure / 1e3:.4g} kPa: no number of stages reaches it"
             )
-    reflux = next((s for s in specs if s.kind == "reflux_ratio"), None)
+    reflux = next((row for row in specs if row.kind == "reflux_ratio"), None)
     if reflux is not None and x_top is not None and x_feed < x_top < 1.0 and -0.5 < q < 1.5:
         bottoms_guess = x_bottom if x_bottom is not None else min(0.01 * x_feed, 1e-3)
         try:
@@ -199,8 +180,8 @@ def check_binary_limits(
             ratio = minimum.ratio if (minimum.section != "stripping" or x_bottom is not None) else minimum.feed_pinch_ratio
             if reflux.value < ratio * (1.0 - 1e-3):
                 raise SpecError(
-                    f"{reflux.key or 'reflux_ratio'} = {reflux.value:g} is below the minimum reflux ratio {ratio:.4g} for "
-                    f"{top.key} = {top.value:g} ({minimum.pinch} pinch at x = {minimum.x:.4f} {names[light]}, "
+                    f"{reflux.label} = {reflux.value:g} is below the minimum reflux ratio {ratio:.4g} for "
+                    f"{top.label} = {top.value:g} ({minimum.pinch} pinch at x = {minimum.x:.4f} {names[light]}, "
                     f"constant-molar-overflow estimate): no number of stages meets it"
                 )
     if equilibrium_stages_available is not None and x_top is not None and x_bottom is not None and x_bottom < x_feed < x_top:
@@ -210,14 +191,14 @@ def check_binary_limits(
             return
         if needed > equilibrium_stages_available + 1e-9:
             raise SpecError(
-                f"{top.key} = {top.value:g} with {bottom.key} = {bottom.value:g} needs at least {needed:.2f} stages even at "
+                f"{top.label} = {top.value:g} with {bottom.label} = {bottom.value:g} needs at least {needed:.2f} stages even at "
                 f"total reflux; the column has {equilibrium_stages_available:g}"
             )
 
 
 
 def check_total_reflux_bound(
-    specs: Sequence[Spec],
+    specs: Sequence[SpecRow],
     component_names: Sequence[str],
     thermo,
     pressures: Sequence[float],
@@ -246,18 +227,18 @@ def check_total_reflux_bound(
     z = np.asarray(feed_composition, dtype=float)
     z = z / z.sum()
     for spec in specs:
-        if spec.kind != "mole_fraction" or spec.product not in ("distillate", "bottoms") or not 0.0 < spec.value < 1.0:
+        if spec.kind != "mole_fraction" or spec.product.name not in ("distillate", "bottoms") or not 0.0 < spec.value < 1.0:
             continue
-        s = names.index(spec.component)
+        s, product = spec.component, spec.product.name
         worst = None
         for other in range(len(names)):
             if other == s or z[other] <= 0.0 or z[s] <= 0.0:
                 continue
             # a: the component the distillate is richer in than the bottoms, b: the other one
-            a, b = (s, other) if spec.product == "distillate" else (other, s)
-            purity_ratio = spec.value / (1.0 - spec.value) if spec.product == "distillate" else (1.0 - spec.value) / spec.value
+            a, b = (s, other) if product == "distillate" else (other, s)
+            purity_ratio = spec.value / (1.0 - spec.value) if product == "distillate" else (1.0 - spec.value) / spec.value
             distillate_ratio, bottoms_ratio = (
-                (purity_ratio, z[a] / z[b]) if spec.product == "distillate" else (z[a] / z[b], purity_ratio)
+                (purity_ratio, z[a] / z[b]) if product == "distillate" else (z[a] / z[b], purity_ratio)
             )
             if distillate_ratio <= bottoms_ratio:
                 continue  # the feed is already that pure in this pair
@@ -271,11 +252,11 @@ def check_total_reflux_bound(
         if worst is not None and worst[0] > equilibrium_stages + 1e-9:
             needed, alpha, low, high, a, b = worst
             stages = "no number of" if not np.isfinite(needed) else f"at least {needed:.1f}"
-            section = (section_stages or {}).get(spec.product)
-            side = "" if section is None else f" ({section} of them on the {spec.product} side of the feed)"
+            section = (section_stages or {}).get(product)
+            side = "" if section is None else f" ({section} of them on the {product} side of the feed)"
             raise SpecError(
-                f"{_label(spec)} = {spec.value:.12g} needs {stages} equilibrium stages even at total reflux; the column "
-                f"has {equilibrium_stages}{side}: add stages or relax the {spec.product} purity (Fenske with the relative "
+                f"{spec.label} = {spec.value:.12g} needs {stages} equilibrium stages even at total reflux; the column "
+                f"has {equilibrium_stages}{side}: add stages or relax the {product} purity (Fenske with the relative "
                 f"volatility {names[a]}/{names[b]} at its largest in the column, {alpha:.4g}, between "
                 f"{low - 273.15:.1f} and {high - 273.15:.1f} degC, from a feed with {names[a]}/{names[b]} = "
                 f"{z[a] / z[b]:.4g})"

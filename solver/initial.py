@@ -5,7 +5,8 @@
    point; the overhead rate ``D`` is chosen to meet the composition specifications, or taken
    from the flow specifications.
 2. Flows by constant molar overflow from the specs (reflux, boilup, duties through a mean
-   latent heat) and each feed's thermal condition ``q``.
+   latent heat) and each feed's thermal condition ``q``. What each spec tells steps 1 and 2 is
+   its registry entry's :class:`~solver.spec_kinds.StartHandling`.
 3. Compositions and temperatures by sweeps of the bubble-point method (Wang & Henke 1966,
    Hydrocarbon Processing 45(8):155): for fixed flows, each component's balances over all
    stages form one sparse linear system in its liquid flows; for a column with two products
@@ -41,9 +42,9 @@ import scipy.sparse as sp
 from scipy.optimize import brentq
 from scipy.special import expit
 
-from .case import Spec
 from .errors import ThermoError
-from .mesh import TEMPERATURE_SCALE, MeshSystem
+from .mesh import MeshSystem
+from .spec_kinds import SPEC_REGISTRY, SpecRow, StartBasis
 from .sparse_solve import sparse_solve
 from .thermo.flash import bubble_temperature
 
@@ -61,8 +62,6 @@ __all__ = [
     "wang_henke_sweeps",
 ]
 
-_COMPOSITION_SPECS = ("mole_fraction", "recovery")
-_PROFILE_SPECS = ("mole_fraction", "recovery", "stage_temperature")  # met by moving D on the CMO profile
 _FIRST_WALK_STEP = 0.05  # of the start, in the root walking
 _WANG_HENKE_SWEEPS = 60  # plain sweeps at most (then as many relaxed); they stop when no temperature moves by 1e-3 K
 
@@ -92,47 +91,33 @@ def fenske_split(feed_flows: np.ndarray, ln_alpha: np.ndarray, distillate, expon
     return feed_flows[None, :] * expit(exponent * ln_alpha[None, :] - 0.5 * (low + high)[:, None])
 
 
-def _spec_error(spec: Spec, top: np.ndarray, bottom: np.ndarray, feed: np.ndarray, names) -> float:
-    """Distance from a product mole fraction or recovery spec, given product component flows."""
-    i = list(names).index(spec.component)
-    product = top if spec.product == "distillate" else bottom
-    basis = product.sum() if spec.kind == "mole_fraction" else feed[i]
-    return float(product[i] / max(basis, 1e-300) - spec.value)
-
-
-def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.ndarray, feed_totals: np.ndarray, ln_alpha: np.ndarray):
+def estimate_split(system: MeshSystem, specs: tuple[SpecRow, ...], q_values: np.ndarray, feed_totals: np.ndarray, ln_alpha: np.ndarray):
     """Overhead rate D (scaled), the function giving the top vapor rate V_top for a D (both
     scaled), the estimated overhead component flows, and whether D may still be moved to meet
-    a composition spec."""
+    a composition spec. What each spec tells is its registry entry's
+    (:class:`~solver.spec_kinds.StartHandling`)."""
     feed = system.total_feed_by_component
     F_net = system.net_feed
     vapor_in_feeds = float(np.sum((1.0 - np.clip(q_values, -1.0, 2.0)) * feed_totals))
     latent = system.energy_scale  # the energy scale is a mean molar latent heat
     exponent = float(np.clip(0.45 * system.N, 2.0, 60.0))
 
+    basis = StartBasis(F_net, system.flow_scale, latent, vapor_in_feeds)
     D = None
     energy_relations = []  # (a, b) meaning V_top = a + b * D
-    for spec in specs:
-        value = spec.value
-        if spec.kind == "distillate_rate":
-            D = value / system.flow_scale
-        elif spec.kind == "bottoms_rate":
-            D = F_net - value / system.flow_scale
-        elif spec.kind == "reflux_ratio":
-            energy_relations.append((0.0, value + 1.0))
-        elif spec.kind == "boilup_ratio":
-            energy_relations.append((value * F_net + vapor_in_feeds, -value))
-        elif spec.kind == "condenser_duty":
-            energy_relations.append((abs(value) / (latent * system.flow_scale), 0.0))
-        elif spec.kind == "reboiler_duty":
-            energy_relations.append((value / (latent * system.flow_scale) + vapor_in_feeds, 0.0))
+    for row in specs:
+        start = SPEC_REGISTRY[row.kind].start
+        if start.overhead is not None:
+            D = start.overhead(row, basis)
+        elif start.top_vapor is not None:
+            energy_relations.append(start.top_vapor(row, basis))
     D_fixed = D
-    composition_specs = [s for s in specs if s.kind in _COMPOSITION_SPECS]
+    composition_specs = [row for row in specs if SPEC_REGISTRY[row.kind].start.split_error is not None]
     if D is None and composition_specs:
         grid = np.linspace(0.002, 0.998, 499) * F_net
         tops = fenske_split(feed, ln_alpha, grid, exponent)
         errors = [
-            sum(_spec_error(s, top, feed - top, feed, system.component_names) ** 2 for s in composition_specs)
+            sum(SPEC_REGISTRY[row.kind].start.split_error(row, top, feed - top, feed) ** 2 for row in composition_specs)
             for top in tops
         ]
         D = float(grid[int(np.argmin(errors))])
@@ -140,7 +125,7 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
         (a1, b1), (a2, b2) = energy_relations[:2]
         if abs(b1 - b2) > 1e-9 * max(abs(b1), abs(b2), 1.0):
             D = (a2 - a1) / (b1 - b2)
-    duties = {s.kind: s.value for s in specs if s.kind in ("condenser_duty", "reboiler_duty")}
+    duties = [row.value for row in specs if SPEC_REGISTRY[row.kind].quantity == "duty"]
     if D is None and len(duties) == 2:
         # both duties given: under CMO they fix the vapor rates but not the split, which follows
         # from the overall enthalpy balance H_F + Q_C + Q_R = D h_D + B h_B
@@ -165,7 +150,7 @@ def estimate_split(system: MeshSystem, specs: tuple[Spec, ...], q_values: np.nda
     return D, top_vapor, top, adjustable
 
 
-def _overhead_from_energy_balance(system: MeshSystem, duties: dict, feed: np.ndarray, ln_alpha, exponent, F_net) -> float:
+def _overhead_from_energy_balance(system: MeshSystem, duties: list[float], feed: np.ndarray, ln_alpha, exponent, F_net) -> float:
     """Overhead rate (scaled) that closes the overall enthalpy balance with products at their
     bubble points and Fenske-distributed compositions, searched on a grid of rates."""
     thermo = system.thermo
@@ -183,7 +168,7 @@ def _overhead_from_energy_balance(system: MeshSystem, duties: dict, feed: np.nda
     if system.graph.condenser != "total":
         h_top = thermo.vapor_enthalpy(t_top, x_top).molar
     h_bottom = thermo.liquid_enthalpy(t_bottom, x_bottom).molar
-    heat_in = float(system.feed_enthalpy.sum()) * system.energy_scale + sum(duties.values()) / system.flow_scale
+    heat_in = float(system.feed_enthalpy.sum()) * system.energy_scale + sum(duties) / system.flow_scale
     mismatch = heat_in - grid * h_top - (F_net - grid) * h_bottom
     return float(grid[int(np.argmin(np.abs(mismatch)))])
 
@@ -247,7 +232,7 @@ def initial_estimate(system: MeshSystem, *, correct_split: bool = True) -> np.nd
     start)."""
     feed_totals = np.array([feed.flow for feed in system.feeds]) / system.flow_scale
     q_values = np.array([feed.q for feed in system.feeds])
-    D, top_vapor, top, adjustable = estimate_split(system, system.specs, q_values, feed_totals, _feed_volatilities(system))
+    D, top_vapor, top, adjustable = estimate_split(system, system.rows, q_values, feed_totals, _feed_volatilities(system))
     T, x = _profile_between_products(system, top)
     profiles = _CmoProfiles(system, top_vapor, feed_totals, q_values, T, x, correct_split)
     if adjustable:
@@ -354,7 +339,7 @@ class _CmoProfiles:
 def _meet_profile_specs(system: MeshSystem, profiles: _CmoProfiles, D: float) -> float:
     """Move D until the CMO profile meets the first composition, recovery or temperature spec;
     with a condenser and a second such spec, move the reflux for it in turn (twice)."""
-    profile_specs = [spec for spec in system.specs if spec.kind in _PROFILE_SPECS]
+    profile_specs = [row for row in system.rows if SPEC_REGISTRY[row.kind].start.profile_error is not None]
     if not profile_specs:
         return D
     F_net = system.net_feed
@@ -540,14 +525,12 @@ def theta_correction(l: np.ndarray, top: np.ndarray, bottom: np.ndarray, feed: n
     return l * (corrected / top)[None, :]
 
 
-def _profile_spec_error(system: MeshSystem, spec: Spec, profile_result) -> float:
+def _profile_spec_error(system: MeshSystem, row: SpecRow, profile_result) -> float:
     """How far a CMO profile is from meeting a composition, recovery or temperature spec."""
     _, _, sweeps = profile_result
-    if spec.kind == "stage_temperature":
-        return float(sweeps.temperature[spec.stage - 1] - spec.value) / TEMPERATURE_SCALE
     top = sweeps.stripping[system.top] * sweeps.liquid[system.top]
     bottom = sweeps.liquid[system.bottom]
-    return _spec_error(spec, top, bottom, system.total_feed_by_component, system.component_names)
+    return SPEC_REGISTRY[row.kind].start.profile_error(row, sweeps.temperature, top, bottom, system.total_feed_by_component)
 
 
 def _root_by_walking(

@@ -22,8 +22,10 @@ enthalpies of the streams in each stage's liquid and vapor slots.
 
 A total condenser's equilibrium rows become ``y_i - x_i = 0`` (i < c) and the bubble-point
 condition of the reflux at ``T + subcooling`` (or ``T - T_reflux = 0``). The enthalpy balances
-of the condenser and the reboiler are replaced by the specifications; their duties follow
-from those balances afterwards.
+of the condenser and the reboiler are replaced by the specifications, each resolved into a
+:class:`~solver.spec_kinds.SpecRow` and evaluated by its entry of
+:data:`~solver.spec_kinds.SPEC_REGISTRY` (the registry networks use); a duty spec keeps its
+exchanger's balance and subtracts the duty. The duties follow from those balances afterwards.
 
 The Jacobian is built from dense per-stage and per-edge blocks scattered into one
 ``scipy.sparse`` CSC matrix; the sparsity comes from the stage graph only.
@@ -39,8 +41,9 @@ import scipy.sparse as sp
 
 from .case import Spec
 from .errors import SpecError
-from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
+from .mesh_blocks import TINY, StageLayout, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network import StageGraph
+from .spec_kinds import SPEC_REGISTRY, TEMPERATURE_SCALE, ProductRef, SpecRow, column_spec_rows
 from .streams import FlashedFeed, StageProfile
 
 __all__ = [
@@ -48,14 +51,14 @@ __all__ = [
     "CondenserSetting",
     "Evaluation",
     "MeshSystem",
-    "SpecRow",
+    "PlacedSpec",
     "assign_specs",
+    "column_rows",
     "feed_sums_by_stage",
 ]
 
-TEMPERATURE_SCALE = 10.0  # K, divides temperature specification residuals
-
 _TINY = TINY  # floor of a total flow that divides component flows
+_EXCHANGERS = ("condenser", "reboiler")
 
 
 @dataclass(frozen=True)
@@ -68,9 +71,18 @@ class CondenserSetting:
 
 
 @dataclass(frozen=True)
-class SpecRow:
-    spec: Spec
-    stage: int  # the stage whose enthalpy-balance row it takes
+class PlacedSpec:
+    """A spec's row (:class:`~solver.spec_kinds.SpecRow`, evaluated by its registry entry) and
+    the stage whose enthalpy-balance row it takes. A spec that sets the condenser's or the
+    reboiler's duty (``row.extra`` names it) takes that exchanger's own row and keeps its
+    Jacobian: the duty is the balance's value (:meth:`MeshSystem.duty_term`)."""
+
+    row: SpecRow
+    stage: int
+
+    @property
+    def keeps_balance(self) -> bool:
+        return self.row.extra in _EXCHANGERS
 
 
 @dataclass(frozen=True)
@@ -101,8 +113,21 @@ def feed_sums_by_stage(feeds: Sequence[FlashedFeed], stage_count: int, component
     return component_flows, enthalpy_flows
 
 
-def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[SpecRow, ...]:
-    """Check the degrees of freedom and give each spec the enthalpy-balance row it replaces.
+def column_rows(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[SpecRow, ...]:
+    """The column's specs as rows (:func:`~solver.spec_kinds.column_spec_rows`), in their
+    order: the distillate is the top stage's vapor slot, the bottoms the bottom stage's liquid
+    slot, each a share of 1. Raises :class:`SpecError` for a spec that does not fit the column."""
+    exchangers = [name for name, present in zip(_EXCHANGERS, (graph.condenser != "none", graph.has_reboiler)) if present]
+    stage_of = {"condenser": graph.top_stage, "reboiler": graph.bottom_stage}
+    products = {"distillate": ProductRef("distillate", graph.top_stage, "vapor", share=1.0),
+                "bottoms": ProductRef("bottoms", graph.bottom_stage, "liquid", share=1.0)}
+    return column_spec_rows(specs, component_names, stage_count=graph.stage_count, exchangers=exchangers,
+                            exchanger_stage=stage_of.__getitem__, product=products.__getitem__, stage_index=lambda n: n - 1)
+
+
+def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequence[str]) -> tuple[PlacedSpec, ...]:
+    """Check the degrees of freedom, resolve each spec into its row (:func:`column_rows`) and
+    give it the enthalpy-balance row it takes (in the order of ``specs``).
 
     A column has one degree of freedom for a condenser and one for a reboiler (feeds, stage
     count, pressures, draws and side duties being fixed). Raises :class:`SpecError` naming the
@@ -126,34 +151,24 @@ def assign_specs(graph: StageGraph, specs: Sequence[Spec], component_names: Sequ
             "distillate_rate, bottoms_rate, condenser_duty, reboiler_duty, distillate/bottoms mole fraction, "
             "recovery, stage_temperature"
         )
-    names = list(component_names)
-    for spec in specs:
-        if spec.kind in ("reflux_ratio", "condenser_duty") and graph.condenser == "none":
-            raise SpecError(f"{spec.key or spec.kind}: the column has no condenser")
-        if spec.kind in ("boilup_ratio", "reboiler_duty") and not graph.has_reboiler:
-            raise SpecError(f"{spec.key or spec.kind}: the column has no reboiler")
-        if spec.component is not None and spec.component not in names:
-            raise SpecError(f"{spec.key}: {spec.component!r} is not a component of the case ({', '.join(names)})")
-        if spec.kind == "stage_temperature" and not (1 <= (spec.stage or 0) <= graph.stage_count):
-            raise SpecError(f"{spec.key}: stage {spec.stage} is not in 1..{graph.stage_count}")
-    rows: list[SpecRow] = []
+    spec_rows = column_rows(graph, specs, component_names)
+    stage_of = {"condenser": graph.top_stage, "reboiler": graph.bottom_stage}
     remaining = list(free_rows)
-    pending = []
-    for spec in specs:
-        wanted = {"condenser_duty": graph.top_stage, "reboiler_duty": graph.bottom_stage}.get(spec.kind)
-        if wanted is not None:
+    stages: dict[int, int] = {}
+    for k, row in enumerate(spec_rows):
+        if row.extra in stage_of:
+            wanted = stage_of[row.extra]
             if wanted not in remaining:
-                raise SpecError(f"{spec.key or spec.kind}: given twice")
+                raise SpecError(f"{row.label}: given twice")
             remaining.remove(wanted)
-            rows.append(SpecRow(spec, wanted))
-        else:
-            pending.append(spec)
-    for spec, stage in zip(pending, remaining):
-        rows.append(SpecRow(spec, stage))
+            stages[k] = wanted
+    pending = [k for k in range(len(spec_rows)) if k not in stages]
+    stages.update(zip(pending, remaining))
+    rows = [PlacedSpec(row, stages[k]) for k, row in enumerate(spec_rows)]
     return tuple(rows)
 
 
-class MeshSystem:
+class MeshSystem(StageLayout):
     """The MESH + specification equations of one column, ready for Newton's method.
 
     ``feeds`` are the flashed feeds (any order, several per stage allowed); ``specs`` as many
@@ -181,6 +196,8 @@ class MeshSystem:
         self.width = 2 * self.c + 1
         self.size = self.N * self.width
         self.spec_rows = assign_specs(graph, self.specs, self.component_names)
+        #: the specs' rows (:class:`~solver.spec_kinds.SpecRow`), in the order of :attr:`specs`
+        self.rows = tuple(placed.row for placed in self.spec_rows)
         self.condenser_setting = condenser_setting
         #: (N, c) mol/s and (N,) W: the feeds summed stage by stage
         self.feed_component_flows, self.feed_enthalpy_flows = feed_sums_by_stage(self.feeds, self.N, self.c)
@@ -254,7 +271,7 @@ class MeshSystem:
             return f"equilibrium of {self.component_names[offset - self.c]} on stage {stage + 1}"
         for row in self.spec_rows:
             if row.stage == stage:
-                return f"specification {row.spec.key or row.spec.kind}"
+                return f"specification {row.row.label}"
         return f"enthalpy balance of stage {stage + 1}"
 
     def _build_patterns(self) -> None:
@@ -270,7 +287,7 @@ class MeshSystem:
         self._liq_cols = (le[:, 0][:, None, None] * w + local_cols[None]).ravel()
         self._vap_rows = (ve[:, 1][:, None, None] * w + local_rows[None]).ravel()
         self._vap_cols = (ve[:, 0][:, None, None] * w + local_cols[None]).ravel()
-        replaced = [row.stage * w + 2 * self.c for row in self.spec_rows if row.spec.kind not in ("condenser_duty", "reboiler_duty")]
+        replaced = [row.stage * w + 2 * self.c for row in self.spec_rows if not row.keeps_balance]
         self._replaced_rows = np.array(replaced, dtype=int)
 
     # ------------------------------------------------------------------ evaluation
@@ -393,63 +410,23 @@ class MeshSystem:
         return edge_blocks(s, gLx, gVy, self.graph.liquid_edges, self.graph.vapor_edges, self.efficiencies, self.energy_scale)
 
     # ------------------------------------------------------------------ specifications
+    def duty_term(self, s: StageState, energy: np.ndarray, row: SpecRow):
+        """(scaled duty, no columns, no values) of the exchanger a duty spec sets: its stage's
+        enthalpy balance without a duty (``energy``), whose row and Jacobian the spec keeps."""
+        stage = self.top if row.extra == "condenser" else self.bottom
+        return energy[stage], np.array([], dtype=int), np.array([])
+
     def _spec_residuals(self, s: StageState, energy: np.ndarray, jacobian: bool):
-        """Residual of each spec row and its Jacobian entries (row, col, value arrays)."""
-        T, l, v, L, V, x, y = s.T, s.l, s.v, s.L_safe, s.V_safe, s.x, s.y
-        c, w = self.c, self.width
-        t, b = self.top, self.bottom
+        """Residual of each spec row by its registry entry
+        (:data:`~solver.spec_kinds.SPEC_REGISTRY`) and its Jacobian entries (row, col, value
+        arrays); ``energy`` the enthalpy balances, read by a duty spec."""
         values, entries = [], []
-        flows = np.arange(c)
-        for row in self.spec_rows:
-            spec = row.spec
-            r = row.stage * w + 2 * c
-            kind = spec.kind
-            cols: np.ndarray
-            if kind == "reflux_ratio":
-                value = L[t] - spec.value * V[t]
-                cols = np.concatenate([t * w + 1 + flows, t * w + 1 + c + flows])
-                vals = np.concatenate([np.ones(c), np.full(c, -spec.value)])
-            elif kind == "boilup_ratio":
-                value = V[b] - spec.value * L[b]
-                cols = np.concatenate([b * w + 1 + c + flows, b * w + 1 + flows])
-                vals = np.concatenate([np.ones(c), np.full(c, -spec.value)])
-            elif kind == "distillate_rate":
-                value = V[t] - spec.value / self.flow_scale
-                cols, vals = t * w + 1 + c + flows, np.ones(c)
-            elif kind == "bottoms_rate":
-                value = L[b] - spec.value / self.flow_scale
-                cols, vals = b * w + 1 + flows, np.ones(c)
-            elif kind == "mole_fraction":
-                i = self.component_names.index(spec.component)
-                if spec.product == "distillate":
-                    value = y[t, i] - spec.value
-                    cols, vals = t * w + 1 + c + flows, (np.eye(c)[i] - y[t, i]) / V[t]
-                else:
-                    value = x[b, i] - spec.value
-                    cols, vals = b * w + 1 + flows, (np.eye(c)[i] - x[b, i]) / L[b]
-            elif kind == "recovery":
-                i = self.component_names.index(spec.component)
-                total = self.total_feed_by_component[i]
-                if total <= 0:
-                    raise SpecError(f"{spec.key}: there is no {spec.component} in the feed to recover")
-                if spec.product == "distillate":
-                    value = (v[t, i] - spec.value * total) / total
-                    cols, vals = np.array([t * w + 1 + c + i]), np.array([1.0 / total])
-                else:
-                    value = (l[b, i] - spec.value * total) / total
-                    cols, vals = np.array([b * w + 1 + i]), np.array([1.0 / total])
-            elif kind == "stage_temperature":
-                s = spec.stage - 1
-                value = (T[s] - spec.value) / TEMPERATURE_SCALE
-                cols, vals = np.array([s * w]), np.array([1.0 / TEMPERATURE_SCALE])
-            elif kind in ("condenser_duty", "reboiler_duty"):
-                value = energy[row.stage] - spec.value / (self.flow_scale * self.energy_scale)
-                cols, vals = np.array([], dtype=int), np.array([])
-            else:
-                raise SpecError(f"{spec.key or kind}: unknown specification kind {kind!r}")
+        for placed in self.spec_rows:
+            row = placed.row
+            value, cols, vals = SPEC_REGISTRY[row.kind].residual(self, s, energy, row)
             values.append(value)
             if jacobian and len(cols):
-                entries.append((np.full(len(cols), r), cols, vals))
+                entries.append((np.full(len(cols), placed.stage * self.width + 2 * self.c), cols, vals))
         return values, entries
 
     # ------------------------------------------------------------------ after convergence

@@ -18,9 +18,27 @@ from typing import Callable
 
 import numpy as np
 
-__all__ = ["TINY", "StageState", "edge_blocks", "mesh_residuals", "stage_blocks", "stage_state"]
+__all__ = ["TINY", "StageLayout", "StageState", "edge_blocks", "mesh_residuals", "stage_blocks", "stage_state"]
 
 TINY = 1e-300  # floor of a total flow that divides component flows
+
+
+class StageLayout:
+    """Where a stage's unknowns sit (stage-major, ``width = 2c + 1`` per stage: temperature,
+    liquid component flows, vapor component flows), as the spec residuals of
+    :mod:`solver.spec_kinds` read them; a system sets ``width`` and ``c``."""
+
+    width: int
+    c: int
+
+    def T_col(self, g: int) -> int:
+        return g * self.width
+
+    def l_col(self, g: int) -> int:
+        return g * self.width + 1
+
+    def v_col(self, g: int) -> int:
+        return g * self.width + 1 + self.c
 
 
 @dataclass(frozen=True)

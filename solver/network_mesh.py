@@ -13,7 +13,7 @@ its stage's balances linearly) (duties scaled by ``flow_scale * energy_scale``, 
 Rows: per stage the c component balances, c Murphree relations and the enthalpy balance (with
 the stage's duties, fixed or unknown); a total condenser's equilibrium rows as for one column
 (``y_i = x_i`` and the reflux's bubble point or temperature). Then one row per spec
-(:mod:`solver.network_specs`), one per heat link (the linked condenser's and reboiler's duties
+(:mod:`solver.network_specs`, :mod:`solver.spec_kinds`), one per heat link (the linked condenser's and reboiler's duties
 add to zero) and one per fixed return temperature. The count agrees because the specs number
 the degrees of freedom (:func:`solver.network_graph.count_degrees_of_freedom`).
 
@@ -33,9 +33,9 @@ import numpy as np
 import scipy.sparse as sp
 
 from .mesh import feed_sums_by_stage
-from .mesh_blocks import TINY, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
+from .mesh_blocks import TINY, StageLayout, StageState, edge_blocks, mesh_residuals, stage_blocks, stage_state
 from .network_graph import NetworkGraph
-from .network_specs import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
+from .spec_kinds import SPEC_REGISTRY, TEMPERATURE_SCALE, SpecRow
 from .streams import FlashedFeed, StageProfile
 
 __all__ = ["ConnectionStream", "DeferredEvaluation", "NetworkSystem", "SparseAssembly"]
@@ -56,7 +56,7 @@ class ConnectionStream:
     carries_liquid: bool = False  # a liquid stream (the liquid slot, or a total condenser's distillate)
 
 
-class NetworkSystem:
+class NetworkSystem(StageLayout):
     """The MESH + spec equations of a column network, ready for Newton's method
     (:func:`solver.newton.solve_system`)."""
 
@@ -201,20 +201,15 @@ class NetworkSystem:
         self._transfer = scatter(self.transfer_destination, self.transfer_source)
 
     # ------------------------------------------------------------------ layout
-    def T_col(self, g: int) -> int:
-        return g * self.width
-
-    def l_col(self, g: int) -> int:
-        return g * self.width + 1
-
-    def v_col(self, g: int) -> int:
-        return g * self.width + 1 + self.c
-
     def extra_index(self, name: str) -> int:
         return self._extra_position[name]
 
     def extra_col(self, name: str) -> int:
         return self.stage_size + self._extra_position[name]
+
+    def duty_term(self, s: StageState, extras: np.ndarray, row: SpecRow):
+        """(scaled duty, columns, values) of the exchanger a duty spec sets: an extra unknown."""
+        return extras[self.extra_index(row.extra)], np.array([self.extra_col(row.extra)]), np.array([1.0])
 
     def temperature_index(self) -> np.ndarray:
         return np.arange(self.N) * self.width

@@ -40,14 +40,12 @@ from .network_specs import network_products, resolve_specs
 from .network_unknowns import network_start, scaled_start
 from .sensitivity import RELATIVE_STEP, OutputQuantity, Sensitivities
 from .sensitivity_inputs import InputParameter, choose_inputs
+from .spec_kinds import SI_UNITS, spec_kind
 from .thermo.package import ThermoPackage
 
 __all__ = ["NetworkSensitivityStudy", "network_inputs", "network_output_values", "network_sensitivities",
            "network_system_of", "network_unknowns"]
 
-_SPEC_UNITS = {"distillate_rate": "mol/s", "bottoms_rate": "mol/s", "condenser_duty": "W", "reboiler_duty": "W",
-               "stage_temperature": "K", "product_flow": "mol/s", "connection_flow": "mol/s", "exchanger_duty": "W",
-               "return_temperature": "K"}
 
 
 # ---------------------------------------------------------------------- inputs
@@ -100,7 +98,7 @@ def _tray_efficiency(section, value: float):
 
 
 def _spec_input(key: str, kind: str, value: float, apply: Callable) -> InputParameter:
-    return InputParameter(key, f"spec {key}", "spec", float(value), _SPEC_UNITS.get(kind, "1"), float(value) or 1.0, apply)
+    return InputParameter(key, f"spec {key}", "spec", float(value), SI_UNITS[spec_kind(kind).quantity], float(value) or 1.0, apply)
 
 
 def _spec_inputs(case: Case) -> list[InputParameter]:

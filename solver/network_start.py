@@ -36,6 +36,7 @@ from .initial import bubble_point_step
 from .network_mesh import NetworkSystem
 from .newton import NewtonOptions
 from .sparse_solve import lu_solve, sparse_solve
+from .spec_kinds import SPEC_REGISTRY
 from .thermo.flash import bubble_temperature
 
 __all__ = ["NetworkStart", "cmo_network_flows", "natural_level", "network_initial_estimate", "network_starts", "network_sweeps"]
@@ -121,10 +122,11 @@ def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, 
                 A[row, 2 * N + k] += factor
             else:
                 b[row] -= factor * system.transfer_fixed[m]
-    fixed = _fixed_by_specs(system)
+    start = _CmoRows(system, A, b, ln_K, _fixed_by_specs(system), differences)
     guessed: dict[int, float] = {}
     for r, row in enumerate(system.specs + system.internal_rows):
-        rate = _cmo_spec_row(system, A, b, 2 * N + r, row, ln_K, fixed, differences, (rates or {}).get(r))
+        start.rate = (rates or {}).get(r)
+        rate = SPEC_REGISTRY[row.kind].start.relation(start, 2 * N + r, row)
         if rate is not None:
             guessed[r] = rate
     for r, (condenser, reboiler, _) in enumerate(system.heat_links, start=2 * N + len(system.specs) + len(system.internal_rows)):
@@ -148,81 +150,41 @@ def _column_of(system: NetworkSystem, stage: int) -> str:
 
 def _fixed_by_specs(system: NetworkSystem) -> dict[str, set[str]]:
     """Column -> what its linear specs fix: "rate" (a product rate of a distillate or bottoms),
-    "ratio" (a reflux or boilup ratio, a condenser or reboiler duty)."""
+    "ratio" (a reflux or boilup ratio, a condenser or reboiler duty), as their registry entries
+    say (:attr:`~solver.spec_kinds.StartHandling.fixes`)."""
     fixed: dict[str, set[str]] = {section.name: set() for section in system.graph.network.columns}
     for row in system.specs:
-        if row.kind == "product_flow" and row.product.rate is None:
-            fixed[_column_of(system, row.product.stage)].add("rate")
-        elif row.kind in ("reflux_ratio", "boilup_ratio"):
-            fixed[_column_of(system, row.stage)].add("ratio")
-        elif row.kind == "duty" and row.extra.endswith((".condenser", ".reboiler")):
-            fixed[row.extra.rsplit(".", 1)[0]].add("ratio")
+        fixes = SPEC_REGISTRY[row.kind].start.fixes
+        found = fixes(row, lambda stage: _column_of(system, stage)) if fixes is not None else None
+        if found is not None:
+            fixed[found[0]].add(found[1])
     return fixed
 
 
-def _cmo_spec_row(system: NetworkSystem, A, b, r: int, row, ln_K, fixed: dict[str, set[str]], differences,
-                  rate: float | None) -> float | None:
-    """A spec as a linear relation among the CMO unknowns (L: 0.., V: N.., extras: 2N..). A
-    composition or temperature spec becomes, on its column, a guessed product rate if no spec
-    fixes one (``rate``, or one from the volatility order; returned), else a reflux ratio of 2
-    (a boilup ratio of 2 without a condenser)."""
-    N = system.N
-    kind = row.kind
-    if kind in ("mole_fraction", "recovery", "stage_temperature"):
-        stage = row.stage if kind == "stage_temperature" else row.product.stage
-        column = _column_of(system, stage)
-        if "rate" in fixed[column]:
-            fixed[column].add("ratio")
-            _ratio_of_two(system, A, r, column)
-            return
-        fixed[column].add("rate")
-        if kind == "stage_temperature" or row.product.rate is not None:
-            _half_the_feed(system, A, b, r, column)
-            return
-    if kind in ("mole_fraction", "recovery", "product_flow"):
-        p = row.product
-        guess = None if kind == "product_flow" else (rate if rate is not None else _guessed_product_rate(system, row, ln_K))
-        A[r, (p.stage if p.phase == "liquid" else N + p.stage)] = p.share
-        b[r] = row.value / system.flow_scale if guess is None else guess
-        return guess
-    elif kind in ("reflux_ratio", "boilup_ratio"):
-        g, share = row.stage, row.product.share
-        own, other = (g, N + g) if kind == "reflux_ratio" else (N + g, g)
-        A[r, own] = 1.0
-        A[r, other] = -row.value * share
-    elif kind == "duty":
-        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
-        b[r] = row.value / (system.flow_scale * system.energy_scale)
-    elif kind == "connection_flow":
-        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
-        b[r] = row.value / system.flow_scale
-    elif kind == "connection_fraction":
-        g, liquid = row.source_stage, row.phase == "liquid"
-        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
-        A[r, g if liquid else N + g] -= row.value
-        for m in np.flatnonzero((system.transfer_source == g) & (system.transfer_liquid == liquid)):
-            k = system.transfer_extra[m]
-            if k >= 0:
-                A[r, 2 * N + k] -= row.value
-            else:
-                b[r] += row.value * system.transfer_fixed[m]
-        b[r] += row.value * (system.side_liquid_draws[g] if liquid else system.side_vapor_draws[g])
-    elif kind == "return_temperature":
-        # duty = flow of the stream x its enthalpy change (none known yet: no duty)
-        A[r, 2 * N + system.extra_index(row.extra)] = 1.0
-        difference = differences.get(row.extra, 0.0)
-        stream = system.connections[row.extra.rsplit(".", 1)[0]]
-        if stream.transfer is not None:
-            k = system.transfer_extra[stream.transfer]
-            if k >= 0:
-                A[r, 2 * N + k] = -difference
-            else:
-                b[r] = difference * system.transfer_fixed[stream.transfer]
-        else:
-            A[r, stream.source if stream.phase == "liquid" else N + stream.source] = -difference * stream.weight
-    else:
-        raise ValueError(f"no start relation for spec kind {kind!r}")
-    return None
+@dataclass
+class _CmoRows:
+    """The seam through which a spec kind's registry entry writes its row of the CMO linear
+    system (:attr:`~solver.spec_kinds.StartHandling.relation`)."""
+
+    system: NetworkSystem
+    A: sp.lil_matrix
+    b: np.ndarray
+    ln_K: np.ndarray
+    fixed: dict[str, set[str]]
+    differences: dict
+    rate: float | None = None
+
+    def column_of(self, stage: int) -> str:
+        return _column_of(self.system, stage)
+
+    def ratio_of_two(self, r: int, column: str) -> None:
+        _ratio_of_two(self.system, self.A, r, column)
+
+    def half_the_feed(self, r: int, column: str) -> None:
+        _half_the_feed(self.system, self.A, self.b, r, column)
+
+    def guessed_product_rate(self, row) -> float:
+        return _guessed_product_rate(self.system, row, self.ln_K)
 
 
 def _half_the_feed(system: NetworkSystem, A, b, r: int, column: str) -> None:
@@ -436,7 +398,7 @@ def _finished_start(system: NetworkSystem, ln_K, guessed: dict[int, float], stat
     fixed = ~np.isnan(system.reflux_temperature)
     T[tops] = np.where(fixed, system.reflux_temperature, T[tops] - system.reflux_shift)
     X = system.pack(T, L[:, None] * x, V[:, None] * y, extras)
-    set_by_spec = {row.extra for row in system.specs if row.kind == "duty"}
+    set_by_spec = {row.extra for row in system.specs if SPEC_REGISTRY[row.kind].quantity == "duty"}
     energy_rows = np.arange(system.N) * system.width + 2 * system.c
     residuals = system.evaluate(X, jacobian=False).residuals[energy_rows]
     for k, name_ in enumerate(system.extra_names):

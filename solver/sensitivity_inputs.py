@@ -33,6 +33,7 @@ import numpy as np
 
 from .case import Case
 from .case.model import InteractionParameter
+from .spec_kinds import SI_UNITS, spec_kind
 from .thermo.package import ThermoPackage, activity_model
 
 __all__ = ["INPUT_KINDS", "InputParameter", "ShiftedVaporPressure", "choose_inputs"]
@@ -45,8 +46,6 @@ _EQUATIONS_OF_STATE = ("peng-robinson", "soave-redlich-kwong")
 _TERMS = ("constant_term", "term_over_temperature", "term_in_ln_temperature", "term_times_temperature")
 _TERM_UNITS = {"constant_term": "1", "term_over_temperature": "K", "term_in_ln_temperature": "1",
                "term_times_temperature": "1/K"}
-_SPEC_UNITS = {"distillate_rate": "mol/s", "bottoms_rate": "mol/s", "condenser_duty": "W", "reboiler_duty": "W",
-               "stage_temperature": "K"}
 
 
 @dataclass(frozen=True)
@@ -185,7 +184,7 @@ def _spec_inputs(case: Case) -> list[InputParameter]:
     inputs = []
     for index, spec in enumerate(case.specs):
         key = spec.key or f"specs.{spec.kind}"
-        inputs.append(InputParameter(key, f"spec {key}", "spec", float(spec.value), _SPEC_UNITS.get(spec.kind, "1"),
+        inputs.append(InputParameter(key, f"spec {key}", "spec", float(spec.value), SI_UNITS[spec_kind(spec.kind).quantity],
                                      float(spec.value) or 1.0, _with_spec_value(index)))
     return inputs
 

@@ -16,7 +16,8 @@ from solver.cli import main
 from solver.network_engine import simulate_network
 from solver.network_graph import check_network
 from solver.network_plot import column_marks, column_profile_files
-from solver.network_specs import SPEC_REGISTRY, resolve_specs
+from solver.network_specs import resolve_specs
+from solver.spec_kinds import SPEC_REGISTRY
 from solver.newton import NewtonOptions
 from solver.reports import display_units
 from solver.reports.network_summary import network_summary_markdown

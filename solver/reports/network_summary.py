@@ -12,7 +12,7 @@ from typing import Sequence
 from .. import __version__
 from ..caution import CAUTION
 from ..network_results import NETWORK_SCHEMA, NetworkResult
-from ..network_specs import SpecRow
+from ..spec_kinds import SpecRow
 from ..results import write_atomic
 from .display import DisplayUnits, markdown_table
 from .network_tables import (

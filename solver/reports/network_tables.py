@@ -10,7 +10,7 @@ from typing import Sequence
 from rich.table import Table
 
 from ..network_results import NetworkResult
-from ..network_specs import SPEC_REGISTRY, SpecRow
+from ..spec_kinds import SPEC_REGISTRY, SpecRow
 from .display import DisplayUnits, screen_table
 
 __all__ = [

@@ -7,6 +7,7 @@ import numpy as np
 from rich.table import Table
 
 from ..results import Result
+from ..spec_kinds import spec_kind
 from .display import DisplayUnits, screen_table
 
 __all__ = ["PAIR_HEADER", "pair_rows", "product_cells", "spec_rows", "stage_label", "summary_tables"]
@@ -38,24 +39,17 @@ def stage_label(result: Result, j: int) -> str:
 
 
 def spec_rows(result: Result, units: DisplayUnits) -> list[tuple[str, str]]:
-    """(key as written in the case file, value in display units) for every specification and
-    for the condenser settings that are not degrees of freedom."""
+    """(key as written in the case file, value in display units) for every specification (in
+    its registry entry's quantity and phrase) and for the condenser settings that are not
+    degrees of freedom."""
     rows = []
     for spec in result.specs:
-        kind, value = spec.kind, spec.value
-        if kind in ("distillate_rate", "bottoms_rate"):
-            text = f"{units.F(value):.6g} {units.molar_flow}"
-        elif kind in ("condenser_duty", "reboiler_duty"):
-            text = f"{units.Q(value):.6g} {units.duty}"
-        elif kind == "stage_temperature":
-            text = f"{units.T(value):.2f} {units.temperature_label} on stage {spec.stage}"
-        elif kind == "mole_fraction":
-            text = f"x {spec.component} = {value:.6g} in the {spec.product}"
-        elif kind == "recovery":
-            text = f"{value:.6g} of the feed's {spec.component} to the {spec.product}"
-        else:
-            text = f"{value:.6g}"
-        rows.append((spec.key or kind, text))
+        entry = spec_kind(spec.kind)
+        value = spec.value
+        shown = {"flow": f"{units.F(value):.6g} {units.molar_flow}", "duty": f"{units.Q(value):.6g} {units.duty}",
+                 "temperature": f"{units.T(value):.2f} {units.temperature_label}"}.get(entry.quantity, f"{value:.6g}")
+        text = entry.phrase.format(value=shown, component=spec.component, product=spec.product, stage=spec.stage)
+        rows.append((spec.key or spec.kind, text))
     if result.reflux_temperature is not None:
         rows.append(("specs.reflux_temperature", f"{units.T(result.reflux_temperature):.2f} {units.temperature_label}"))
     if result.reflux_subcooling is not None:

@@ -23,6 +23,7 @@ from scipy.special import expit, log_expit, logit, logsumexp
 
 from ..case import Spec
 from ..errors import SpecError
+from ..spec_kinds import COLUMN_SPEC_KINDS
 from .simple_column import describe_spec
 
 __all__ = ["FenskeSplit", "fenske_distribution", "fenske_minimum_stages", "fenske_split"]
@@ -60,19 +61,18 @@ def _spec_residuals(key_ln_ratios, specs, names, feed_flows, ln_alpha, light, he
     ln_D, ln_B = logsumexp(ln_d), logsumexp(ln_b)
     residuals = []
     for spec in specs:
-        if spec.kind in ("mole_fraction", "recovery"):
-            i = names.index(spec.component)
-            target = logit(spec.value)
-            mine, theirs = (ln_d, ln_b) if spec.product == "distillate" else (ln_b, ln_d)
-            if spec.kind == "mole_fraction":
-                rest = logsumexp(np.delete(mine, i))
-                residuals.append(mine[i] - rest - target)
-            else:
-                residuals.append(mine[i] - theirs[i] - target)
-        elif spec.kind == "distillate_rate":
-            residuals.append(ln_D - np.log(spec.value))
-        else:  # bottoms_rate
-            residuals.append(ln_B - np.log(spec.value))
+        entry = COLUMN_SPEC_KINDS[spec.kind]
+        product = entry.product or spec.product
+        if entry.row_kind == "product_flow":
+            residuals.append((ln_D if product == "distillate" else ln_B) - np.log(spec.value))
+            continue
+        i = names.index(spec.component)
+        target = logit(spec.value)
+        mine, theirs = (ln_d, ln_b) if product == "distillate" else (ln_b, ln_d)
+        if entry.row_kind == "mole_fraction":
+            residuals.append(mine[i] - logsumexp(np.delete(mine, i)) - target)
+        else:  # recovery
+            residuals.append(mine[i] - theirs[i] - target)
     return np.array(residuals), minimum_stages, ln_ratio
 
 

@@ -34,6 +34,7 @@ import numpy as np
 
 from ..case import Case, Spec
 from ..errors import SpecError
+from ..spec_kinds import spec_kind
 from ..thermo.flash import bubble_temperature, dew_temperature
 from ..thermo.package import ThermoPackage
 from .fenske import fenske_distribution, fenske_minimum_stages, fenske_split
@@ -58,8 +59,6 @@ __all__ = [
     "underwood_roots",
 ]
 
-_SPLIT_KINDS = ("mole_fraction", "recovery", "distillate_rate", "bottoms_rate")
-_ENERGY_KINDS = ("reflux_ratio", "boilup_ratio", "condenser_duty", "reboiler_duty")
 #: Most passes of the relative volatilities with the Fenske split they give.
 _VOLATILITY_PASSES = 60
 
@@ -175,9 +174,10 @@ def _sort_specs(specs: Sequence[Spec], override: bool) -> tuple[list[Spec], list
     the reflux unless a reflux keyword replaces it (``override``). Raises :class:`SpecError`
     for any other count."""
     notes = []
-    split_specs = [spec for spec in specs if spec.kind in _SPLIT_KINDS]
-    energy_specs = [spec for spec in specs if spec.kind in _ENERGY_KINDS]
-    ignored = [spec for spec in specs if spec.kind not in _SPLIT_KINDS + _ENERGY_KINDS]
+    # what each spec fixes is its registry entry's role
+    split_specs = [spec for spec in specs if spec_kind(spec.kind).role == "split"]
+    energy_specs = [spec for spec in specs if spec_kind(spec.kind).role == "energy"]
+    ignored = [spec for spec in specs if spec_kind(spec.kind).role == "other"]
     if ignored:
         notes.append("not used by the shortcut: " + "; ".join(describe_spec(spec) for spec in ignored))
     if len(split_specs) != 2:

@@ -64,11 +64,7 @@ def _guessed_product_rate(system: NetworkSystem, row, ln_K: np.ndarray) -> float
     i = row.component
     lighter_side = row.product.phase == "vapor"
     side = feed[(ln_K > ln_K[i]) if lighter_side else (ln_K < ln_K[i])].sum()
-    if row.kind == "recovery":
-        return float(side + row.value * feed[i])
-    if row.value >= 0.5:
-        return float(side + 0.97 * feed[i])
-    return float(side / (1.0 - row.value))
+    return float(SPEC_REGISTRY[row.kind].start.guessed_rate(row, side, feed[i]))
 
 
 def cmo_network_flows(system: NetworkSystem, ln_K: np.ndarray, enthalpies=None, rates: dict | None = None):
@@ -285,13 +281,10 @@ def _stage_enthalpies(system: NetworkSystem, T: np.ndarray, x: np.ndarray, y: np
 
 def _profile_spec_error(system: NetworkSystem, row, L, V, x, y) -> float:
     """How far a composition spec is from being met by a sweep's profile."""
-    p, i = row.product, row.component
+    p = row.product
     liquid = p.phase == "liquid" or p.stage in system.total_condensers
-    composition = (x if liquid else y)[p.stage]
-    if row.kind == "mole_fraction":
-        return float(composition[i] - row.value)
-    flow = p.share * (L if p.phase == "liquid" else V)[p.stage]
-    return float(flow * composition[i] / system.total_feed_by_component[i] - row.value)
+    amount = p.rate / system.flow_scale if p.rate is not None else p.share * (L if p.phase == "liquid" else V)[p.stage]
+    return SPEC_REGISTRY[row.kind].start.stream_error(row, (x if liquid else y)[p.stage], amount, system.total_feed_by_component)
 
 
 def _meet_composition_specs(system: NetworkSystem, ln_K, guessed: dict[int, float], state, rounds: int = _SPEC_ROUNDS):

@@ -103,7 +103,11 @@ class StartHandling:
     ``rate``, ``differences``, ``column_of(stage)``, ``ratio_of_two(r, column)``,
     ``half_the_feed(r, column)``, ``guessed_product_rate(row)``) and returns the product rate
     it guessed, if any; ``fixes(row, column_of)`` the (column, ``"rate"`` or ``"ratio"``) a
-    linear spec fixes, or None."""
+    linear spec fixes, or None; ``guessed_rate(row, side, feed_i)`` a composition spec's
+    product rate (scaled) from the feed of the components on the product's side of the spec's
+    component and of the component itself; ``stream_error(row, composition, amount, feed)``
+    how far a swept profile's product stream (its composition and total, scaled) is from it.
+    """
 
     relation: Callable
     overhead: Callable | None = None
@@ -111,6 +115,8 @@ class StartHandling:
     split_error: Callable | None = None
     profile_error: Callable | None = None
     fixes: Callable | None = None
+    guessed_rate: Callable | None = None
+    stream_error: Callable | None = None
 
 
 @dataclass(frozen=True)
@@ -325,6 +331,24 @@ def _recovery_split_error(row: SpecRow, top, bottom, feed) -> float:
     return float(product[row.component] / max(feed[row.component], 1e-300) - row.value)
 
 
+def _mole_fraction_guess(row: SpecRow, side: float, feed_i: float) -> float:
+    """All of its side and most of the component for a purity; for a small fraction, its side
+    diluted by that fraction of the component."""
+    return side + 0.97 * feed_i if row.value >= 0.5 else side / (1.0 - row.value)
+
+
+def _recovery_guess(row: SpecRow, side: float, feed_i: float) -> float:
+    return side + row.value * feed_i
+
+
+def _mole_fraction_stream_error(row: SpecRow, composition, amount: float, feed) -> float:
+    return float(composition[row.component] - row.value)
+
+
+def _recovery_stream_error(row: SpecRow, composition, amount: float, feed) -> float:
+    return float(amount * composition[row.component] / feed[row.component] - row.value)
+
+
 def _temperature_profile_error(row: SpecRow, T, top, bottom, feed) -> float:
     return float(T[row.stage] - row.value) / TEMPERATURE_SCALE
 
@@ -474,11 +498,13 @@ SPEC_REGISTRY: dict[str, SpecKind] = {
     "mole_fraction": SpecKind(_mole_fraction_residual, "mole fraction in a product", "fraction",
                               lambda r, row: _achieved_product(r, row)["composition"][row.component],
                               StartHandling(_composition_relation, split_error=_mole_fraction_split_error,
-                                            profile_error=_split_profile_error(_mole_fraction_split_error)),
+                                            profile_error=_split_profile_error(_mole_fraction_split_error),
+                                            guessed_rate=_mole_fraction_guess, stream_error=_mole_fraction_stream_error),
                               role="split", phrase="x {component} = {value} in the {product}"),
     "recovery": SpecKind(_recovery_residual, "recovery in a product", "fraction", _achieved_recovery,
                          StartHandling(_composition_relation, split_error=_recovery_split_error,
-                                       profile_error=_split_profile_error(_recovery_split_error)),
+                                       profile_error=_split_profile_error(_recovery_split_error), guessed_rate=_recovery_guess,
+                                       stream_error=_recovery_stream_error),
                          role="split", phrase="{value} of the feed's {component} to the {product}", check=_recovery_check),
     "stage_temperature": SpecKind(_stage_temperature_residual, "stage temperature", "temperature",
                                   lambda r, row: float(r.temperature[row.stage]),

@@ -11,7 +11,7 @@ from conftest import methanol_water_case, network_example_case
 from solver.case import NETWORK_SPEC_KINDS, SPEC_KINDS
 from solver.network_engine import build_network_system
 from solver.network_start import network_initial_estimate
-from solver.spec_kinds import COLUMN_SPEC_KINDS, NETWORK_ROW_KINDS, SPEC_REGISTRY
+from solver.spec_kinds import COLUMN_SPEC_KINDS, NETWORK_ROW_KINDS, SPEC_REGISTRY, SpecRow
 from test_mesh import SPEC_VARIANTS, _system_and_start
 from test_network_mesh import VARIANTS
 
@@ -104,3 +104,17 @@ def test_every_case_file_kind_has_a_complete_registry_entry(kind):
             # or profile to meet
             start = entry.start
             assert any(f is not None for f in (start.overhead, start.top_vapor, start.split_error, start.profile_error))
+
+
+@pytest.mark.parametrize("kind", ["mole_fraction", "recovery"])
+def test_a_composition_kind_tells_the_network_start_its_rate_and_its_error(kind):
+    """The network start guesses a composition spec's product rate and measures a swept
+    profile against it through the entry (one column of 30 mol/s: 20 of the components on the
+    product's side, 10 of the spec's component)."""
+    start = SPEC_REGISTRY[kind].start
+    row = SpecRow(kind, 0.9, "spec", component=1)
+    rate = start.guessed_rate(row, 20.0, 10.0)
+    assert rate == pytest.approx(20.0 + 0.97 * 10.0 if kind == "mole_fraction" else 20.0 + 0.9 * 10.0)
+    composition = np.array([0.2, 0.8])
+    error = start.stream_error(row, composition, 12.0, np.array([5.0, 10.0]))
+    assert error == pytest.approx(0.8 - 0.9 if kind == "mole_fraction" else 12.0 * 0.8 / 10.0 - 0.9)

@@ -259,3 +259,16 @@ def test_vapor_from_a_total_condenser_is_refused_with_the_product_form():
         data["connections"][1]["from"] = {"column": "main", "stage": 1, "phase": "vapor"}
 
     refused(vapor, "connections[1].from.phase", "total condenser", 'product = "distillate"')
+
+
+def test_taking_all_of_a_total_condensers_reflux_is_refused_with_the_product_form():
+    def all_reflux(data):
+        data["connections"][1]["from"] = {"column": "main", "stage": 1, "phase": "liquid"}
+
+    refused(all_reflux, "connections[1].from", "its reflux", 'product = "distillate"')
+
+    def share_of_reflux(data):
+        data["connections"][1]["from"] = {"column": "main", "stage": 1, "phase": "liquid"}
+        data["connections"][1]["fraction"] = 0.1
+
+    assert parsed(share_of_reflux).network.connections[1].fraction == 0.1  # a share of the reflux stays possible

@@ -141,6 +141,11 @@ def _read_connection(entry: Any, index: int, columns: Mapping[str, ColumnSection
             flow = read_quantity(table["flow"], "molar_flow", at.child("flow"), above=0.0)
     if "fraction" in table:
         fraction = read_quantity(table["fraction"], "dimensionless", at.child("fraction"), above=0.0, maximum=1.0)
+    if (phase, from_stage, from_product, flow, fraction, free) == ("liquid", 1, None, None, None, False) \
+            and columns[from_column].column.condenser == "total":
+        source_at.fail(f"all the liquid stage 1 of {from_column!r} sends down is its reflux: the column would keep none; "
+                       "to send its distillate on, name the product", dict(source),
+                       f"from = {{ column = \"{from_column}\", product = \"distillate\" }} (or a flow or fraction of the reflux)")
     if "cooling" in table and "heating" in table:
         at.fail("give cooling or heating, not both", {"cooling": table["cooling"], "heating": table["heating"]}, "one exchanger")
     exchanger = None

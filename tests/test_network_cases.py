@@ -88,6 +88,15 @@ def test_pressure_swing_crosses_the_azeotrope_of_each_pressure():
         result.connections["low-pressure-distillate"]["flow"] - result.products["high-pressure.bottoms"]["flow"], rel=1e-9)
 
 
+def test_audit_of_a_two_component_network_writes_the_solution_and_says_why_no_audit(tmp_path, capsys):
+    from solver.cli import main
+
+    assert main(["audit", str(CASES / "acetone_methanol_pressure_swing.toml"), "--out", str(tmp_path)]) == 0
+    screen = " ".join(capsys.readouterr().out.split())
+    assert "no minimum-vapor audit for this network" in screen and "three or more components" in screen
+    assert {"result.json", "stages.csv", "summary.md", "network.png"} <= {path.name for path in tmp_path.iterdir()}
+
+
 def test_a_free_feed_without_its_spec_is_named():
     text = (CASES / "acetone_methanol_extractive.toml").read_text()
     text = text.replace('[[specs]]\non = "recovery.bottoms"\nflow = "0.5 kmol/h"\n', "")

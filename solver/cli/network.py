@@ -16,6 +16,7 @@ from rich.console import Console
 from ..audit.flags import two_liquids
 from ..audit.network_vmin import network_vmin_audit
 from ..case import Case
+from ..errors import SpecError
 from ..network_engine import simulate_network
 from ..network_graph import check_network
 from ..network_results import (
@@ -113,12 +114,19 @@ def audit_network(args: argparse.Namespace, case: Case, out: Path, console: Cons
     """``audit``: the rigorous solution's vapor beside Underwood's minimum vapor of the Petlyuk
     arrangement and of the direct and indirect sequences (one feed, three or more components),
     and beside the direct and indirect sequences solved rigorously, with the rigorous saving;
-    result.json with its ``audit`` section. Returns (files written, result)."""
+    result.json with its ``audit`` section. Where the diagram does not apply (two components,
+    several feeds) it says why and writes the rigorous solution as ``run`` does. Returns (files
+    written, result)."""
     units = display_units(case.display, args.units)
     thermo = ThermoPackage.from_case(case)
     result = simulate_network(case, thermo=thermo)
+    audit = None
     if result.converged:
-        audit = network_vmin_audit(case, result, thermo)
+        try:
+            audit = network_vmin_audit(case, result, thermo)
+        except SpecError as exc:  # the diagram does not apply (two components, several feeds): not bad input
+            console.print(f"no minimum-vapor audit for this network ({exc}); the rigorous solution is written as by run")
+    if audit is not None:
         result = dataclasses.replace(result, extra={"audit": audit})
         flow = lambda value: f"{units.F(value):.5g} {units.flow}"  # noqa: E731
         rows = [
@@ -195,7 +203,6 @@ def size_network(args: argparse.Namespace, case: Case, out: Path, console: Conso
     import sys
 
     from ..caution import CAUTION
-    from ..errors import SpecError
     from ..network_plot import file_stem
     from ..reports.sizing_tables import print_sizing, sizing_markdown
     from ..sizing import size_column, sizing_inputs

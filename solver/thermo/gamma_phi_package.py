@@ -206,8 +206,9 @@ class GammaPhiThermoPackage(ThermoPackage):
         k_values = _gamma_phi_k(T, P, act, saturated, vapor, True)
         if self.enthalpy_model == "cmo":
             return StageProperties(k_values, self._liquid_phase(T, x, act, "cmo"), self._vapor_phase(T, y, "cmo"))
-        liquid = _with_saturated_vapor(self._liquid_phase(T, x, act, "rigorous"), x, saturated)
-        return StageProperties(k_values, liquid, _vapor_phase(vapor, y, self.pure.ideal_gas_enthalpy(T)))
+        ideal_gas = self.pure.ideal_gas_enthalpy(T)
+        liquid = _with_saturated_vapor(self._liquid_phase(T, x, act, "rigorous", ideal_gas), x, saturated)
+        return StageProperties(k_values, liquid, _vapor_phase(vapor, y, ideal_gas))
 
 
 def _ln_k_pure(T: np.ndarray, P: np.ndarray, saturated: SaturatedPure) -> np.ndarray:

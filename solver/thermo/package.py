@@ -354,12 +354,14 @@ class ThermoPackage:
         enter (it does with an equation of state)."""
         return self._vapor_phase(np.asarray(temperature, dtype=float), np.asarray(y, dtype=float), model or self.enthalpy_model)
 
-    def _vapor_phase(self, temperature: np.ndarray, y: np.ndarray, model: str) -> PhaseEnthalpy:
+    def _vapor_phase(self, temperature: np.ndarray, y: np.ndarray, model: str, ideal_gas=None) -> PhaseEnthalpy:
+        """``ideal_gas``: the pure ideal-gas ``(h_ig, cp0)`` at ``temperature`` when the caller
+        has them (a stage's two phases share one evaluation)."""
         zero = np.zeros(temperature.shape[0])
         if model == "cmo":
             pure = np.full((temperature.shape[0], self.component_count), self.cmo_latent_heat)
             return PhaseEnthalpy(np.einsum("nc,nc->n", y, pure), zero, pure, pure, zero)
-        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
+        h_ig, cp = ideal_gas if ideal_gas is not None else self.pure.ideal_gas_enthalpy(temperature)
         return PhaseEnthalpy(np.einsum("nc,nc->n", y, h_ig), np.einsum("nc,nc->n", y, cp), h_ig, h_ig, zero)
 
     def liquid_enthalpy(self, temperature: np.ndarray, x: np.ndarray, model: str | None = None, pressure=None) -> PhaseEnthalpy:
@@ -371,13 +373,14 @@ class ThermoPackage:
         act = self.activity.evaluate(temperature, x, derivatives=True) if model != "cmo" else None
         return self._liquid_phase(temperature, x, act, model)
 
-    def _liquid_phase(self, temperature: np.ndarray, x: np.ndarray, act, model: str) -> PhaseEnthalpy:
+    def _liquid_phase(self, temperature: np.ndarray, x: np.ndarray, act, model: str, ideal_gas=None) -> PhaseEnthalpy:
+        """``ideal_gas`` as for :meth:`_vapor_phase`."""
         n = temperature.shape[0]
         if model == "cmo":
             zero = np.zeros(n)
             pure = np.zeros((n, self.component_count))
             return PhaseEnthalpy(zero, zero, pure, pure, zero)
-        h_ig, cp = self.pure.ideal_gas_enthalpy(temperature)
+        h_ig, cp = ideal_gas if ideal_gas is not None else self.pure.ideal_gas_enthalpy(temperature)
         dh_vap, d_dh_vap_dT = self.pure.heat_of_vaporization(temperature)
         pure = h_ig - dh_vap
         return PhaseEnthalpy(
@@ -405,10 +408,11 @@ class ThermoPackage:
         temperature = np.asarray(temperature, dtype=float)
         x = np.asarray(x, dtype=float)
         act = self.activity.evaluate(temperature, x, derivatives=True)
+        ideal_gas = self.pure.ideal_gas_enthalpy(temperature) if self.enthalpy_model != "cmo" else None
         return StageProperties(
             self._k_values(temperature, np.asarray(pressure, dtype=float), act, True),
-            self._liquid_phase(temperature, x, act, self.enthalpy_model),
-            self._vapor_phase(temperature, np.asarray(y, dtype=float), self.enthalpy_model),
+            self._liquid_phase(temperature, x, act, self.enthalpy_model, ideal_gas),
+            self._vapor_phase(temperature, np.asarray(y, dtype=float), self.enthalpy_model, ideal_gas),
         )
 
 

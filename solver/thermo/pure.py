@@ -88,7 +88,6 @@ class PureComponents:
             else:
                 raise ThermoError(f"component {info.name} has an unknown backend {info.backend!r}")
         self._all_coolprop = len(self._users) == 0
-        self._ideal_gas_cache: tuple[np.ndarray, np.ndarray, np.ndarray] | None = None
         self._saturation: list[SaturationFits] = []
         self._ideal_gas: list[IdealGasFit] = []
         for index in self._coolprop:
@@ -138,22 +137,16 @@ class PureComponents:
 
     def ideal_gas_enthalpy(self, T: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """``(h_ig, cp0)``: ideal-gas enthalpy (J/mol) relative to the ideal gas at 298.15 K
-        and its temperature derivative, the ideal-gas heat capacity (J/(mol K)), each (n, c).
-        The last call's result is kept (copies handed out): both phases of a stage ask at one T."""
+        and its temperature derivative, the ideal-gas heat capacity (J/(mol K)), each (n, c)."""
         T = _temperatures(T)
-        cached = self._ideal_gas_cache
-        if cached is not None and cached[0].shape == T.shape and np.array_equal(cached[0], T):
-            return cached[1].copy(), cached[2].copy()
         if self._all_coolprop:
-            value, slope = self._coolprop_ideal_gas_enthalpy(T)
-        else:
-            value = np.empty((T.size, len(self.names)))
-            slope = np.empty_like(value)
-            if len(self._coolprop):
-                value[:, self._coolprop], slope[:, self._coolprop] = self._coolprop_ideal_gas_enthalpy(T)
-            for index, user in self._users:
-                value[:, index], slope[:, index] = user.ideal_gas_enthalpy(T)
-        self._ideal_gas_cache = (T.copy(), value.copy(), slope.copy())
+            return self._coolprop_ideal_gas_enthalpy(T)
+        value = np.empty((T.size, len(self.names)))
+        slope = np.empty_like(value)
+        if len(self._coolprop):
+            value[:, self._coolprop], slope[:, self._coolprop] = self._coolprop_ideal_gas_enthalpy(T)
+        for index, user in self._users:
+            value[:, index], slope[:, index] = user.ideal_gas_enthalpy(T)
         return value, slope
 
     def liquid_molar_volume(self, T: np.ndarray) -> np.ndarray:
